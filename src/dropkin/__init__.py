@@ -1,0 +1,1 @@
+"""dropkin: neck and contact radius of merging and spreading drops, and their scaling regime."""

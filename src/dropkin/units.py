@@ -1,0 +1,157 @@
+"""The one unit registry, and the parsing of quantities people type.
+
+Units live at the edges of dropkin: the experiment file, the command line and
+the written outputs. Everything a person types goes through
+:func:`parse_quantity` (or :func:`parse_si`), which refuses a bare number, an
+unparsable text and a wrong dimension with a message that names the key, the
+value and the unit expected. Inside the library all numbers are SI floats.
+
+Examples
+--------
+>>> parse_si("20 kfps", "Hz", key="recording.frame_rate")
+20000.0
+>>> parse_si("2 mm", "m")
+0.002
+>>> parse_si("21 degC", "K")
+294.15
+"""
+
+from __future__ import annotations
+
+import math
+from numbers import Real
+
+import click
+import pint
+
+from .errors import QuantityError
+
+__all__ = ["ureg", "Quantity", "parse_quantity", "parse_si", "QuantityType", "SI_UNITS"]
+
+ureg = pint.UnitRegistry(autoconvert_offset_to_baseunit=True)
+# Frame rates are the camera's word; "kfps" and "Mfps" follow from the prefixes.
+ureg.define("fps = 1 / second = frames_per_second")
+Quantity = ureg.Quantity
+
+#: SI unit, as written in outputs, for each kind of quantity dropkin reads.
+SI_UNITS = {
+    "frame_rate": "Hz",
+    "pixel_size": "m",
+    "length": "m",
+    "time": "s",
+    "temperature": "K",
+    "surface_tension": "N/m",
+    "viscosity": "Pa*s",
+    "density": "kg/m^3",
+}
+
+
+def _where(key: str | None) -> str:
+    return key if key is not None else "quantity"
+
+
+def parse_quantity(text, unit: str, *, key: str | None = None, path=None) -> pint.Quantity:
+    """Parse text such as ``"20000 Hz"`` and check it has the dimension of `unit`.
+
+    Parameters
+    ----------
+    text : str or pint.Quantity
+        What the user wrote. A bare number is refused: dropkin never guesses a
+        unit.
+    unit : str
+        A unit of the expected dimension, e.g. ``"m"``, ``"Hz"``, ``"Pa*s"``;
+        it is named in the error message.
+    key : str, optional
+        The key or option the text came from, for the error message.
+    path : str or os.PathLike, optional
+        The file the text came from, for the error message.
+
+    Returns
+    -------
+    quantity : pint.Quantity
+        The parsed quantity, in the units the user wrote.
+
+    Raises
+    ------
+    QuantityError
+        For a bare number, unparsable text, a wrong dimension or a value that
+        is not finite.
+    """
+    expected = f"a value with a unit of {unit}, e.g. '1 {unit}'"
+    if isinstance(text, pint.Quantity):
+        quantity = text
+    elif isinstance(text, bool) or isinstance(text, Real):
+        raise QuantityError(
+            "a bare number has no unit", key=_where(key), value=text, expected=expected, path=path
+        )
+    elif not isinstance(text, str):
+        raise QuantityError(
+            f"must be a text with a unit, not {type(text).__name__}",
+            key=_where(key), value=text, expected=expected, path=path,
+        )
+    else:
+        try:
+            quantity = ureg.Quantity(text.strip())
+        except Exception as exc:  # pint raises many kinds (tokenize, undefined unit, ...)
+            reason = str(exc).splitlines()[0] if str(exc) else type(exc).__name__
+            raise QuantityError(
+                f"cannot be read as a quantity ({reason})",
+                key=_where(key), value=text, expected=expected, path=path,
+            ) from None
+        if not isinstance(quantity, pint.Quantity) or quantity.dimensionless:
+            raise QuantityError(
+                "a bare number has no unit", key=_where(key), value=text, expected=expected,
+                path=path,
+            )
+    target = ureg.Unit(unit)
+    if quantity.dimensionality != target.dimensionality:
+        raise QuantityError(
+            f"has the dimension {quantity.dimensionality}, not that of {unit}",
+            key=_where(key), value=text if isinstance(text, str) else str(text),
+            expected=expected, path=path,
+        )
+    magnitude = quantity.to(target).magnitude
+    if not math.isfinite(magnitude):
+        raise QuantityError(
+            "is not a finite number", key=_where(key), value=str(text), expected=expected,
+            path=path,
+        )
+    return quantity
+
+
+def parse_si(text, unit: str, *, key: str | None = None, path=None) -> float:
+    """Parse like :func:`parse_quantity` and return the magnitude in `unit` as a float.
+
+    `unit` should be the SI unit (``"m"``, ``"Hz"``, ``"K"``...): the result is
+    what the numeric code works with.
+    """
+    return float(parse_quantity(text, unit, key=key, path=path).to(unit).magnitude)
+
+
+class QuantityType(click.ParamType):
+    """A click parameter for a quantity: ``--pixel-size "2.5 um"``.
+
+    The value arrives as a float in `unit` (SI), checked; a parse or dimension
+    error becomes a usage error that names the option.
+
+    Parameters
+    ----------
+    unit : str
+        The unit the value is converted to, which also fixes the dimension.
+    """
+
+    def __init__(self, unit: str) -> None:
+        self.unit = unit
+        self.name = f"quantity [{unit}]"
+
+    def convert(self, value, param, ctx):
+        if isinstance(value, float):
+            return value
+        key = None if param is None else "--" + param.name.replace("_", "-")
+        try:
+            return parse_si(value, self.unit, key=key)
+        except QuantityError as exc:
+            self.fail(str(exc), param, ctx)
+
+    def __repr__(self) -> str:
+        return f"QuantityType({self.unit!r})"
