@@ -82,12 +82,19 @@ def parse_quantity(text, unit: str, *, key: str | None = None, path=None) -> pin
         quantity = text
     elif isinstance(text, bool) or isinstance(text, Real):
         raise QuantityError(
-            "a bare number has no unit", key=_where(key), value=text, expected=expected, path=path
+            "a bare number has no unit",
+            key=_where(key),
+            value=text,
+            expected=expected,
+            path=path,
         )
     elif not isinstance(text, str):
         raise QuantityError(
             f"must be a text with a unit, not {type(text).__name__}",
-            key=_where(key), value=text, expected=expected, path=path,
+            key=_where(key),
+            value=text,
+            expected=expected,
+            path=path,
         )
     else:
         try:
@@ -96,24 +103,35 @@ def parse_quantity(text, unit: str, *, key: str | None = None, path=None) -> pin
             reason = str(exc).splitlines()[0] if str(exc) else type(exc).__name__
             raise QuantityError(
                 f"cannot be read as a quantity ({reason})",
-                key=_where(key), value=text, expected=expected, path=path,
+                key=_where(key),
+                value=text,
+                expected=expected,
+                path=path,
             ) from None
         if not isinstance(quantity, pint.Quantity) or quantity.dimensionless:
             raise QuantityError(
-                "a bare number has no unit", key=_where(key), value=text, expected=expected,
+                "a bare number has no unit",
+                key=_where(key),
+                value=text,
+                expected=expected,
                 path=path,
             )
     target = ureg.Unit(unit)
     if quantity.dimensionality != target.dimensionality:
         raise QuantityError(
             f"has the dimension {quantity.dimensionality}, not that of {unit}",
-            key=_where(key), value=text if isinstance(text, str) else str(text),
-            expected=expected, path=path,
+            key=_where(key),
+            value=text if isinstance(text, str) else str(text),
+            expected=expected,
+            path=path,
         )
     magnitude = quantity.to(target).magnitude
     if not math.isfinite(magnitude):
         raise QuantityError(
-            "is not a finite number", key=_where(key), value=str(text), expected=expected,
+            "is not a finite number",
+            key=_where(key),
+            value=str(text),
+            expected=expected,
             path=path,
         )
     return quantity
