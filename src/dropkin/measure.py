@@ -1,0 +1,346 @@
+"""From a recording and its experiment to a radius series in SI units.
+
+:func:`measure` prepares the analysis on the first frames (the backlight, the
+dark level, the noise, the drops' geometry), then streams the recording in
+chunks through the per-frame image analysis of :mod:`dropkin.vision`,
+optionally in parallel processes, attaches an uncertainty and a status to
+every frame, finds the contact instant, and converts pixels to metres.
+"""
+
+from __future__ import annotations
+
+import dataclasses
+import hashlib
+import math
+from collections.abc import Callable
+from concurrent.futures import ProcessPoolExecutor
+from dataclasses import dataclass
+from pathlib import Path
+
+import numpy as np
+
+from . import vision
+from ._contact import estimate_contact
+from ._version import __version__
+from .errors import ExperimentError, MeasurementError
+from .series import RadiusSeries
+
+__all__ = ["MeasureOptions", "Preparation", "measure", "prepare", "recording_sha256"]
+
+
+@dataclass(frozen=True)
+class MeasureOptions:
+    """Settings of a measurement (all optional).
+
+    Attributes
+    ----------
+    roi : tuple of int or None
+        Region of interest (row_start, row_stop, col_start, col_stop), in
+        pixels of the full frame; only this part of each frame is analysed.
+    level : float
+        Edge level: the fraction of the way from the drops' dark level to the
+        local background at which the outline lies (0.5, the midpoint of a
+        blurred edge, unless a recording needs another by hand).
+    chunk_size : int
+        Frames per chunk (memory holds a few chunks at most).
+    jobs : int
+        Worker processes for the chunks (1: in this process).
+    gap_blurs : float
+        The neck counts as resolved once the gap beside it is this many edge
+        blurs (sigma, px) wide; see :func:`dropkin.vision.neck_from_band`.
+    """
+
+    roi: tuple[int, int, int, int] | None = None
+    level: float = 0.5
+    chunk_size: int = 64
+    jobs: int = 1
+    gap_blurs: float = 3.0
+
+
+@dataclass(frozen=True)
+class Preparation:
+    """What the first frames tell, used for every frame.
+
+    Attributes
+    ----------
+    illumination : (M, N) ndarray
+        Backlight model over the analysed region.
+    dark : float
+        Grey level of the drops' dark rim.
+    noise : float
+        Standard deviation of the transmission on the background.
+    blur : float
+        Edge blur sigma (px).
+    pair : DropPair or None
+        The drops (coalescence).
+    reference_frame : int
+        Index (in the recording) of the frame they were found in.
+    """
+
+    illumination: np.ndarray
+    dark: float
+    noise: float
+    blur: float
+    pair: object | None
+    reference_frame: int
+
+
+def _crop(frames, roi):
+    if roi is None:
+        return frames
+    r0, r1, c0, c1 = roi
+    return frames[..., r0:r1, c0:c1]
+
+
+def _check_roi(roi, shape):
+    if roi is None:
+        return None
+    r0, r1, c0, c1 = (int(v) for v in roi)
+    m, n = shape
+    if not (0 <= r0 < r1 <= m and 0 <= c0 < c1 <= n) or r1 - r0 < 8 or c1 - c0 < 8:
+        raise ExperimentError(
+            f"lies outside the {m} x {n} frame or is smaller than 8 x 8 px",
+            key="--roi", value=f"{r0}:{r1},{c0}:{c1}",
+            expected=f"rows within 0:{m} and columns within 0:{n}",
+        )
+    return (r0, r1, c0, c1)
+
+
+def _noise(trans) -> float:
+    """Noise of the transmission on the background, from neighbour differences."""
+    diff = np.diff(trans, axis=1)
+    bright = (trans[:, 1:] > 0.8) & (trans[:, :-1] > 0.8)
+    values = diff[bright]
+    if values.size < 100:
+        return 0.01
+    mad = float(np.median(np.abs(values - np.median(values))))
+    return max(1.4826 * mad / math.sqrt(2.0), 1e-4)
+
+
+def prepare(recording, *, geometry: str, options: MeasureOptions = MeasureOptions()):
+    """Analyse the first frames: backlight, dark level, noise and the drops.
+
+    The drops are looked for in the first frame, then in up to ten frames
+    spread over the first tenth of the recording.
+
+    Raises
+    ------
+    MeasurementError
+        If no frame among those shows the drops.
+    """
+    n = len(recording)
+    candidates = sorted({0, *np.linspace(0, max(n // 10, 1), 10, dtype=int).tolist()})
+    reason = "no frames"
+    for index in candidates:
+        if index >= n:
+            break
+        frame = _crop(recording[index], options.roi).astype(np.float64)
+        illumination = vision.fit_illumination(frame)
+        dark = vision.dark_level(frame)
+        if float(np.median(illumination)) - dark < 1e-3 * max(abs(dark), 1.0):
+            reason = "the frame has no contrast"
+            continue
+        trans = vision.transmission(frame, illumination, dark)
+        if geometry != "coalescence":
+            raise MeasurementError(f"measuring {geometry} is not available yet")
+        try:
+            pair = vision.find_drop_pair(trans, level=options.level)
+        except MeasurementError as exc:
+            reason = exc.message
+            continue
+        blur = vision.edge_blur(trans, pair)
+        return Preparation(illumination, dark, _noise(trans), blur, pair, index)
+    raise MeasurementError(f"the drops were not found in the first frames ({reason})",
+                           path=recording.path)
+
+
+def _measure_chunk(args):
+    """One chunk, in this process or a worker (module level: picklable)."""
+    recording, start, stop, prep, options = args
+    _, frames = next(recording[start:stop].chunks(stop - start))
+    return start, _neck_chunk(_crop(frames, options.roi), prep, options)
+
+
+def _neck_chunk(frames, prep, options):
+    return vision.measure_necks(
+        frames, prep.pair, illumination=prep.illumination, dark=prep.dark, noise=prep.noise,
+        blur=prep.blur, level=options.level, gap_blurs=options.gap_blurs,
+    )
+
+
+def _stream(recording, prep, options, progress):
+    """Yield (start, NeckResult) over the whole recording, in order."""
+    n = len(recording)
+    size = max(int(options.chunk_size), 1)
+    if options.jobs <= 1:
+        done = 0
+        for start, chunk in recording.chunks(size):
+            result = _neck_chunk(_crop(chunk, options.roi), prep, options)
+            done += len(chunk)
+            if progress is not None:
+                progress(done, n)
+            yield start, result
+        return
+    starts = list(range(0, n, size))
+    with ProcessPoolExecutor(max_workers=options.jobs) as pool:
+        # Keep at most two chunks per worker in flight: memory stays bounded.
+        window = 2 * options.jobs
+        pending = []
+        done = 0
+        for start in starts:
+            pending.append(
+                pool.submit(_measure_chunk, (recording, start, min(start + size, n), prep, options))
+            )
+            if len(pending) >= window:
+                first, result = pending.pop(0).result()
+                done += len(result.radius)
+                if progress is not None:
+                    progress(done, n)
+                yield first, result
+        for future in pending:
+            first, result = future.result()
+            done += len(result.radius)
+            if progress is not None:
+                progress(done, n)
+            yield first, result
+
+
+def recording_sha256(recording) -> str:
+    """SHA-256 of the recording's bytes (a folder: every frame file, in order)."""
+    digest = hashlib.sha256()
+    paths = recording.files if recording.files is not None else (recording.path,)
+    for path in paths:
+        with open(path, "rb") as handle:
+            for block in iter(lambda h=handle: h.read(1 << 20), b""):
+                digest.update(block)
+    return digest.hexdigest()
+
+
+def measure(
+    recording, experiment, *, options: MeasureOptions = MeasureOptions(),
+    progress: Callable[[int, int], None] | None = None, keep_edges: bool = False,
+):
+    """Measure the neck or contact radius in every frame of a recording.
+
+    Parameters
+    ----------
+    recording : Recording
+        The frames, with times and pixel size.
+    experiment : Experiment
+        Geometry, view and drops; its pixel size must be known (here or in
+        the recording).
+    options : MeasureOptions, optional
+    progress : callable, optional
+        Called as ``progress(frames_done, frames_total)``.
+    keep_edges : bool, optional
+        Also return the per-frame edge points (for overlays).
+
+    Returns
+    -------
+    series : RadiusSeries
+    extras : dict
+        ``preparation`` and, with `keep_edges`, ``edges`` ((F, 2, 2) px, in
+        full-frame coordinates).
+
+    Raises
+    ------
+    ExperimentError
+        If the pixel size or the geometry is not known.
+    MeasurementError
+        If the drops are never found.
+    """
+    geometry = experiment.setup.geometry
+    if geometry is None:
+        raise ExperimentError(
+            "is needed to measure", key="setup.geometry", path=experiment.path,
+            expected="coalescence or spreading",
+        )
+    pixel = recording.pixel_size or experiment.recording.pixel_size
+    if pixel is None:
+        raise ExperimentError(
+            "is needed to give radii in metres", key="recording.pixel_size",
+            path=experiment.path or recording.path, expected="e.g. pixel_size = \"5 um\"",
+        )
+    options = dataclasses.replace(options, roi=_check_roi(options.roi, recording.shape))
+    prep = prepare(recording, geometry=geometry, options=options)
+    n = len(recording)
+    radius = np.full(n, np.nan)
+    radius_err = np.full(n, np.nan)
+    codes = np.zeros(n, dtype=np.int8)
+    edges = np.full((n, 2, 2), np.nan)
+    gap = np.full(n, np.nan)
+    for start, result in _stream(recording, prep, options, progress):
+        stop = start + len(result.radius)
+        radius[start:stop] = result.radius
+        radius_err[start:stop] = result.radius_err
+        codes[start:stop] = result.status
+        edges[start:stop] = result.edges
+        gap[start:stop] = result.gap
+    status = tuple(vision.STATUS_NAMES[c] for c in codes)
+    # In pixels: gaps below a tenth of a pixel count as closed.
+    contact = estimate_contact(
+        recording.times, radius, radius_err, status, gap=gap,
+        early_radius=float(min(prep.pair.radii)) / 3.0, gap_floor=0.1,
+    )
+    if contact:
+        # Frames before the contact instant that showed neither a gap nor a
+        # resolved neck were before contact too, by the best estimate.
+        times = np.asarray(recording.times)
+        early = (times < contact.time) & (codes == vision.UNRESOLVED)
+        codes[early] = vision.BEFORE_CONTACT
+        radius[early] = np.nan
+        radius_err[early] = np.nan
+        edges[early] = np.nan
+        status = tuple(vision.STATUS_NAMES[c] for c in codes)
+    if options.roi is not None:
+        edges += np.array([options.roi[0], options.roi[2]], dtype=np.float64)
+    pair = prep.pair
+    radii_px = pair.radii
+    drop_radius = experiment.drops.radius
+    if drop_radius is None:
+        drop_radius = float(np.mean(radii_px)) * pixel
+    details = {
+        "drop_radii_m": [float(r) * pixel for r in radii_px],
+        "drop_radius_origin": "experiment file" if experiment.drops.radius else "circle fit",
+        "contact_bracket_s": None if contact.bracket is None else list(contact.bracket),
+        "contact_method": contact.method,
+        "edge_level": options.level,
+        "noise_transmission": prep.noise,
+        "edge_blur_px": prep.blur,
+        "unresolved_criterion": (
+            "gap beside the neck r^2/2 (1/R0 + 1/R1) narrower than "
+            f"{options.gap_blurs:g} edge blurs ({options.gap_blurs * prep.blur:.3g} px)"
+        ),
+        "reference_frame": int(recording.source_frames[prep.reference_frame]),
+    }
+    series = RadiusSeries(
+        frame=np.asarray(recording.source_frames, dtype=np.int64),
+        time=np.asarray(recording.times, dtype=np.float64),
+        radius=radius * pixel,
+        radius_err=radius_err * pixel,
+        status=status,
+        contact_time=contact.time,
+        contact_time_err=contact.err,
+        drop_radius=drop_radius,
+        geometry=geometry,
+        view=experiment.setup.view,
+        frame_rate=recording.frame_rate,
+        pixel_size=pixel,
+        provenance={
+            "tool": "dropkin",
+            "version": __version__,
+            "input": str(Path(recording.path).resolve()),
+            "options": {
+                "roi": None if options.roi is None else list(options.roi),
+                "level": options.level,
+                "chunk_size": options.chunk_size,
+                "jobs": options.jobs,
+                "gap_blurs": options.gap_blurs,
+            },
+        },
+        details=details,
+    )
+    extras = {"preparation": prep, "contact": contact}
+    if keep_edges:
+        extras["edges"] = edges
+    return series, extras

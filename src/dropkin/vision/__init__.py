@@ -1,0 +1,57 @@
+"""Per-frame image analysis: pure functions on arrays, in pixels.
+
+Nothing here reads files or knows units; :mod:`dropkin.measure` streams the
+frames and turns pixels into metres.
+"""
+
+from ._circle import CircleFit as CircleFit
+from ._circle import fit_circle as fit_circle
+from ._neck import AT_EDGE as AT_EDGE
+from ._neck import BEFORE_CONTACT as BEFORE_CONTACT
+from ._neck import NOT_FOUND as NOT_FOUND
+from ._neck import OK as OK
+from ._neck import STATUS_NAMES as STATUS_NAMES
+from ._neck import UNRESOLVED as UNRESOLVED
+from ._neck import Band as Band
+from ._neck import NeckResult as NeckResult
+from ._neck import make_band as make_band
+from ._neck import measure_necks as measure_necks
+from ._neck import neck_from_band as neck_from_band
+from ._neck import sample_band as sample_band
+from ._pair import DropPair as DropPair
+from ._pair import edge_blur as edge_blur
+from ._pair import find_drop_pair as find_drop_pair
+from ._pair import substrate_rows as substrate_rows
+from ._silhouette import background_from_frames as background_from_frames
+from ._silhouette import dark_level as dark_level
+from ._silhouette import fit_illumination as fit_illumination
+from ._silhouette import silhouette_mask as silhouette_mask
+from ._silhouette import threshold_midpoint as threshold_midpoint
+from ._silhouette import transmission as transmission
+
+__all__ = [
+    "AT_EDGE",
+    "BEFORE_CONTACT",
+    "NOT_FOUND",
+    "OK",
+    "STATUS_NAMES",
+    "UNRESOLVED",
+    "Band",
+    "CircleFit",
+    "DropPair",
+    "NeckResult",
+    "background_from_frames",
+    "dark_level",
+    "edge_blur",
+    "find_drop_pair",
+    "fit_circle",
+    "fit_illumination",
+    "make_band",
+    "measure_necks",
+    "neck_from_band",
+    "sample_band",
+    "silhouette_mask",
+    "substrate_rows",
+    "threshold_midpoint",
+    "transmission",
+]

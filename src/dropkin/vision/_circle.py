@@ -1,0 +1,110 @@
+"""Circle fits to outline points, robust to the parts that are not circular."""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+import numpy as np
+from scipy import optimize
+
+__all__ = ["CircleFit", "fit_circle"]
+
+
+@dataclass(frozen=True)
+class CircleFit:
+    """A circle fitted to outline points.
+
+    Attributes
+    ----------
+    centre : (2,) ndarray
+        Centre as (row, col), in pixels.
+    radius : float
+        Radius in pixels.
+    rms : float
+        Root-mean-square distance of the points used from the circle (px).
+    used : (P,) ndarray of bool
+        Which of the given points were kept (the others were trimmed as
+        outliers: a needle, a neighbour, the cut by a substrate).
+    """
+
+    centre: np.ndarray
+    radius: float
+    rms: float
+    used: np.ndarray
+
+
+def _algebraic(points):
+    """Kasa's linear least-squares circle (a good first guess)."""
+    r, c = points[:, 0], points[:, 1]
+    design = np.column_stack([r, c, np.ones_like(r)])
+    rhs = r**2 + c**2
+    (a, b, k), *_ = np.linalg.lstsq(design, rhs, rcond=None)
+    centre = np.array([a / 2.0, b / 2.0])
+    radius = float(np.sqrt(max(k + centre @ centre, 0.0)))
+    return centre, radius
+
+
+def _geometric(points, centre, radius):
+    """Least squares of the orthogonal distances (what CircleModel also minimises)."""
+
+    def residuals(p):
+        return np.hypot(points[:, 0] - p[0], points[:, 1] - p[1]) - p[2]
+
+    def jacobian(p):
+        d = np.maximum(np.hypot(points[:, 0] - p[0], points[:, 1] - p[1]), 1e-12)
+        return np.column_stack(
+            [-(points[:, 0] - p[0]) / d, -(points[:, 1] - p[1]) / d, -np.ones(len(points))]
+        )
+
+    sol = optimize.least_squares(
+        residuals, np.array([centre[0], centre[1], radius]), jac=jacobian, method="lm"
+    )
+    return sol.x[:2].copy(), float(sol.x[2])
+
+
+def fit_circle(points, *, trim: float = 3.0, iterations: int = 6) -> CircleFit:
+    """Fit a circle to outline points, trimming outliers.
+
+    The fit minimises the orthogonal distances (geometric fit), starting from
+    Kasa's algebraic fit; after each pass, points farther from the circle than
+    `trim` robust standard deviations (1.4826 x the median absolute residual,
+    at least 0.5 px) are left out and the fit repeated.
+
+    Parameters
+    ----------
+    points : (P, 2) ndarray
+        Outline points as (row, col), P >= 3.
+    trim : float, optional
+        Outlier cut in robust standard deviations.
+    iterations : int, optional
+        Passes of fitting and trimming.
+
+    Returns
+    -------
+    CircleFit
+
+    Examples
+    --------
+    >>> angle = np.linspace(0, 2 * np.pi, 60, endpoint=False)
+    >>> pts = np.column_stack([30 + 12 * np.sin(angle), 40 + 12 * np.cos(angle)])
+    >>> fit = fit_circle(pts)
+    >>> np.round(fit.centre, 6).tolist(), round(fit.radius, 6)
+    ([30.0, 40.0], 12.0)
+    """
+    points = np.asarray(points, dtype=np.float64)
+    if points.ndim != 2 or points.shape[1] != 2 or len(points) < 3:
+        raise ValueError(f"points must be a (P, 2) array with P >= 3, got {points.shape}")
+    used = np.ones(len(points), dtype=bool)
+    centre, radius = _algebraic(points)
+    for _ in range(iterations):
+        centre, radius = _geometric(points[used], centre, radius)
+        resid = np.abs(np.hypot(points[:, 0] - centre[0], points[:, 1] - centre[1]) - radius)
+        scale = max(1.4826 * float(np.median(resid[used])), 0.5 / trim)
+        new_used = resid <= trim * scale
+        if new_used.sum() < 3 or np.array_equal(new_used, used):
+            break
+        used = new_used
+    resid = np.hypot(points[used, 0] - centre[0], points[used, 1] - centre[1]) - radius
+    return CircleFit(
+        centre=centre, radius=radius, rms=float(np.sqrt(np.mean(resid**2))), used=used
+    )

@@ -1,0 +1,398 @@
+"""The neck: half the narrowest width of the bridge, across the line of centres.
+
+Only a band around the contact point is looked at. The band is a grid of
+sample points ``origin + s * axis + u * normal``: ``s`` runs along the line of
+centres, ``u`` across it. Frames are sampled on the grid by bilinear
+interpolation (a whole chunk of frames at once), turned into transmission, and
+in every column ``s`` the two edges of the bridge are found going outward from
+the line of centres, at sub-pixel positions where the transmission crosses
+one half (linear interpolation between the two samples around the crossing).
+The neck is the narrowest column, refined by a parabola through its
+neighbours.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+import numpy as np
+
+__all__ = [
+    "STATUS_NAMES",
+    "OK",
+    "BEFORE_CONTACT",
+    "UNRESOLVED",
+    "NOT_FOUND",
+    "AT_EDGE",
+    "Band",
+    "make_band",
+    "sample_band",
+    "NeckResult",
+    "neck_from_band",
+]
+
+#: Per-frame status, as written in radius.csv; the codes index this tuple.
+STATUS_NAMES = ("ok", "before-contact", "unresolved", "not-found", "at-edge")
+OK, BEFORE_CONTACT, UNRESOLVED, NOT_FOUND, AT_EDGE = range(5)
+#: Internal: the bridge is wider than the band (the caller widens the band).
+BAND_LIMIT = 5
+
+
+@dataclass(frozen=True)
+class Band:
+    """A sampling grid across the line of centres.
+
+    Attributes
+    ----------
+    origin : (2,) ndarray
+        The point (row, col) where ``s = u = 0``.
+    axis, normal : (2,) ndarray
+        Unit vectors along and across the line of centres.
+    s : (S,) ndarray
+        Positions along the axis (px).
+    u : (U,) ndarray
+        Positions across, symmetric, ``u[U // 2] == 0`` (px).
+    index : (4, U, S) ndarray of intp
+        Flat indices of the four neighbours of each sample point.
+    weight : (4, U, S) ndarray of float32
+        Their bilinear weights.
+    valid : (U, S) ndarray of bool
+        Sample points whose four neighbours lie inside the frame.
+    """
+
+    origin: np.ndarray
+    axis: np.ndarray
+    normal: np.ndarray
+    s: np.ndarray
+    u: np.ndarray
+    index: np.ndarray
+    weight: np.ndarray
+    valid: np.ndarray
+
+    @property
+    def points(self) -> np.ndarray:
+        """(2, U, S) array of the sample points' (row, col)."""
+        return (
+            self.origin[:, None, None]
+            + self.axis[:, None, None] * self.s[None, None, :]
+            + self.normal[:, None, None] * self.u[None, :, None]
+        )
+
+
+def make_band(
+    shape, origin, axis, *, s_centre: float, s_half: float, u_half: float,
+    s_step: float = 0.5, u_step: float = 1.0,
+) -> Band:
+    """Build the sampling grid for frames of `shape`.
+
+    Parameters
+    ----------
+    shape : tuple of int
+        (M, N) of the frames.
+    origin : (2,) array_like
+        Contact point (row, col).
+    axis : (2,) array_like
+        Unit vector along the line of centres.
+    s_centre, s_half : float
+        Columns cover ``s_centre - s_half ... s_centre + s_half`` (px).
+    u_half : float
+        Rows cover ``-u_half ... u_half`` (px).
+    s_step, u_step : float, optional
+        Grid spacing (px).
+    """
+    origin = np.asarray(origin, dtype=np.float64)
+    axis = np.asarray(axis, dtype=np.float64)
+    axis = axis / np.hypot(*axis)
+    normal = np.array([-axis[1], axis[0]])
+    n_s = max(int(np.ceil(s_half / s_step)), 1)
+    n_u = max(int(np.ceil(u_half / u_step)), 2)
+    s = s_centre + s_step * np.arange(-n_s, n_s + 1)
+    u = u_step * np.arange(-n_u, n_u + 1)
+    rows = origin[0] + axis[0] * s[None, :] + normal[0] * u[:, None]
+    cols = origin[1] + axis[1] * s[None, :] + normal[1] * u[:, None]
+    r0 = np.floor(rows)
+    c0 = np.floor(cols)
+    fr = (rows - r0).astype(np.float32)
+    fc = (cols - c0).astype(np.float32)
+    m, n = shape
+    valid = (r0 >= 0) & (r0 <= m - 2) & (c0 >= 0) & (c0 <= n - 2)
+    r0 = np.clip(r0, 0, m - 2).astype(np.intp)
+    c0 = np.clip(c0, 0, n - 2).astype(np.intp)
+    base = r0 * n + c0
+    index = np.stack([base, base + 1, base + n, base + n + 1])
+    weight = np.stack([(1 - fr) * (1 - fc), (1 - fr) * fc, fr * (1 - fc), fr * fc])
+    return Band(origin, axis, normal, s, u, index, weight.astype(np.float32), valid)
+
+
+def sample_band(frames, band: Band):
+    """Bilinear samples of a chunk of frames on the band's grid.
+
+    Parameters
+    ----------
+    frames : (K, M, N) ndarray
+        Frames (any numeric dtype), or illumination as (1, M, N).
+
+    Returns
+    -------
+    samples : (K, U, S) ndarray of float32
+    """
+    frames = np.asarray(frames)
+    flat = frames.reshape(frames.shape[0], -1)
+    out = None
+    for idx, w in zip(band.index, band.weight, strict=True):
+        term = flat[:, idx].astype(np.float32, copy=False) * w
+        out = term if out is None else out + term
+    return out
+
+
+@dataclass(frozen=True)
+class NeckResult:
+    """Neck measurements for a chunk of frames (pixels).
+
+    Attributes
+    ----------
+    radius : (K,) ndarray
+        Neck radius (px): half the narrowest bridge width; NaN where there
+        is no measurement.
+    radius_err : (K,) ndarray
+        Its standard uncertainty from image noise (px).
+    s_neck : (K,) ndarray
+        Where along the axis the neck is (px from the band origin).
+    edges : (K, 2, 2) ndarray
+        The two neck edge points (row, col) in each frame, for overlays.
+    status : (K,) ndarray of int
+        Codes into :data:`STATUS_NAMES`, or ``BAND_LIMIT`` (internal).
+    gap : (K,) ndarray
+        Width of the gap between the drops on the line of centres (px): the
+        transmission summed along the axis, which blur and pixel averaging
+        conserve, so that gaps narrower than a pixel still show. About zero
+        (within noise) once the drops touch.
+    """
+
+    radius: np.ndarray
+    radius_err: np.ndarray
+    s_neck: np.ndarray
+    edges: np.ndarray
+    status: np.ndarray
+    gap: np.ndarray
+
+
+def _edge_outward(side, valid_side, level, step):
+    """First crossing of `level` going outward in each column.
+
+    `side` is (K, H, S) with row 0 on the axis; returns the distance from the
+    axis (K, S), the local slope |dT/du| at the crossing, and masks for
+    "no crossing inside the band" and "crossing next to an invalid sample".
+    """
+    bright = side >= level
+    bright[:, 0, :] = False
+    j = np.argmax(bright, axis=1)  # (K, S): first bright sample, 0 if none
+    none = j == 0
+    j = np.maximum(j, 1)
+    t_in = np.take_along_axis(side, (j - 1)[:, None, :], axis=1)[:, 0, :]
+    t_out = np.take_along_axis(side, j[:, None, :], axis=1)[:, 0, :]
+    rise = np.maximum(t_out - t_in, 1e-6)
+    dist = (j - 1 + np.clip((level - t_in) / rise, 0.0, 1.0)) * step
+    near_invalid = ~valid_side[j] | ~valid_side[j - 1]
+    return dist, rise / step, none, near_invalid
+
+
+def neck_from_band(
+    trans, band: Band, *, noise: float, radii, level: float = 0.5, min_gap: float = 1.0,
+    err_floor: float = 0.1,
+) -> NeckResult:
+    """Measure the neck in a chunk of frames sampled on a band.
+
+    Parameters
+    ----------
+    trans : (K, U, S) ndarray
+        Transmission sampled on the band (see :func:`sample_band`).
+    band : Band
+    noise : float
+        Standard deviation of the transmission on the background (image
+        noise), for the uncertainty.
+    radii : (2,) array_like
+        The two drops' radii (px), for the resolution criterion.
+    level : float, optional
+        Transmission of the outline.
+    min_gap : float, optional
+        Smallest gap (px) between the drop surfaces beside the neck that the
+        optics resolve; see Notes. :func:`measure_necks` sets it to three
+        times the edges' blur (see :func:`edge_blur`).
+    err_floor : float, optional
+        Uncertainty floor (px) for interpolation error.
+
+    Returns
+    -------
+    NeckResult
+
+    Notes
+    -----
+    *Contact*: a frame is before contact while some column of the band is
+    bright on the line of centres (a gap is visible between the drops).
+
+    *Resolution*: next to a neck of radius r, two spheres of radii R0 and R1
+    that touch leave a gap of about ``g = r**2 / 2 * (1/R0 + 1/R1)`` between
+    their surfaces (the sagitta of each, ``r**2 / (2 R)``, added). While
+    ``g < min_gap`` the notch beside the bridge is too thin for the optics:
+    blur fills its tip, the half-transmission contour retreats from it, and
+    the measured width is too large. Such frames are ``unresolved``. On
+    synthetic frames with a Gaussian blur sigma, ``g`` of three sigma kept the
+    bias of the radius below about 0.35 px (``tests/vision/test_neck.py``).
+    """
+    trans = np.asarray(trans, dtype=np.float32)
+    k, n_u, n_s = trans.shape
+    c = n_u // 2
+    step = float(band.u[1] - band.u[0])
+    status = np.full(k, OK, dtype=np.int8)
+    radius = np.full(k, np.nan)
+    radius_err = np.full(k, np.nan)
+    s_neck = np.full(k, np.nan)
+    edges = np.full((k, 2, 2), np.nan)
+
+    s_step = float(band.s[1] - band.s[0]) if n_s > 1 else 1.0
+    on_axis = trans[:, c, band.valid[c]]
+    if on_axis.shape[1]:
+        # Relative to the drops' own level on the axis (the outer quarters of
+        # the band, inside the drops), so that neither the dark level's offset
+        # nor clipping biases the sum.
+        quarter = max(on_axis.shape[1] // 4, 1)
+        ends = np.concatenate([on_axis[:, :quarter], on_axis[:, -quarter:]], axis=1)
+        ref = np.median(ends, axis=1, keepdims=True)
+        gap_width = np.minimum(on_axis - ref, 1.0).sum(axis=1) * s_step
+    else:
+        gap_width = np.full(k, np.nan)
+    on_axis_dark = trans[:, c, :] < level
+    gap_seen = ~on_axis_dark & band.valid[c][None, :]
+    before = gap_seen.any(axis=1)
+    nothing = ~((trans < level) & band.valid[None]).any(axis=(1, 2))
+
+    up, slope_up, none_up, inv_up = _edge_outward(trans[:, c:, :], band.valid[c:, 0], level, step)
+    down, slope_dn, none_dn, inv_dn = _edge_outward(
+        trans[:, c::-1, :], band.valid[c::-1, 0], level, step
+    )
+    width = up + down
+    bad_col = none_up | none_dn | ~on_axis_dark
+    width = np.where(bad_col, np.inf, width)
+    m = np.argmin(width, axis=1)
+    rows = np.arange(k)
+    w_min = width[rows, m]
+    # Parabola through the narrowest column and its neighbours (sub-sample in s).
+    ml, mr = np.clip(m - 1, 0, n_s - 1), np.clip(m + 1, 0, n_s - 1)
+    wl, wr = width[rows, ml], width[rows, mr]
+    interior = (m > 0) & (m < n_s - 1) & np.isfinite(wl) & np.isfinite(wr)
+    curv = np.where(interior, wl + wr - 2 * w_min, 0.0)
+    offset = np.where(curv > 1e-9, 0.5 * (wl - wr) / np.where(curv > 1e-9, curv, 1.0), 0.0)
+    offset = np.clip(offset, -0.5, 0.5)
+    w_ref = w_min - 0.25 * curv * offset**2
+    radius_all = 0.5 * w_ref
+    su = slope_up[rows, m]
+    sd = slope_dn[rows, m]
+    err = 0.5 * np.hypot(noise / su, noise / sd)
+    err_all = np.hypot(err, err_floor)
+
+    r_px = np.asarray(radii, dtype=np.float64)
+    gap = radius_all**2 * 0.5 * (1.0 / r_px[0] + 1.0 / r_px[1])
+    limit = (none_up | none_dn)[rows, m] | ~np.isfinite(w_min)
+    at_edge = (inv_up | inv_dn)[rows, m]
+
+    for i in range(k):
+        if nothing[i]:
+            status[i] = NOT_FOUND
+            continue
+        if before[i]:
+            status[i] = BEFORE_CONTACT
+            continue
+        if not np.isfinite(w_min[i]) or limit[i]:
+            status[i] = BAND_LIMIT
+            continue
+        radius[i] = radius_all[i]
+        radius_err[i] = err_all[i]
+        s_neck[i] = band.s[m[i]] + offset[i] * s_step
+        base = band.origin + band.axis * s_neck[i]
+        edges[i, 0] = base + band.normal * up[i, m[i]]
+        edges[i, 1] = base - band.normal * down[i, m[i]]
+        if at_edge[i]:
+            status[i] = AT_EDGE
+        elif gap[i] < min_gap:
+            status[i] = UNRESOLVED
+    return NeckResult(radius, radius_err, s_neck, edges, status, gap_width)
+
+
+def measure_necks(
+    frames, pair, *, illumination, dark: float, noise: float, blur: float,
+    level: float = 0.5, gap_blurs: float = 3.0,
+) -> NeckResult:
+    """Neck radius in each frame of a chunk, looking only at a band around the neck.
+
+    The band is sized from the chunk's last frame (measured first, on a band
+    as wide as the smaller drop), since the neck grows; frames whose bridge
+    does not fit, or whose narrowest column is at the band's end, are
+    measured again on the full band. Chunks are independent of each other, so
+    they can be measured in parallel.
+
+    Parameters
+    ----------
+    frames : (K, M, N) ndarray
+        Raw frames.
+    pair : DropPair
+        The drops, from :func:`find_drop_pair`.
+    illumination : (M, N) ndarray
+        Backlight model (see :func:`fit_illumination`).
+    dark : float
+        Grey level of the drops' dark rim.
+    noise : float
+        Transmission noise on the background.
+    blur : float
+        Edge blur sigma (px), from :func:`edge_blur`.
+    level : float, optional
+        As for :func:`neck_from_band`.
+    gap_blurs : float, optional
+        The neck counts as resolved once the gap beside it is this many blur
+        sigmas wide (``min_gap = gap_blurs * blur``).
+
+    Returns
+    -------
+    NeckResult
+    """
+    frames = np.asarray(frames)
+    if frames.ndim != 3:
+        raise ValueError(f"frames must be (K, M, N), got shape {frames.shape}")
+    shape = frames.shape[1:]
+    r_small = float(min(pair.radii))
+    full_s = 0.25 * r_small + 6.0
+    full_u = 1.1 * r_small + 4.0
+    illum = illumination[None]
+
+    def run(sub, s_centre, s_half, u_half, step):
+        band = make_band(
+            shape, pair.contact_point, pair.axis, s_centre=s_centre, s_half=s_half,
+            u_half=u_half, s_step=step, u_step=1.0,
+        )
+        span = np.maximum(sample_band(illum, band) - np.float32(dark), 1e-6)
+        trans = (sample_band(sub, band) - np.float32(dark)) / span
+        result = neck_from_band(
+            trans, band, noise=noise, radii=pair.radii, level=level,
+            min_gap=gap_blurs * blur,
+        )
+        ends = np.isin(result.s_neck, (band.s[0], band.s[-1]))
+        return result, ends
+
+    step = 0.5 if r_small < 80 else 1.0
+    probe, _ = run(frames[-1:], 0.0, full_s, full_u, step)
+    if np.isfinite(probe.radius[0]):
+        r_last, s_last = float(probe.radius[0]), float(probe.s_neck[0])
+        result, ends = run(
+            frames, s_last, min(0.15 * r_last + 6.0, full_s), min(1.3 * r_last + 6.0, full_u), step
+        )
+    else:
+        result, ends = run(frames, 0.0, full_s, full_u, step)
+        ends[:] = False
+    redo = (result.status == BAND_LIMIT) | ends
+    if redo.any():
+        again, _ = run(frames[redo], 0.0, full_s, full_u, step)
+        for name in ("radius", "radius_err", "s_neck", "edges", "status", "gap"):
+            getattr(result, name)[redo] = getattr(again, name)
+    status = result.status
+    status[status == BAND_LIMIT] = NOT_FOUND
+    return result
