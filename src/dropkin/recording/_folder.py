@@ -1,0 +1,154 @@
+"""Reader for a folder of frame files: PNG, TIFF, BMP or JPEG, one frame each.
+
+The frames are the image files of the folder (suffixes compared without case),
+in natural order: runs of digits compare as numbers wherever they appear, so
+``shot_2.png`` comes before ``shot_10.png``. Hidden files, sub-folders and other
+files (``experiment.toml``, ``truth.json``...) are ignored. Image kinds may be
+mixed as long as every frame has the same size and sample type; that is
+checked for every file at open time from its header, and the first file that
+differs is named.
+
+Pixels are decoded with ``cv2.imread(path, cv2.IMREAD_UNCHANGED)``, or with
+tifffile for TIFF files it can decode, so 8- and 16-bit samples arrive exactly
+as stored (12-bit camera data in 16-bit words are not rescaled).
+"""
+
+from __future__ import annotations
+
+import re
+from pathlib import Path
+
+import cv2
+import numpy as np
+import tifffile
+
+from ..errors import RecordingError
+from ._gray import notes_for_channels, to_gray
+from ._headers import IMAGE_SUFFIXES, FrameHeader, read_header
+
+__all__ = ["FRAME_SUFFIXES", "ImageFolder", "open_image_folder", "natural_key"]
+
+#: Suffixes of the frame files an image folder may hold (compared without case).
+FRAME_SUFFIXES = IMAGE_SUFFIXES
+
+_DIGITS = re.compile(r"(\d+)")
+
+
+def natural_key(name: str) -> tuple:
+    """Sort key that compares runs of digits in `name` as numbers.
+
+    Examples
+    --------
+    >>> sorted(["shot_10.png", "shot_2.png", "Shot_1.png"], key=natural_key)
+    ['Shot_1.png', 'shot_2.png', 'shot_10.png']
+    """
+    parts = []
+    for k, part in enumerate(_DIGITS.split(name)):
+        if k % 2:
+            parts.append((0, int(part)))
+        elif part:
+            parts.append((1, part.casefold()))
+    return (tuple(parts), name)
+
+
+def frame_files(folder: Path) -> list[Path]:
+    """The frame files of `folder`, in natural order."""
+    files = [
+        entry
+        for entry in folder.iterdir()
+        if not entry.name.startswith(".")
+        and entry.suffix.lower() in FRAME_SUFFIXES
+        and entry.is_file()
+    ]
+    return sorted(files, key=lambda entry: natural_key(entry.name))
+
+
+class ImageFolder:
+    """The frames of an image folder; made by :func:`open_image_folder`."""
+
+    kind = "image folder"
+    timing = None
+
+    def __init__(self, folder: Path) -> None:
+        self.path = folder
+        files = frame_files(folder)
+        if not files:
+            raise RecordingError(
+                f"holds no frames (no files ending in {', '.join(FRAME_SUFFIXES)})",
+                path=folder,
+            )
+        first = self._header(files[0], 0)
+        headers = [first]
+        for i, file in enumerate(files[1:], start=1):
+            header = self._header(file, i)
+            if header.describe() != first.describe():
+                raise RecordingError(
+                    f"is {header.describe()}, the first frame ({files[0].name}) "
+                    f"is {first.describe()}",
+                    path=file,
+                    frame=i,
+                )
+            headers.append(header)
+        self.files = tuple(files)
+        self.shape = (first.rows, first.cols)
+        self.dtype = first.dtype
+        self._decoders = tuple(header.decoder for header in headers)
+        depths = {header.bit_depth for header in headers}
+        depth = depths.pop() if len(depths) == 1 else None
+        self.bit_depth = 8 * self.dtype.itemsize if depth is None else depth
+        notes: list[str] = []
+        for header in headers:
+            for note in notes_for_channels(header.channels):
+                if note not in notes:
+                    notes.append(note)
+        tiff_by_opencv = sum(
+            1
+            for file, decoder in zip(files, self._decoders, strict=True)
+            if decoder == "opencv" and file.suffix.lower() in (".tif", ".tiff")
+        )
+        if tiff_by_opencv:
+            notes.append(
+                f"{tiff_by_opencv} TIFF frame(s) decoded by OpenCV (their compression "
+                "needs the optional imagecodecs package in tifffile)"
+            )
+        self.notes = tuple(notes)
+
+    @staticmethod
+    def _header(file: Path, i: int) -> FrameHeader:
+        try:
+            return read_header(file)
+        except RecordingError as exc:
+            raise RecordingError(exc.message, path=file, frame=i) from None
+        except OSError as exc:
+            raise RecordingError(
+                f"cannot be read ({exc.strerror or exc})", path=file, frame=i
+            ) from None
+
+    def __len__(self) -> int:
+        return len(self.files)
+
+    def _read(self, i: int) -> np.ndarray:
+        file = self.files[i]
+        if self._decoders[i] == "tifffile":
+            try:
+                image = tifffile.imread(file)
+            except Exception as exc:  # any decoder failure names the file and frame
+                raise RecordingError(
+                    f"cannot be decoded ({type(exc).__name__}: {exc})",
+                    path=file,
+                    frame=i,
+                ) from None
+            return to_gray(image, order="RGB")
+        image = cv2.imread(str(file), cv2.IMREAD_UNCHANGED)
+        if image is None:
+            raise RecordingError(
+                "cannot be decoded by OpenCV (damaged, truncated or missing)",
+                path=file,
+                frame=i,
+            )
+        return to_gray(image, order="BGR")
+
+
+def open_image_folder(folder: Path) -> ImageFolder:
+    """Open a folder of frame files (see the module docstring)."""
+    return ImageFolder(folder)

@@ -1,0 +1,226 @@
+"""Size, sample type and soundness of an image file, read from its header.
+
+An image folder is checked at open time frame by frame, so this must be cheap:
+PNG, BMP and JPEG headers are parsed here from their first bytes (and a look
+at the last bytes, where a truncated file is missing its end marker); TIFF
+pages are described by tifffile without decoding pixels. Nothing is decoded.
+"""
+
+from __future__ import annotations
+
+import struct
+from dataclasses import dataclass
+from pathlib import Path
+
+import numpy as np
+
+from ..errors import RecordingError
+from ._tiff import (
+    TIFF_SUFFIXES,
+    check_page_extent,
+    frame_layout,
+    open_tifffile,
+    tifffile_decodes,
+    tifffile_reports,
+)
+
+__all__ = ["FrameHeader", "read_header", "IMAGE_SUFFIXES"]
+
+IMAGE_SUFFIXES = (".png", *TIFF_SUFFIXES, ".bmp", ".jpg", ".jpeg")
+
+
+@dataclass(frozen=True)
+class FrameHeader:
+    """What a frame file's header says.
+
+    Attributes
+    ----------
+    rows, cols : int
+        Frame size.
+    dtype : numpy.dtype
+        Sample type once decoded.
+    channels : int
+        Samples per pixel: 1 gray, 2 gray and alpha, 3 colour, 4 colour and alpha.
+    bit_depth : int or None
+        Significant bits per sample when the file says so (PNG ``sBIT``,
+        TIFF ``BitsPerSample`` narrower than the sample type), else None.
+    decoder : str
+        "opencv" or "tifffile", whichever will decode the pixels.
+    """
+
+    rows: int
+    cols: int
+    dtype: np.dtype
+    channels: int
+    bit_depth: int | None = None
+    decoder: str = "opencv"
+
+    def describe(self) -> str:
+        return f"{self.rows} x {self.cols} {self.dtype}"
+
+
+def read_header(path: Path) -> FrameHeader:
+    """Describe the image in `path` from its header.
+
+    Raises
+    ------
+    RecordingError
+        For an empty, truncated or unreadable file, naming it.
+    """
+    size = path.stat().st_size
+    if size == 0:
+        raise RecordingError("is empty (0 bytes)", path=path)
+    suffix = path.suffix.lower()
+    if suffix in TIFF_SUFFIXES:
+        return _tiff_header(path, size)
+    reader = {".png": _png_header, ".bmp": _bmp_header}.get(suffix, _jpeg_header)
+    with open(path, "rb") as file:
+        return reader(file, size, path)
+
+
+_PNG_SIGNATURE = b"\x89PNG\r\n\x1a\n"
+_PNG_END = b"\x00\x00\x00\x00IEND\xaeB`\x82"  # the IEND chunk, with its CRC
+_PNG_CHANNELS = {0: 1, 2: 3, 3: 3, 4: 2, 6: 4}
+
+
+def _png_header(file, size: int, path) -> FrameHeader:
+    head = file.read(33)
+    if len(head) < 33 or head[:8] != _PNG_SIGNATURE or head[12:16] != b"IHDR":
+        raise RecordingError("is not a PNG file (no PNG signature and header)", path=path)
+    cols, rows, depth, colour = struct.unpack(">IIBB", head[16:26])
+    channels = _PNG_CHANNELS.get(colour)
+    if channels is None or rows == 0 or cols == 0:
+        raise RecordingError("has a damaged PNG header", path=path)
+    significant = None
+    position = 33
+    for _ in range(10_000):  # walk the chunks before the pixel data
+        file.seek(position)
+        chunk = file.read(8)
+        if len(chunk) < 8:
+            break
+        length, name = struct.unpack(">I4s", chunk)
+        if name in (b"IDAT", b"IEND"):
+            break
+        if name == b"sBIT" and 1 <= length <= 4:
+            significant = max(file.read(length))
+        position += 12 + length
+    file.seek(max(0, size - len(_PNG_END)))
+    if file.read() != _PNG_END:
+        raise RecordingError(
+            "is truncated or damaged: it does not end with the PNG end chunk",
+            path=path,
+        )
+    dtype = np.dtype(np.uint16 if depth == 16 else np.uint8)
+    if significant is not None and not 1 <= significant < 8 * dtype.itemsize:
+        significant = None
+    return FrameHeader(rows, cols, dtype, channels, significant)
+
+
+def _bmp_header(file, size: int, path) -> FrameHeader:
+    head = file.read(54)
+    if len(head) < 26 or head[:2] != b"BM":
+        raise RecordingError("is not a BMP file (no BM signature)", path=path)
+    data_offset, info_size = struct.unpack("<II", head[10:18])
+    if info_size == 12:  # the old OS/2 header
+        cols, rows, _, bits = struct.unpack("<HHHH", head[18:26])
+        compression, palette_entry, n_colours = 0, 3, 0
+    elif info_size >= 40 and len(head) >= 50:
+        cols, rows, _, bits, compression = struct.unpack("<iiHHI", head[18:34])
+        n_colours = struct.unpack("<I", head[46:50])[0]
+        palette_entry = 4
+    else:
+        raise RecordingError("has a damaged BMP header", path=path)
+    rows = abs(rows)  # negative: stored top row first
+    if rows == 0 or cols <= 0 or bits not in (1, 4, 8, 16, 24, 32):
+        raise RecordingError("has a damaged BMP header", path=path)
+    if compression in (0, 3):  # uncompressed rows, each padded to 4 bytes
+        stride = (bits * cols + 31) // 32 * 4
+        if data_offset + stride * rows > size:
+            raise RecordingError(
+                f"is truncated: {data_offset + stride * rows} bytes expected, {size} found",
+                path=path,
+            )
+    if bits <= 8:  # a palette: OpenCV gives gray when every entry is gray
+        file.seek(14 + info_size)
+        palette = file.read((n_colours or 2**bits) * palette_entry)
+        entries = np.frombuffer(
+            palette[: len(palette) // palette_entry * palette_entry], np.uint8
+        ).reshape(-1, palette_entry)
+        gray = bool(
+            np.all(entries[:, 0] == entries[:, 1]) and np.all(entries[:, 1] == entries[:, 2])
+        )
+        channels = 1 if gray else 3
+    else:
+        channels = 4 if bits == 32 else 3
+    return FrameHeader(rows, cols, np.dtype(np.uint8), channels)
+
+
+# Start-of-frame markers (all but DHT 0xC4, JPG 0xC8 and DAC 0xCC).
+_JPEG_SOF = set(range(0xC0, 0xD0)) - {0xC4, 0xC8, 0xCC}
+
+
+def _jpeg_header(file, size: int, path) -> FrameHeader:
+    if file.read(2) != b"\xff\xd8":
+        raise RecordingError("is not a JPEG file (no start-of-image marker)", path=path)
+    position = 2
+    while True:
+        file.seek(position)
+        marker = file.read(2)
+        if len(marker) < 2 or marker[0] != 0xFF:
+            raise RecordingError("is damaged: no JPEG frame header found", path=path)
+        code = marker[1]
+        if code == 0xFF:  # fill byte
+            position += 1
+            continue
+        if code == 0x01 or 0xD0 <= code <= 0xD7:  # markers without a length
+            position += 2
+            continue
+        if code in (0xD9, 0xDA):
+            raise RecordingError("is damaged: no JPEG frame header found", path=path)
+        segment = file.read(8)
+        if len(segment) < 2:
+            raise RecordingError("is truncated inside its JPEG header", path=path)
+        if code in _JPEG_SOF:
+            if len(segment) < 8:
+                raise RecordingError("is truncated inside its JPEG header", path=path)
+            precision, rows, cols, components = struct.unpack(">BHHB", segment[2:8])
+            break
+        position += 2 + struct.unpack(">H", segment[:2])[0]
+    if rows == 0 or cols == 0:
+        raise RecordingError("has a JPEG header without a frame size", path=path)
+    # A truncated JPEG still decodes (the rest filled with gray), so look for the
+    # end-of-image marker near the end; FF D9 cannot occur inside coded data.
+    file.seek(max(0, size - 1024))
+    if b"\xff\xd9" not in file.read():
+        raise RecordingError("is truncated: no JPEG end-of-image marker at the end", path=path)
+    dtype = np.dtype(np.uint8 if precision <= 8 else np.uint16)
+    return FrameHeader(rows, cols, dtype, 1 if components == 1 else 3)
+
+
+def _tiff_header(path: Path, size: int) -> FrameHeader:
+    with tifffile_reports(path):
+        tif = open_tifffile(path)
+        try:
+            if not tif.series:
+                raise RecordingError("holds no image", path=path)
+            series = tif.series[0]
+            _, frame_shape, n = frame_layout(series, path)
+            if n != 1 or len(tif.series) > 1:
+                raise RecordingError(
+                    "holds several images; a folder must hold one frame per file",
+                    path=path,
+                )
+            key = series.keyframe
+            check_page_extent(key, size, path, None)
+            dtype = np.dtype(series.dtype)
+            bits = int(key.bitspersample)
+            return FrameHeader(
+                rows=frame_shape[0],
+                cols=frame_shape[1],
+                dtype=dtype,
+                channels=frame_shape[2] if len(frame_shape) == 3 else 1,
+                bit_depth=bits if 0 < bits < 8 * dtype.itemsize else None,
+                decoder="tifffile" if tifffile_decodes(key) else "opencv",
+            )
+        finally:
+            tif.close()
