@@ -113,8 +113,16 @@ def _from_gap(t, gap):
 
 
 def estimate_contact(
-    time, radius, radius_err, status, *, gap=None, early_radius: float | None = None,
-    fit_frames: int = 30, gap_frames: int = 6, gap_floor: float = 0.0,
+    time,
+    radius,
+    radius_err,
+    status,
+    *,
+    gap=None,
+    early_radius: float | None = None,
+    fit_frames: int = 30,
+    gap_frames: int = 6,
+    gap_floor: float = 0.0,
 ) -> ContactEstimate:
     """Estimate the contact instant of a radius series.
 
@@ -163,7 +171,10 @@ def estimate_contact(
     if not ok.any():
         hi = float(time[first])
         return ContactEstimate(
-            0.5 * (lo + hi), (hi - lo) / math.sqrt(12.0), (lo, hi), first,
+            0.5 * (lo + hi),
+            (hi - lo) / math.sqrt(12.0),
+            (lo, hi),
+            first,
             "midpoint of the bracket (no frame after contact could be measured)",
         )
     first_ok = int(np.nonzero(ok)[0][0])
@@ -199,9 +210,7 @@ def estimate_contact(
         idx = idx[radius[idx] <= early_radius]
     idx = idx[:fit_frames]
     if len(idx) >= 5:
-        err = np.where(
-            np.isfinite(radius_err[idx]) & (radius_err[idx] > 0), radius_err[idx], 1.0
-        )
+        err = np.where(np.isfinite(radius_err[idx]) & (radius_err[idx] > 0), radius_err[idx], 1.0)
         t0, t0_err = _from_radius(time[idx], radius[idx], err, lo, hi)
         if t0 is not None and t0_err is not None and t0_err > 0:
             estimates.append((t0, t0_err))
@@ -209,7 +218,10 @@ def estimate_contact(
     uniform = (hi - lo) / math.sqrt(12.0)
     if not estimates:
         return ContactEstimate(
-            0.5 * (lo + hi), uniform, (lo, hi), first,
+            0.5 * (lo + hi),
+            uniform,
+            (lo, hi),
+            first,
             "midpoint of the bracket (too few frames to extrapolate)",
         )
     weights = np.array([1.0 / e**2 for _, e in estimates])
@@ -217,6 +229,9 @@ def estimate_contact(
     t0 = float(np.clip(np.sum(weights * values) / weights.sum(), lo, hi))
     err = min(math.sqrt(1.0 / weights.sum()), uniform)
     return ContactEstimate(
-        t0, err, (lo, hi), first,
+        t0,
+        err,
+        (lo, hi),
+        first,
         " and ".join(methods) + ", weighted by their uncertainties, inside the bracket",
     )

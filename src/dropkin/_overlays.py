@@ -95,8 +95,15 @@ def write_overlays(recording, series, extras, out_dir, *, count: int = 6) -> lis
         cv2.drawContours(image, shifted, -1, _OUTLINE, 1, cv2.LINE_AA)
         if pair is not None:
             for circle in pair.circles:
-                cv2.circle(image, pt(circle.centre + offset), int(round(circle.radius * scale)),
-                           _FIT, 1, cv2.LINE_AA, shift)
+                cv2.circle(
+                    image,
+                    pt(circle.centre + offset),
+                    int(round(circle.radius * scale)),
+                    _FIT,
+                    1,
+                    cv2.LINE_AA,
+                    shift,
+                )
             c0, c1 = (c.centre + offset for c in pair.circles)
             cv2.line(image, pt(c0), pt(c1), _AXIS, 1, cv2.LINE_AA, shift)
         if edges is not None and np.isfinite(edges[index]).all():

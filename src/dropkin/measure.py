@@ -100,7 +100,8 @@ def _check_roi(roi, shape):
     if not (0 <= r0 < r1 <= m and 0 <= c0 < c1 <= n) or r1 - r0 < 8 or c1 - c0 < 8:
         raise ExperimentError(
             f"lies outside the {m} x {n} frame or is smaller than 8 x 8 px",
-            key="--roi", value=f"{r0}:{r1},{c0}:{c1}",
+            key="--roi",
+            value=f"{r0}:{r1},{c0}:{c1}",
             expected=f"rows within 0:{m} and columns within 0:{n}",
         )
     return (r0, r1, c0, c1)
@@ -150,8 +151,9 @@ def prepare(recording, *, geometry: str, options: MeasureOptions = MeasureOption
             continue
         blur = vision.edge_blur(trans, pair)
         return Preparation(illumination, dark, _noise(trans), blur, pair, index)
-    raise MeasurementError(f"the drops were not found in the first frames ({reason})",
-                           path=recording.path)
+    raise MeasurementError(
+        f"the drops were not found in the first frames ({reason})", path=recording.path
+    )
 
 
 def _measure_chunk(args):
@@ -163,8 +165,14 @@ def _measure_chunk(args):
 
 def _neck_chunk(frames, prep, options):
     return vision.measure_necks(
-        frames, prep.pair, illumination=prep.illumination, dark=prep.dark, noise=prep.noise,
-        blur=prep.blur, level=options.level, gap_blurs=options.gap_blurs,
+        frames,
+        prep.pair,
+        illumination=prep.illumination,
+        dark=prep.dark,
+        noise=prep.noise,
+        blur=prep.blur,
+        level=options.level,
+        gap_blurs=options.gap_blurs,
     )
 
 
@@ -189,7 +197,9 @@ def _stream(recording, prep, options, progress):
         done = 0
         for start in starts:
             pending.append(
-                pool.submit(_measure_chunk, (recording, start, min(start + size, n), prep, options))
+                pool.submit(
+                    _measure_chunk, (recording, start, min(start + size, n), prep, options)
+                )
             )
             if len(pending) >= window:
                 first, result = pending.pop(0).result()
@@ -217,8 +227,12 @@ def recording_sha256(recording) -> str:
 
 
 def measure(
-    recording, experiment, *, options: MeasureOptions = MeasureOptions(),
-    progress: Callable[[int, int], None] | None = None, keep_edges: bool = False,
+    recording,
+    experiment,
+    *,
+    options: MeasureOptions = MeasureOptions(),
+    progress: Callable[[int, int], None] | None = None,
+    keep_edges: bool = False,
 ):
     """Measure the neck or contact radius in every frame of a recording.
 
@@ -252,14 +266,18 @@ def measure(
     geometry = experiment.setup.geometry
     if geometry is None:
         raise ExperimentError(
-            "is needed to measure", key="setup.geometry", path=experiment.path,
+            "is needed to measure",
+            key="setup.geometry",
+            path=experiment.path,
             expected="coalescence or spreading",
         )
     pixel = recording.pixel_size or experiment.recording.pixel_size
     if pixel is None:
         raise ExperimentError(
-            "is needed to give radii in metres", key="recording.pixel_size",
-            path=experiment.path or recording.path, expected="e.g. pixel_size = \"5 um\"",
+            "is needed to give radii in metres",
+            key="recording.pixel_size",
+            path=experiment.path or recording.path,
+            expected='e.g. pixel_size = "5 um"',
         )
     options = dataclasses.replace(options, roi=_check_roi(options.roi, recording.shape))
     prep = prepare(recording, geometry=geometry, options=options)
@@ -279,8 +297,13 @@ def measure(
     status = tuple(vision.STATUS_NAMES[c] for c in codes)
     # In pixels: gaps below a tenth of a pixel count as closed.
     contact = estimate_contact(
-        recording.times, radius, radius_err, status, gap=gap,
-        early_radius=float(min(prep.pair.radii)) / 3.0, gap_floor=0.1,
+        recording.times,
+        radius,
+        radius_err,
+        status,
+        gap=gap,
+        early_radius=float(min(prep.pair.radii)) / 3.0,
+        gap_floor=0.1,
     )
     if contact:
         # Frames before the contact instant that showed neither a gap nor a

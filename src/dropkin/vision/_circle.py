@@ -62,13 +62,56 @@ def _geometric(points, centre, radius):
     return sol.x[:2].copy(), float(sol.x[2])
 
 
-def fit_circle(points, *, trim: float = 3.0, iterations: int = 6) -> CircleFit:
-    """Fit a circle to outline points, trimming outliers.
+def _consensus(points, tolerance: float, trials: int):
+    """Points that agree with the best circle through three of them (RANSAC).
 
-    The fit minimises the orthogonal distances (geometric fit), starting from
-    Kasa's algebraic fit; after each pass, points farther from the circle than
-    `trim` robust standard deviations (1.4826 x the median absolute residual,
-    at least 0.5 px) are left out and the fit repeated.
+    Fischler & Bolles (1981, Commun. ACM 24, 381): circles through random
+    triples of points, the one that most points lie within `tolerance` of
+    wins. Seeded, so the same points always give the same answer.
+    """
+    rng = np.random.default_rng(0)
+    n = len(points)
+    best = None
+    best_count = -1
+    for _ in range(trials):
+        trio = points[rng.choice(n, size=3, replace=False)]
+        (a, b), (c, d), (e, f) = trio
+        det = 2.0 * (a * (d - f) + c * (f - b) + e * (b - d))
+        if abs(det) < 1e-9:
+            continue
+        s1, s2, s3 = a * a + b * b, c * c + d * d, e * e + f * f
+        centre = np.array(
+            [
+                (s1 * (d - f) + s2 * (f - b) + s3 * (b - d)) / det,
+                (s1 * (e - c) + s2 * (a - e) + s3 * (c - a)) / det,
+            ]
+        )
+        radius = np.hypot(*(trio[0] - centre))
+        inliers = np.abs(np.hypot(*(points - centre).T) - radius) <= tolerance
+        count = int(inliers.sum())
+        if count > best_count:
+            best, best_count = inliers, count
+    return best
+
+
+def fit_circle(
+    points,
+    *,
+    trim: float = 3.0,
+    iterations: int = 6,
+    consensus: float | None = 1.5,
+    trials: int = 300,
+) -> CircleFit:
+    """Fit a circle to outline points, ignoring the parts that are not on it.
+
+    With `consensus` set, the points first go through a seeded RANSAC search
+    (circles through random triples; the one most points lie within
+    `consensus` px of wins), so that a needle, a holder or a neighbouring
+    drop in the outline cannot pull the circle. The fit then minimises the
+    orthogonal distances (geometric fit) over the agreeing points, starting
+    from Kasa's algebraic fit; after each pass, points farther from the
+    circle than `trim` robust standard deviations (1.4826 x the median
+    absolute residual, at least 0.5 px) are left out and the fit repeated.
 
     Parameters
     ----------
@@ -78,6 +121,11 @@ def fit_circle(points, *, trim: float = 3.0, iterations: int = 6) -> CircleFit:
         Outlier cut in robust standard deviations.
     iterations : int, optional
         Passes of fitting and trimming.
+    consensus : float or None, optional
+        Tolerance (px) of the RANSAC search; None fits all points from the
+        start.
+    trials : int, optional
+        Random triples tried by the RANSAC search.
 
     Returns
     -------
@@ -95,7 +143,11 @@ def fit_circle(points, *, trim: float = 3.0, iterations: int = 6) -> CircleFit:
     if points.ndim != 2 or points.shape[1] != 2 or len(points) < 3:
         raise ValueError(f"points must be a (P, 2) array with P >= 3, got {points.shape}")
     used = np.ones(len(points), dtype=bool)
-    centre, radius = _algebraic(points)
+    if consensus is not None and len(points) > 10:
+        agreeing = _consensus(points, consensus, trials)
+        if agreeing is not None and agreeing.sum() >= 3:
+            used = agreeing
+    centre, radius = _algebraic(points[used])
     for _ in range(iterations):
         centre, radius = _geometric(points[used], centre, radius)
         resid = np.abs(np.hypot(points[:, 0] - centre[0], points[:, 1] - centre[1]) - radius)

@@ -80,8 +80,15 @@ class Band:
 
 
 def make_band(
-    shape, origin, axis, *, s_centre: float, s_half: float, u_half: float,
-    s_step: float = 0.5, u_step: float = 1.0,
+    shape,
+    origin,
+    axis,
+    *,
+    s_centre: float,
+    s_half: float,
+    u_half: float,
+    s_step: float = 0.5,
+    u_step: float = 1.0,
 ) -> Band:
     """Build the sampling grid for frames of `shape`.
 
@@ -106,7 +113,10 @@ def make_band(
     normal = np.array([-axis[1], axis[0]])
     n_s = max(int(np.ceil(s_half / s_step)), 1)
     n_u = max(int(np.ceil(u_half / u_step)), 2)
-    s = s_centre + s_step * np.arange(-n_s, n_s + 1)
+    # Columns on one grid through the origin, whatever the centre: bands of
+    # different chunks then sample the same points (results do not depend on
+    # how the recording is cut into chunks).
+    s = s_step * (round(s_centre / s_step) + np.arange(-n_s, n_s + 1))
     u = u_step * np.arange(-n_u, n_u + 1)
     rows = origin[0] + axis[0] * s[None, :] + normal[0] * u[:, None]
     cols = origin[1] + axis[1] * s[None, :] + normal[1] * u[:, None]
@@ -180,25 +190,63 @@ class NeckResult:
 def _edge_outward(side, valid_side, level, step):
     """First crossing of `level` going outward in each column.
 
-    `side` is (K, H, S) with row 0 on the axis; returns the distance from the
-    axis (K, S), the local slope |dT/du| at the crossing, and masks for
-    "no crossing inside the band" and "crossing next to an invalid sample".
+    `side` is (K, H, S) with row 0 on the axis and `valid_side` (H, S) marks
+    samples inside the frame. Returns the distance from the axis (K, S), the
+    local slope |dT/du| at the crossing, a mask "no crossing inside the
+    band", and a mask "the search left the frame before a crossing".
     """
-    bright = side >= level
+    bright = (side >= level) & valid_side[None]
     bright[:, 0, :] = False
     j = np.argmax(bright, axis=1)  # (K, S): first bright sample, 0 if none
     none = j == 0
+    outside = ~valid_side
+    first_out = np.where(outside.any(axis=0), np.argmax(outside, axis=0), side.shape[1])
+    left_frame = np.where(none, first_out[None, :] < side.shape[1], first_out[None, :] < j)
     j = np.maximum(j, 1)
     t_in = np.take_along_axis(side, (j - 1)[:, None, :], axis=1)[:, 0, :]
     t_out = np.take_along_axis(side, j[:, None, :], axis=1)[:, 0, :]
     rise = np.maximum(t_out - t_in, 1e-6)
     dist = (j - 1 + np.clip((level - t_in) / rise, 0.0, 1.0)) * step
-    near_invalid = ~valid_side[j] | ~valid_side[j - 1]
-    return dist, rise / step, none, near_invalid
+    return dist, rise / step, none, left_frame, (first_out - 1) * step
+
+
+def gap_on_axis(on_axis, valid, s_step: float):
+    """Width of the gap between the drops from transmission along the axis.
+
+    Parameters
+    ----------
+    on_axis : (K, S) ndarray
+        Transmission sampled along the line of centres.
+    valid : (S,) ndarray of bool
+        Samples inside the frame.
+    s_step : float
+        Sample spacing (px).
+
+    Returns
+    -------
+    gap : (K,) ndarray
+        The summed transmission above the drops' own level (the median of
+        the outer quarters of the samples, inside the drops) times the
+        spacing: blur and pixel averaging conserve it, so gaps narrower than
+        a pixel still show. NaN without valid samples.
+    """
+    values = on_axis[:, valid]
+    if not values.shape[1]:
+        return np.full(on_axis.shape[0], np.nan)
+    quarter = max(values.shape[1] // 4, 1)
+    ends = np.concatenate([values[:, :quarter], values[:, -quarter:]], axis=1)
+    ref = np.median(ends, axis=1, keepdims=True)
+    return np.minimum(values - ref, 1.0).sum(axis=1) * s_step
 
 
 def neck_from_band(
-    trans, band: Band, *, noise: float, radii, level: float = 0.5, min_gap: float = 1.0,
+    trans,
+    band: Band,
+    *,
+    noise: float,
+    radii,
+    level: float = 0.5,
+    min_gap: float = 1.0,
     err_floor: float = 0.1,
 ) -> NeckResult:
     """Measure the neck in a chunk of frames sampled on a band.
@@ -251,28 +299,28 @@ def neck_from_band(
     edges = np.full((k, 2, 2), np.nan)
 
     s_step = float(band.s[1] - band.s[0]) if n_s > 1 else 1.0
-    on_axis = trans[:, c, band.valid[c]]
-    if on_axis.shape[1]:
-        # Relative to the drops' own level on the axis (the outer quarters of
-        # the band, inside the drops), so that neither the dark level's offset
-        # nor clipping biases the sum.
-        quarter = max(on_axis.shape[1] // 4, 1)
-        ends = np.concatenate([on_axis[:, :quarter], on_axis[:, -quarter:]], axis=1)
-        ref = np.median(ends, axis=1, keepdims=True)
-        gap_width = np.minimum(on_axis - ref, 1.0).sum(axis=1) * s_step
-    else:
-        gap_width = np.full(k, np.nan)
+    gap_width = gap_on_axis(trans[:, c, :], band.valid[c], s_step)
     on_axis_dark = trans[:, c, :] < level
     gap_seen = ~on_axis_dark & band.valid[c][None, :]
     before = gap_seen.any(axis=1)
     nothing = ~((trans < level) & band.valid[None]).any(axis=(1, 2))
 
-    up, slope_up, none_up, inv_up = _edge_outward(trans[:, c:, :], band.valid[c:, 0], level, step)
-    down, slope_dn, none_dn, inv_dn = _edge_outward(
-        trans[:, c::-1, :], band.valid[c::-1, 0], level, step
+    up, slope_up, none_up, out_up, border_up = _edge_outward(
+        trans[:, c:, :], band.valid[c:], level, step
     )
+    down, slope_dn, none_dn, out_dn, border_dn = _edge_outward(
+        trans[:, c::-1, :], band.valid[c::-1], level, step
+    )
+    # Columns whose bridge reaches past the frame border: their width is
+    # only known to exceed the distance to the border.
+    left = (out_up | out_dn) & on_axis_dark
+    reach = float(band.u[-1])  # a side without a crossing reaches at least this far
+    bound = np.where(out_up, border_up[None, :], np.where(none_up, reach, up)) + np.where(
+        out_dn, border_dn[None, :], np.where(none_dn, reach, down)
+    )
+    bound = np.where(left, bound, np.inf).min(axis=1)
     width = up + down
-    bad_col = none_up | none_dn | ~on_axis_dark
+    bad_col = none_up | none_dn | ~on_axis_dark | left
     width = np.where(bad_col, np.inf, width)
     m = np.argmin(width, axis=1)
     rows = np.arange(k)
@@ -280,8 +328,10 @@ def neck_from_band(
     # Parabola through the narrowest column and its neighbours (sub-sample in s).
     ml, mr = np.clip(m - 1, 0, n_s - 1), np.clip(m + 1, 0, n_s - 1)
     wl, wr = width[rows, ml], width[rows, mr]
-    interior = (m > 0) & (m < n_s - 1) & np.isfinite(wl) & np.isfinite(wr)
-    curv = np.where(interior, wl + wr - 2 * w_min, 0.0)
+    interior = (m > 0) & (m < n_s - 1) & np.isfinite(wl) & np.isfinite(wr) & np.isfinite(w_min)
+    wl, wr = np.where(interior, wl, 0.0), np.where(interior, wr, 0.0)
+    w_fin = np.where(interior, w_min, 0.0)
+    curv = np.where(interior, wl + wr - 2 * w_fin, 0.0)
     offset = np.where(curv > 1e-9, 0.5 * (wl - wr) / np.where(curv > 1e-9, curv, 1.0), 0.0)
     offset = np.clip(offset, -0.5, 0.5)
     w_ref = w_min - 0.25 * curv * offset**2
@@ -293,8 +343,10 @@ def neck_from_band(
 
     r_px = np.asarray(radii, dtype=np.float64)
     gap = radius_all**2 * 0.5 * (1.0 / r_px[0] + 1.0 / r_px[1])
-    limit = (none_up | none_dn)[rows, m] | ~np.isfinite(w_min)
-    at_edge = (inv_up | inv_dn)[rows, m]
+    limit = (none_up | none_dn)[rows, m]
+    # At the edge: a column that leaves the frame might be narrower than
+    # the narrowest column measured in full.
+    at_edge = bound <= w_min
 
     for i in range(k):
         if nothing[i]:
@@ -302,6 +354,9 @@ def neck_from_band(
             continue
         if before[i]:
             status[i] = BEFORE_CONTACT
+            continue
+        if at_edge[i]:
+            status[i] = AT_EDGE
             continue
         if not np.isfinite(w_min[i]) or limit[i]:
             status[i] = BAND_LIMIT
@@ -312,16 +367,21 @@ def neck_from_band(
         base = band.origin + band.axis * s_neck[i]
         edges[i, 0] = base + band.normal * up[i, m[i]]
         edges[i, 1] = base - band.normal * down[i, m[i]]
-        if at_edge[i]:
-            status[i] = AT_EDGE
-        elif gap[i] < min_gap:
+        if gap[i] < min_gap:
             status[i] = UNRESOLVED
     return NeckResult(radius, radius_err, s_neck, edges, status, gap_width)
 
 
 def measure_necks(
-    frames, pair, *, illumination, dark: float, noise: float, blur: float,
-    level: float = 0.5, gap_blurs: float = 3.0,
+    frames,
+    pair,
+    *,
+    illumination,
+    dark: float,
+    noise: float,
+    blur: float,
+    level: float = 0.5,
+    gap_blurs: float = 3.0,
 ) -> NeckResult:
     """Neck radius in each frame of a chunk, looking only at a band around the neck.
 
@@ -366,13 +426,23 @@ def measure_necks(
 
     def run(sub, s_centre, s_half, u_half, step):
         band = make_band(
-            shape, pair.contact_point, pair.axis, s_centre=s_centre, s_half=s_half,
-            u_half=u_half, s_step=step, u_step=1.0,
+            shape,
+            pair.contact_point,
+            pair.axis,
+            s_centre=s_centre,
+            s_half=s_half,
+            u_half=u_half,
+            s_step=step,
+            u_step=1.0,
         )
         span = np.maximum(sample_band(illum, band) - np.float32(dark), 1e-6)
         trans = (sample_band(sub, band) - np.float32(dark)) / span
         result = neck_from_band(
-            trans, band, noise=noise, radii=pair.radii, level=level,
+            trans,
+            band,
+            noise=noise,
+            radii=pair.radii,
+            level=level,
             min_gap=gap_blurs * blur,
         )
         ends = np.isin(result.s_neck, (band.s[0], band.s[-1]))
@@ -393,6 +463,21 @@ def measure_necks(
         again, _ = run(frames[redo], 0.0, full_s, full_u, step)
         for name in ("radius", "radius_err", "s_neck", "edges", "status", "gap"):
             getattr(result, name)[redo] = getattr(again, name)
+    # The gap on a fixed stretch of the axis, the same for every chunk.
+    axis_band = make_band(
+        shape,
+        pair.contact_point,
+        pair.axis,
+        s_centre=0.0,
+        s_half=full_s,
+        u_half=1.0,
+        s_step=step,
+        u_step=1.0,
+    )
+    centre_row = len(axis_band.u) // 2
+    span = np.maximum(sample_band(illum, axis_band)[:, centre_row] - np.float32(dark), 1e-6)
+    on_axis = (sample_band(frames, axis_band)[:, centre_row] - np.float32(dark)) / span
+    result.gap[:] = gap_on_axis(on_axis, axis_band.valid[centre_row], step)
     status = result.status
     status[status == BAND_LIMIT] = NOT_FOUND
     return result

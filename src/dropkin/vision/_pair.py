@@ -156,8 +156,10 @@ def find_drop_pair(trans, *, level: float = 0.5, min_area: int = 20) -> DropPair
         grown = ndimage.grey_dilation(
             np.where(np.isin(labels, order[:2] + 1), labels, 0), size=(5, 5)
         )
-        owner = grown[np.clip(np.rint(points[:, 0]).astype(int), 0, rows - 1),
-                      np.clip(np.rint(points[:, 1]).astype(int), 0, cols - 1)]
+        owner = grown[
+            np.clip(np.rint(points[:, 0]).astype(int), 0, rows - 1),
+            np.clip(np.rint(points[:, 1]).astype(int), 0, cols - 1),
+        ]
         groups = [points[owner == order[0] + 1], points[owner == order[1] + 1]]
         in_contact = False
     else:
@@ -222,7 +224,12 @@ def edge_blur(trans, pair: DropPair, *, angles: int = 48) -> float:
             if direction @ towards > 0.5:
                 continue
             pts = circle.centre[:, None] + direction[:, None] * (circle.radius + offsets)
-            if pts[0].min() < 1 or pts[0].max() > m - 2 or pts[1].min() < 1 or pts[1].max() > n - 2:
+            if (
+                pts[0].min() < 1
+                or pts[0].max() > m - 2
+                or pts[1].min() < 1
+                or pts[1].max() > n - 2
+            ):
                 continue
             profile = ndi.map_coordinates(trans, pts, order=1)
             slopes.append(np.max(np.diff(profile)) / 0.25)

@@ -1,0 +1,269 @@
+"""Measurement of coalescence necks, checked against synthetic truth and scikit-image.
+
+The truth comes from :mod:`dropkin.synth`, which computes the radius from the
+law alone (it shares no code with ``vision`` or ``measure``). Bounds are the
+ones the measurement issue asks for:
+
+- over frames where the true radius is at least 4 px and the optics resolve
+  the neck, at least 90 % are ``ok`` and their RMS radius error is at most
+  0.5 px;
+- the contact instant is within one frame of the truth;
+- no frame before the true contact is ``ok``.
+
+"The optics resolve the neck" is our stated criterion, applied to the truth:
+the gap beside the neck, r^2/2 (1/R0 + 1/R1), is at least three blur sigmas
+wide, sigma being the point-spread sigma combined with a pixel's own
+averaging (1/sqrt(12) px, the standard deviation of a uniform pixel).
+"""
+
+import hashlib
+import json
+import math
+
+import numpy as np
+import pytest
+from click.testing import CliRunner
+from skimage import measure as skmeasure
+
+from dropkin import synth
+from dropkin.cli import main
+from dropkin.errors import ExperimentError, MeasurementError
+from dropkin.experiment import load_experiment
+from dropkin.measure import MeasureOptions, measure
+from dropkin.recording import open_recording
+from dropkin.series import CSV_COLUMNS, read_radius_csv
+
+PIXEL = 15e-6
+RATE = 2e5
+LAW = synth.inertial_law(surface_tension=0.072, density=998.0, drop_radius=1e-3)
+
+CASES = {
+    "horizontal-8bit": dict(angle_deg=0.0, blur=1.0, bits=8),
+    "vertical-12bit": dict(angle_deg=-90.0, blur=1.0, bits=12),
+    "tilted-unequal": dict(angle_deg=35.0, second=0.7e-3, blur=1.2, bits=8),
+    "unequal-needle-12bit": dict(angle_deg=0.0, second=1.3e-3, blur=0.7, bits=12, needle=0.3e-3),
+    "steep-blurred": dict(angle_deg=-60.0, blur=1.5, bits=8),
+    "bottom-view": dict(angle_deg=0.0, blur=1.0, bits=8, view="bottom"),
+    "bottom-unequal-12bit": dict(angle_deg=20.0, second=0.8e-3, blur=1.0, bits=12, view="bottom"),
+}
+
+
+def _recording(case, *, frames=100, contact_frame=4.6, seed=3, shape=(300, 360), **setup_extra):
+    setup = synth.Coalescence(
+        view=case.get("view", "side"),
+        drop_radius=1e-3,
+        second_radius=case.get("second"),
+        angle_deg=case["angle_deg"],
+        needle_width=case.get("needle", 0.0),
+        **setup_extra,
+    )
+    return synth.synthesize(
+        setup,
+        LAW,
+        camera=synth.Camera(RATE, PIXEL, shape),
+        frames=frames,
+        contact_frame=contact_frame,
+        # uneven light (gradient, vignette), bright spot and dust are on by default
+        optics=synth.Optics(blur_px=case["blur"], dust_count=4),
+        sensor=synth.Sensor(bit_depth=case["bits"]),
+        seed=seed,
+    )
+
+
+def _measure(path, **options):
+    exp = load_experiment(path)
+    rec = open_recording(
+        path, frame_rate=exp.recording.frame_rate, pixel_size=exp.recording.pixel_size
+    )
+    return measure(rec, exp, options=MeasureOptions(**options))
+
+
+@pytest.fixture(scope="session")
+def measured(tmp_path_factory):
+    """Each case written once (TIFF stacks) and measured once."""
+    out = {}
+    for name, case in CASES.items():
+        rec = _recording(case)
+        path = tmp_path_factory.mktemp(name) / "pair.tif"
+        synth.write_recording(rec, path)
+        series, extras = _measure(path)
+        out[name] = (case, rec, series)
+    return out
+
+
+@pytest.mark.parametrize("name", list(CASES))
+def test_accuracy_status_and_contact_against_synthetic_truth(measured, name):
+    case, rec, series = measured[name]
+    truth_px = rec.truth.radius / PIXEL
+    got_px = series.radius / PIXEL
+    r0, r1 = (r / PIXEL for r in rec.setup.radii)
+    sigma = math.hypot(case["blur"], 1 / math.sqrt(12))
+    gap = truth_px**2 / 2 * (1 / r0 + 1 / r1)
+    resolvable = (truth_px >= 4) & (gap >= 3 * sigma)
+    ok = np.array(series.status) == "ok"
+    assert resolvable.sum() >= 30  # the case really tests something
+    assert ok[resolvable].mean() >= 0.90
+    error = got_px[ok & resolvable] - truth_px[ok & resolvable]
+    assert math.sqrt(np.mean(error**2)) <= 0.5
+    # No frame before the true contact is measured as a neck.
+    assert not ok[rec.truth.time_since_contact < 0].any()
+    assert all(s == "before-contact" for s in np.array(series.status)[rec.truth.gap > 1.0 * PIXEL])
+    # The contact instant within one frame, and its stated uncertainty below one frame.
+    assert abs(series.contact_time - rec.truth.contact_time) < 1.0 / RATE
+    assert series.contact_time_err < 1.0 / RATE
+
+
+def test_drop_radii_from_the_circle_fits(measured):
+    for case, rec, series in measured.values():
+        truth = sorted(rec.setup.radii)
+        got = sorted(series.details["drop_radii_m"])
+        # Within 0.2 px, the bound the issue sets against CircleModel.
+        assert np.allclose(got, truth, atol=0.2 * PIXEL)
+
+
+def test_neck_half_width_agrees_with_regionprops_on_the_same_mask(tmp_path):
+    # Clean frames: no noise, no blur, even light; a horizontal equal pair whose
+    # line of centres lies on a pixel edge (row 149.5), so that the neck column
+    # of the mask holds 2 round(r) dark pixels. scikit-image counts them.
+    rec = synth.synthesize(
+        synth.Coalescence(drop_radius=1e-3, contact_px=(149.5, 180.0), spot_fraction=0.0),
+        LAW,
+        camera=synth.Camera(RATE, PIXEL, (300, 360)),
+        frames=60,
+        contact_frame=2.5,
+        optics=synth.Optics(blur_px=0.0, gradient=0.0, vignette=0.0),
+        sensor=synth.Sensor(bit_depth=12, full_well=None),
+    )
+    path = tmp_path / "clean"
+    synth.write_recording(rec, path)
+    series, extras = _measure(path, gap_blurs=0.0)
+    frames = open_recording(path, frame_rate=RATE)
+    light = float(np.median(frames[0][:10]))
+    checked = 0
+    for i in range(20, 60, 5):
+        frame = frames[i].astype(float)
+        dark = float(frame.min())
+        mask = (frame - dark) / (light - dark) < 0.5
+        column = mask[:, 180:181]
+        region = max(skmeasure.regionprops(skmeasure.label(column)), key=lambda p: p.area)
+        half_width = region.area / 2
+        assert abs(series.radius[i] / PIXEL - half_width) <= 0.5
+        checked += 1
+    assert checked == 8
+
+
+def test_parallel_jobs_and_small_chunks_give_the_same_series(tmp_path):
+    rec = _recording(CASES["tilted-unequal"], frames=40)
+    path = tmp_path / "pair.tif"
+    synth.write_recording(rec, path)
+    one, _ = _measure(path)
+    two, _ = _measure(path, jobs=2, chunk_size=7)
+    assert one.status == two.status
+    assert np.array_equal(one.radius, two.radius, equal_nan=True)
+    assert one.contact_time == two.contact_time
+
+
+def test_drops_leaving_the_field_of_view_are_at_edge_and_earlier_frames_kept(tmp_path):
+    # The bridge grows across the line of centres, which lies 21 px below the
+    # top border (row 20.5, pixel edges at half rows): once the neck is wider
+    # than that, the frame is at-edge.
+    rec = _recording(CASES["horizontal-8bit"], frames=100, contact_px=(20.5, 180.0))
+    path = tmp_path / "edge.tif"
+    synth.write_recording(rec, path)
+    series, _ = _measure(path)
+    status = np.array(series.status)
+    truth_px = rec.truth.radius / PIXEL
+    assert (status[truth_px > 22.0] == "at-edge").all()
+    assert (status[truth_px > 21.0] != "ok").all()
+    assert (status == "ok").sum() >= 3
+
+
+def test_blank_recording_means_no_drops(tmp_path):
+    import tifffile
+
+    path = tmp_path / "blank.tif"
+    tifffile.imwrite(path, np.full((5, 64, 64), 200, np.uint8))
+    (tmp_path / "blank.toml").write_text(
+        '[recording]\nframe_rate = "1 kHz"\npixel_size = "10 um"\n[setup]\ngeometry = "coalescence"\n'
+    )
+    with pytest.raises(MeasurementError, match="not found"):
+        _measure(path)
+    result = CliRunner().invoke(main, ["measure", str(path), "-o", str(tmp_path / "out")])
+    assert result.exit_code == 1
+    assert "blank.tif" in result.stderr and "Traceback" not in result.output
+    assert not (tmp_path / "out" / "radius.csv").exists()
+
+
+def test_drops_that_never_touch(tmp_path):
+    # The drops approach at 1 px per frame and touch at frame 11; only frames
+    # 0-6 are kept (last_frame), so a gap of 4 px or more always shows.
+    rec = _recording(
+        CASES["horizontal-8bit"], frames=12, contact_frame=11.0, approach_speed=1.0 * PIXEL * RATE
+    )
+    path = tmp_path / "apart.tif"
+    synth.write_recording(rec, path)
+    toml = tmp_path / "apart.toml"
+    toml.write_text(toml.read_text().replace("[recording]\n", "[recording]\nlast_frame = 6\n"))
+    result = CliRunner().invoke(main, ["measure", str(path), "-o", str(tmp_path / "out")])
+    assert result.exit_code == 1
+    assert "no frame shows the drops in contact" in result.stderr
+    csv = read_radius_csv(tmp_path / "out" / "radius.csv")
+    assert len(csv["frame"]) == 7
+    assert set(csv["status"]) == {"before-contact"}
+
+
+def test_region_of_interest_outside_the_frame_and_missing_keys(tmp_path):
+    rec = _recording(CASES["horizontal-8bit"], frames=8, contact_frame=3.5)
+    path = tmp_path / "pair.tif"
+    synth.write_recording(rec, path)
+    with pytest.raises(ExperimentError, match=r"--roi.*outside"):
+        _measure(path, roi=(0, 400, 0, 100))
+    runner = CliRunner()
+    result = runner.invoke(
+        main, ["measure", str(path), "-o", str(tmp_path / "o"), "--roi", "10:20"]
+    )
+    assert result.exit_code == 1 and "--roi" in result.stderr
+    toml = (tmp_path / "pair.toml").read_text()
+    (tmp_path / "pair.toml").write_text(toml.replace('geometry = "coalescence"', ""))
+    result = runner.invoke(main, ["measure", str(path), "-o", str(tmp_path / "o")])
+    assert result.exit_code == 1 and "setup.geometry" in result.stderr
+
+
+def test_measure_command_writes_the_contract(tmp_path):
+    rec = _recording(CASES["horizontal-8bit"], frames=30, contact_frame=3.3)
+    src = tmp_path / "pair"
+    synth.write_recording(rec, src)
+    out = tmp_path / "out"
+    result = CliRunner().invoke(main, ["measure", str(src), "-o", str(out), "--overlays", "4"])
+    assert result.exit_code == 0, result.output
+    header = (out / "radius.csv").read_text().splitlines()[0]
+    assert tuple(header.split(",")) == CSV_COLUMNS
+    csv = read_radius_csv(out / "radius.csv")
+    assert len(csv["frame"]) == 30
+    # since_contact_s = time_s - contact_time_s, empty before contact.
+    info = json.loads((out / "measure.json").read_text())
+    since = csv["since_contact_s"]
+    after = np.isfinite(since)
+    assert np.allclose(since[after], csv["time_s"][after] - info["contact_time_s"], atol=1e-15)
+    assert (csv["time_s"][~after] < info["contact_time_s"]).all()
+    for key in (
+        "contact_time_s",
+        "contact_time_err_s",
+        "drop_radius_m",
+        "geometry",
+        "view",
+        "frame_rate_hz",
+        "pixel_size_m",
+        "frames",
+        "provenance",
+    ):
+        assert key in info
+    assert info["frames"] == 30 and info["geometry"] == "coalescence"
+    # Provenance: SHA-256 of the frame files in order (hashlib as the reference).
+    digest = hashlib.sha256()
+    for f in sorted(src.glob("frame_*.png")):
+        digest.update(f.read_bytes())
+    assert info["provenance"]["sha256"] == digest.hexdigest()
+    assert info["provenance"]["version"]
+    overlays = sorted((out / "overlays").glob("*.png"))
+    assert 2 <= len(overlays) <= 4
