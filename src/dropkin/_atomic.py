@@ -31,6 +31,10 @@ def atomic_path(path, *, suffix: str | None = None):
     )
     os.close(fd)
     tmp = Path(tmp)
+    # mkstemp creates the file private (0600); give it the usual permissions.
+    umask = os.umask(0)
+    os.umask(umask)
+    os.chmod(tmp, 0o666 & ~umask)
     try:
         yield tmp
         os.replace(tmp, path)

@@ -16,7 +16,12 @@ the bracket two estimates are combined:
   at a steady speed over the last few frames).
 
 Each comes with its standard error (from the fit's covariance, scaled by the
-residuals); the two are combined by inverse-variance weighting. The result
+residuals; for the radius extrapolation also the change of ``t0`` when only
+the first half of its frames is used, a measure of model error); the two are
+combined by inverse-variance weighting, and the error widened by the Birge
+ratio when they differ. When they disagree by more than three combined
+standard errors, the gap closure, which observes the contact directly, is
+kept and the extrapolation set aside (the method says so). The result
 is kept inside the bracket, and its uncertainty never exceeds that of knowing
 only the bracket (width over sqrt(12), a uniform distribution).
 """
@@ -212,6 +217,15 @@ def estimate_contact(
     if len(idx) >= 5:
         err = np.where(np.isfinite(radius_err[idx]) & (radius_err[idx] > 0), radius_err[idx], 1.0)
         t0, t0_err = _from_radius(time[idx], radius[idx], err, lo, hi)
+        if t0 is not None and t0_err is not None:
+            # Model error: a power law is only an approximation (the viscous
+            # law has a logarithm), so the fit over the first half of the
+            # frames is compared with the fit over all of them.
+            half = max(len(idx) // 2, 5)
+            if half < len(idx):
+                t0_half, _ = _from_radius(time[idx[:half]], radius[idx[:half]], err[:half], lo, hi)
+                if t0_half is not None:
+                    t0_err = math.hypot(t0_err, t0 - t0_half)
         if t0 is not None and t0_err is not None and t0_err > 0:
             estimates.append((t0, t0_err))
             methods.append(f"radius extrapolation over {len(idx)} frames")
@@ -224,14 +238,36 @@ def estimate_contact(
             first,
             "midpoint of the bracket (too few frames to extrapolate)",
         )
+    note = ""
+    if len(estimates) == 2:
+        (tg, eg), (tr, er) = estimates
+        if abs(tg - tr) > 3.0 * math.hypot(eg, er):
+            # They disagree: the gap closure observes the contact directly,
+            # the extrapolation rests on the shape of a power law.
+            estimates = estimates[:1]
+            note = f"; the radius extrapolation ({tr:.6g} s) disagreed and was set aside"
+            methods = methods[:1]
     weights = np.array([1.0 / e**2 for _, e in estimates])
     values = np.array([v for v, _ in estimates])
-    t0 = float(np.clip(np.sum(weights * values) / weights.sum(), lo, hi))
-    err = min(math.sqrt(1.0 / weights.sum()), uniform)
+    mean = float(np.sum(weights * values) / weights.sum())
+    err = math.sqrt(1.0 / weights.sum())
+    if len(values) > 1:
+        # Two estimates that disagree beyond their errors widen the result
+        # (Birge ratio: the square root of the reduced chi-square).
+        chi2 = float(np.sum(weights * (values - mean) ** 2)) / (len(values) - 1)
+        err *= math.sqrt(max(chi2, 1.0))
+    t0 = float(np.clip(mean, lo, hi))
+    err = min(err, uniform)
     return ContactEstimate(
         t0,
         err,
         (lo, hi),
         first,
-        " and ".join(methods) + ", weighted by their uncertainties, inside the bracket",
+        (
+            " and ".join(methods) + ", weighted by their uncertainties"
+            if len(methods) > 1
+            else methods[0]
+        )
+        + ", inside the bracket"
+        + note,
     )

@@ -180,6 +180,17 @@ def _stream(recording, prep, options, progress):
     """Yield (start, NeckResult) over the whole recording, in order."""
     n = len(recording)
     size = max(int(options.chunk_size), 1)
+    mapped = recording.memmap() if options.jobs <= 1 else None
+    if mapped is not None:
+        # A memory-mapped stack: the band sampling reads only the pages it
+        # touches, not every pixel.
+        for start in range(0, n, size):
+            chunk = mapped[start : start + size]
+            result = _neck_chunk(_crop(chunk, options.roi), prep, options)
+            if progress is not None:
+                progress(start + len(chunk), n)
+            yield start, result
+        return
     if options.jobs <= 1:
         done = 0
         for start, chunk in recording.chunks(size):

@@ -203,10 +203,13 @@ def read_radius_csv(path) -> dict:
         raise DropkinError(f"cannot be read ({exc})", path=path) from None
     rows = list(csv.reader(io.StringIO(text)))
     if not rows:
-        raise DropkinError("is empty", path=path, expected="a header line " + ",".join(CSV_COLUMNS))
+        raise DropkinError(
+            "is empty", path=path, expected="a header line " + ",".join(CSV_COLUMNS)
+        )
     if tuple(c.strip() for c in rows[0]) != CSV_COLUMNS:
         raise DropkinError(
-            "has other columns than a radius series", path=path,
+            "has other columns than a radius series",
+            path=path,
             expected=",".join(CSV_COLUMNS),
         )
     data = {name: [] for name in CSV_COLUMNS}
@@ -220,14 +223,17 @@ def read_radius_csv(path) -> dict:
         try:
             data["frame"].append(int(row[0]))
         except ValueError:
-            raise DropkinError(f"line {line}: frame is not a whole number", path=path,
-                               value=row[0]) from None
+            raise DropkinError(
+                f"line {line}: frame is not a whole number", path=path, value=row[0]
+            ) from None
         for column, text in zip(CSV_COLUMNS[1:5], row[1:5], strict=True):
             data[column].append(_parse_float(text, path=path, line=line, column=column))
         status = row[5].strip()
         if status not in STATUSES:
             raise DropkinError(
-                f"line {line}: unknown status", path=path, value=status,
+                f"line {line}: unknown status",
+                path=path,
+                value=status,
                 expected=" | ".join(STATUSES),
             )
         data["status"].append(status)

@@ -222,6 +222,22 @@ class TiffStack:
             gray[k] = to_gray(image, order=self._order)
         return gray
 
+    def _memmap(self):
+        """The frames as a read-only memory map (K, M, N), or None.
+
+        Only for uncompressed, contiguous, native-order 2-D frames: then a
+        caller that needs a few rows of each frame reads only those pages.
+        """
+        if self._mode != "raw" or len(self._frame_shape) != 2 or not self._file_dtype.isnative:
+            return None
+        return np.memmap(
+            self.path,
+            dtype=self.dtype,
+            mode="r",
+            offset=self._offset,
+            shape=(self._n, *self._frame_shape),
+        )
+
     def _read_raw(self, start: int, stop: int) -> np.ndarray:
         if self._file is None:
             self._file = open(self.path, "rb")  # closed by close()

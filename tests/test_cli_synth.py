@@ -1,0 +1,140 @@
+"""``dropkin synth``: files written, exit codes, one-line errors."""
+
+import json
+import tomllib
+
+import numpy as np
+import pytest
+import tifffile
+from click.testing import CliRunner
+
+from dropkin.cli import _SYNTH_LAWS, main
+from dropkin.synth import REGIME_NAMES
+from dropkin.units import parse_si
+
+SMALL = ["--frames", "6", "--size", "48x96", "--pixel-size", "25 um"]
+
+
+def _run(*args):
+    return CliRunner().invoke(main, ["synth", *args])
+
+
+def test_synth_writes_a_png_folder(tmp_path):
+    out = tmp_path / "run"
+    result = _run(str(out), *SMALL, "--frame-rate", "20 kfps", "--contact-frame", "2.5")
+    assert result.exit_code == 0, result.output
+    assert len(result.output.strip().splitlines()) == 1
+    assert result.output.startswith("wrote 6 frames (48 x 96, 8-bit png)")
+    assert sorted(p.name for p in out.glob("frame_*.png")) == [
+        f"frame_{k:05d}.png" for k in range(6)
+    ]
+    doc = tomllib.loads((out / "experiment.toml").read_text())
+    assert parse_si(doc["recording"]["frame_rate"], "Hz") == pytest.approx(2e4)
+    assert parse_si(doc["recording"]["pixel_size"], "m") == pytest.approx(25e-6)
+    truth = json.loads((out / "truth.json").read_text())
+    assert truth["contact_time_s"] == pytest.approx(2.5 / 2e4)
+    assert truth["law"]["name"] == "inertial"
+
+
+def test_synth_writes_a_twelve_bit_tiff_of_a_spreading_drop(tmp_path):
+    out = tmp_path / "drop.tif"
+    result = _run(
+        str(out),
+        *SMALL,
+        "--geometry",
+        "spreading",
+        "--bit-depth",
+        "12",
+        "--reflectivity",
+        "0.5",
+        "--drop-radius",
+        "0.3 mm",
+        "--law",
+        "tanner",
+    )
+    assert result.exit_code == 0, result.output
+    stack = tifffile.imread(out)
+    assert stack.shape == (6, 48, 96) and stack.dtype == np.uint16 and stack.max() <= 4095
+    assert (tmp_path / "drop.toml").exists()
+    truth = json.loads((tmp_path / "drop.truth.json").read_text())
+    assert truth["geometry"] == "spreading" and truth["law"]["name"] == "tanner"
+
+
+def test_synth_power_law_with_sub_frame_contact(tmp_path):
+    out = tmp_path / "p"
+    result = _run(
+        str(out),
+        *SMALL,
+        "--law",
+        "power",
+        "--exponent",
+        "0.5",
+        "--prefactor",
+        "0.01",
+        "--contact-frame",
+        "1.75",
+        "--frame-rate",
+        "10 kHz",
+        "--noise",
+        "0",
+    )
+    assert result.exit_code == 0, result.output
+    truth = json.loads((out / "truth.json").read_text())
+    since = np.arange(6) / 1e4 - 1.75 / 1e4
+    expected = np.where(since > 0, 0.01 * np.sqrt(np.abs(since)), 0.0)
+    np.testing.assert_allclose(truth["radius_m"], expected, rtol=1e-12)
+
+
+def test_synth_law_names_are_the_library_regimes():
+    assert set(_SYNTH_LAWS) == {*REGIME_NAMES, "power"}
+
+
+def _one_line_error(result):
+    lines = result.output.strip().splitlines()
+    assert "Traceback" not in result.output
+    return lines
+
+
+def test_bad_quantity_is_a_usage_error(tmp_path):
+    result = _run(str(tmp_path / "x"), *SMALL, "--frame-rate", "5 m")
+    assert result.exit_code == 2
+    lines = _one_line_error(result)
+    assert lines[-1].startswith("Error: Invalid value for '--frame-rate'")
+    assert "has the dimension [length], not that of Hz" in lines[-1]
+
+
+def test_bad_size_is_a_usage_error(tmp_path):
+    result = _run(str(tmp_path / "x"), "--size", "big")
+    assert result.exit_code == 2
+    assert "'big' is not ROWSxCOLS" in _one_line_error(result)[-1]
+
+
+@pytest.mark.parametrize(
+    ("args", "message"),
+    [
+        (["--law", "power"], "--law = 'power': needs --exponent and --prefactor"),
+        (["--contact-frame", "9"], "contact_frame = 9.0: must lie within the recording"),
+        (
+            ["--law", "power", "--exponent", "0.5", "--prefactor", "10", "--contact-frame", "0"],
+            "reaches the smaller drop radius",
+        ),
+        (["--law", "viscous", "--prefactor", "2"], "does not apply to the 'viscous' law"),
+    ],
+)
+def test_bad_values_are_one_line_errors_with_exit_code_1(tmp_path, args, message):
+    result = _run(str(tmp_path / "x"), *SMALL, *args)
+    assert result.exit_code == 1
+    lines = _one_line_error(result)
+    assert len(lines) == 1
+    assert lines[0].startswith("dropkin: error: ")
+    assert message in lines[0]
+    assert not (tmp_path / "x").exists()
+
+
+def test_existing_frames_are_kept_without_overwrite(tmp_path):
+    out = tmp_path / "run"
+    assert _run(str(out), *SMALL).exit_code == 0
+    again = _run(str(out), *SMALL)
+    assert again.exit_code == 1
+    assert "already holds frames" in again.output
+    assert _run(str(out), *SMALL, "--overwrite").exit_code == 0
