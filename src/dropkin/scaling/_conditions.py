@@ -1,0 +1,134 @@
+"""Conditions of validity of the catalogue's regimes, in terms of a sample's numbers.
+
+Each condition takes a :class:`SampleNumbers` and returns ``(plausible,
+reason)``; the reason shows the numbers that decided, in one line.
+
+Examples
+--------
+>>> from dropkin.scaling import sample_numbers
+>>> n = sample_numbers(surface_tension=0.0634, viscosity=1.414, density=1261.0, radius=1e-3)
+>>> inertial(n)
+(False, 'Oh = 5 (inertia reached before r ~ R when < 1); outer fluid unknown, taken as negligible')
+"""
+
+from __future__ import annotations
+
+import math
+
+from ._numbers import SampleNumbers
+
+#: Viscosity slows coalescence above this Oh (Re_v = Oh**-2 < 5000; Thoroddsen,
+#: Takehara & Etoh, J. Fluid Mech. 527, 85, 2005; status V).
+OH_VISCOUS = 0.014
+#: The outer fluid's viscosity governs the late neck above this outer Oh
+#: (Nat. Commun. 5, 3182, 2014; status V).
+OH_OUTER_CROSSOVER = 0.77
+#: The outer fluid counts when it is within a decade of the drop liquid (D).
+COMPARABLE = 10.0
+
+
+def _g(x) -> str:
+    return "unknown" if x is None else f"{x:.3g}"
+
+
+def _outer_negligible(n: SampleNumbers) -> tuple[bool, str]:
+    lam, dr = n.viscosity_ratio, n.density_ratio
+    if lam is None or dr is None:
+        return True, "outer fluid unknown, taken as negligible"
+    ok = lam >= COMPARABLE and dr <= 1.0 / COMPARABLE
+    return ok, f"η/η_o = {_g(lam)}, ρ_o/ρ = {_g(dr)}"
+
+
+def viscous(n):
+    ok, outer = _outer_negligible(n)
+    good = n.ohnesorge >= OH_VISCOUS and ok
+    return good, f"Oh = {_g(n.ohnesorge)} (viscous when ≥ {OH_VISCOUS}); {outer}"
+
+
+def viscous_equal_outer(n):
+    lam = n.viscosity_ratio
+    if lam is None:
+        return False, "outer viscosity unknown"
+    good = 1.0 / COMPARABLE <= lam <= COMPARABLE
+    return good, f"η/η_o = {_g(lam)} (comparable when within a decade of 1)"
+
+
+def always_first(n):
+    return True, "the earliest regime for every viscosity (PNAS 2012)"
+
+
+def inertial(n):
+    ok, outer = _outer_negligible(n)
+    if n.ohnesorge_outer is not None and n.ohnesorge_outer >= OH_OUTER_CROSSOVER:
+        ok = False
+    good = n.ohnesorge < 1.0 and ok
+    return good, f"Oh = {_g(n.ohnesorge)} (inertia reached before r ~ R when < 1); {outer}"
+
+
+def viscous_outer(n):
+    oh = n.ohnesorge_outer
+    if oh is None:
+        return False, "outer fluid unknown"
+    return oh >= OH_OUTER_CROSSOVER, f"Oh_out = {_g(oh)} (outer-viscous above 0.77)"
+
+
+def inertial_outer(n):
+    oh, dr = n.ohnesorge_outer, n.density_ratio
+    if oh is None or dr is None:
+        return False, "outer fluid unknown"
+    good = oh < OH_OUTER_CROSSOVER and dr >= 1.0 / COMPARABLE
+    return good, f"Oh_out = {_g(oh)} (outer-inertial below 0.77), ρ_o/ρ = {_g(dr)}"
+
+
+def _angle_text(n):
+    return "θ unknown" if n.contact_angle is None else f"θ = {math.degrees(n.contact_angle):.3g}°"
+
+
+def viscous_sessile(n):
+    return n.ohnesorge >= OH_VISCOUS, f"Oh = {_g(n.ohnesorge)}; {_angle_text(n)}"
+
+
+def inertial_sessile(n):
+    below = n.contact_angle is None or n.contact_angle < math.radians(85.0)
+    good = n.ohnesorge < 1.0 and below
+    return good, f"Oh = {_g(n.ohnesorge)} (< 1); {_angle_text(n)} (t^2/3 needs θ < 90°)"
+
+
+def inertial_free_or_right_angle(n):
+    good, text = inertial(n)
+    if n.contact_angle is not None and abs(math.degrees(n.contact_angle) - 90.0) > 5.0:
+        return False, f"{_angle_text(n)}: on a substrate t^1/2 holds at θ = 90° only"
+    return good, text
+
+
+def sessile_width(n):
+    return n.ohnesorge >= OH_VISCOUS, f"Oh = {_g(n.ohnesorge)}; thin viscous drops, top view"
+
+
+def inertial_spreading(n):
+    return n.ohnesorge < 1.0, f"Oh = {_g(n.ohnesorge)} (inertial when < 1)"
+
+
+def viscous_spreading(n):
+    return n.ohnesorge >= OH_VISCOUS, f"Oh = {_g(n.ohnesorge)} (viscous when ≥ {OH_VISCOUS})"
+
+
+def hertz_like(n):
+    return n.ohnesorge >= 1.0, f"Oh = {_g(n.ohnesorge)} (very viscous when ≥ 1)"
+
+
+def tanner(n):
+    return n.bond < 1.0, (
+        f"Bo = {_g(n.bond)} (small drop when < 1); needs complete wetting (not checked)"
+    )
+
+
+def gravity(n):
+    return True, (
+        f"late stage once R_c ≳ ℓ_c = {n.capillary_length * 1e3:.3g} mm; "
+        f"R/ℓ_c = {_g(n.radius / n.capillary_length)}"
+    )
+
+
+def null_model(n):
+    return False, "null model: a fit on (νt)^1/2 with C ≈ 1 is a coincidence check"
