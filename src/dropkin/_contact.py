@@ -32,7 +32,7 @@ import math
 from dataclasses import dataclass
 
 import numpy as np
-from scipy import optimize
+from scipy.optimize import minimize_scalar
 
 __all__ = ["ContactEstimate", "estimate_contact"]
 
@@ -69,35 +69,47 @@ class ContactEstimate:
         return self.time is not None
 
 
-def _cov_err(sol, column: int) -> float | None:
-    dof = len(sol.fun) - len(sol.x)
-    if dof <= 0:
-        return None
-    scale = max(float(np.sum(sol.fun**2)) / dof, 1.0)
-    cov = np.linalg.pinv(sol.jac.T @ sol.jac) * scale
-    value = float(cov[column, column])
-    return math.sqrt(value) if math.isfinite(value) and value >= 0 else None
-
-
 def _from_radius(t, r, err, lo, hi):
-    """t0 and its error from a power law with free exponent, or (None, None)."""
-    weights = 1.0 / err
+    """t0 and its error from a power law with free exponent, or (None, None).
 
-    def resid(p):
-        a, t0, n = p
-        return (a * np.maximum(t - t0, 0.0) ** n - r) * weights
-
-    span = max(t[-1] - lo, 1e-300)
-    a0 = r[-1] / span**0.5
-    sol = optimize.least_squares(
-        resid,
-        x0=[a0, 0.5 * (lo + hi), 0.5],
-        bounds=([0.0, lo, 0.1], [np.inf, hi, 1.5]),
-        x_scale=[a0, max(hi - lo, 1e-300), 0.1],
-    )
-    if not sol.success:
+    ``ln r = ln A + n ln(t - t0)`` is linear in (ln A, n) for a given t0, so
+    the weighted least squares (weights r / err: relative errors) is solved
+    in closed form for each t0 and the sum of squares minimised over t0
+    alone (a profile). The error of t0 comes from the profile's curvature,
+    scaled by the reduced chi-square when it exceeds one.
+    """
+    if np.any(r <= 0):
         return None, None
-    return float(sol.x[1]), _cov_err(sol, 1)
+    ln_r = np.log(r)
+    w2 = (r / err) ** 2
+    top = min(hi, float(t[0])) - 1e-9 * max(float(t[-1] - lo), 1e-300)
+    if not top > lo:
+        return None, None
+
+    def chi2(t0):
+        x = np.log(t - t0)
+        sw, sx, sy = w2.sum(), (w2 * x).sum(), (w2 * ln_r).sum()
+        sxx, sxy = (w2 * x * x).sum(), (w2 * x * ln_r).sum()
+        denom = sw * sxx - sx * sx
+        n = (sw * sxy - sx * sy) / denom if denom > 0 else 0.5
+        n = min(max(n, 0.1), 1.5)
+        a = (sy - n * sx) / sw
+        return float((w2 * (ln_r - a - n * x) ** 2).sum())
+
+    span = top - lo
+    best = minimize_scalar(
+        chi2, bounds=(lo, top), method="bounded", options={"xatol": 1e-6 * span}
+    )
+    t0 = float(best.x)
+    h = 1e-3 * span
+    a, b = max(t0 - h, lo), min(t0 + h, top)
+    mid = 0.5 * (a + b)
+    curv = (chi2(b) - 2.0 * chi2(mid) + chi2(a)) / (0.5 * (b - a)) ** 2
+    dof = len(t) - 3
+    if dof <= 0 or not curv > 0:
+        return t0, None
+    scale = max(chi2(t0) / dof, 1.0)
+    return t0, math.sqrt(2.0 / curv * scale)
 
 
 def _from_gap(t, gap):

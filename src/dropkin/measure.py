@@ -14,7 +14,6 @@ import hashlib
 import math
 from collections.abc import Callable
 from concurrent.futures import ProcessPoolExecutor
-from dataclasses import dataclass
 from pathlib import Path
 
 import numpy as np
@@ -28,7 +27,7 @@ from .series import RadiusSeries
 __all__ = ["MeasureOptions", "Preparation", "measure", "prepare", "recording_sha256"]
 
 
-@dataclass(frozen=True)
+@dataclasses.dataclass(frozen=True)
 class MeasureOptions:
     """Settings of a measurement (all optional).
 
@@ -57,7 +56,7 @@ class MeasureOptions:
     gap_blurs: float = 3.0
 
 
-@dataclass(frozen=True)
+@dataclasses.dataclass(frozen=True)
 class Preparation:
     """What the first frames tell, used for every frame.
 
@@ -75,6 +74,8 @@ class Preparation:
         The drops (coalescence).
     reference_frame : int
         Index (in the recording) of the frame they were found in.
+    cache : dict
+        Sampling bands kept between chunks (an implementation detail).
     """
 
     illumination: np.ndarray
@@ -83,6 +84,7 @@ class Preparation:
     blur: float
     pair: object | None
     reference_frame: int
+    cache: dict = dataclasses.field(default_factory=dict, repr=False, compare=False)
 
 
 def _crop(frames, roi):
@@ -163,7 +165,7 @@ def _measure_chunk(args):
     return start, _neck_chunk(_crop(frames, options.roi), prep, options)
 
 
-def _neck_chunk(frames, prep, options):
+def _neck_chunk(frames, prep, options, hint=None):
     return vision.measure_necks(
         frames,
         prep.pair,
@@ -173,7 +175,15 @@ def _neck_chunk(frames, prep, options):
         blur=prep.blur,
         level=options.level,
         gap_blurs=options.gap_blurs,
+        cache=prep.cache,
+        hint=hint,
     )
+
+
+def _last_radius(result, previous):
+    """The last measured neck radius of a chunk (a hint for the next one)."""
+    finite = np.nonzero(np.isfinite(result.radius))[0]
+    return float(result.radius[finite[-1]]) if finite.size else previous
 
 
 def _stream(recording, prep, options, progress):
@@ -184,17 +194,22 @@ def _stream(recording, prep, options, progress):
     if mapped is not None:
         # A memory-mapped stack: the band sampling reads only the pages it
         # touches, not every pixel.
+        hint = None
+        size *= 4  # views of the map cost no memory: fewer, larger chunks
         for start in range(0, n, size):
             chunk = mapped[start : start + size]
-            result = _neck_chunk(_crop(chunk, options.roi), prep, options)
+            result = _neck_chunk(_crop(chunk, options.roi), prep, options, hint)
+            hint = _last_radius(result, hint)
             if progress is not None:
                 progress(start + len(chunk), n)
             yield start, result
         return
     if options.jobs <= 1:
         done = 0
+        hint = None
         for start, chunk in recording.chunks(size):
-            result = _neck_chunk(_crop(chunk, options.roi), prep, options)
+            result = _neck_chunk(_crop(chunk, options.roi), prep, options, hint)
+            hint = _last_radius(result, hint)
             done += len(chunk)
             if progress is not None:
                 progress(done, n)

@@ -71,27 +71,26 @@ def _consensus(points, tolerance: float, trials: int):
     """
     rng = np.random.default_rng(0)
     n = len(points)
-    best = None
-    best_count = -1
-    for _ in range(trials):
-        trio = points[rng.choice(n, size=3, replace=False)]
-        (a, b), (c, d), (e, f) = trio
-        det = 2.0 * (a * (d - f) + c * (f - b) + e * (b - d))
-        if abs(det) < 1e-9:
-            continue
-        s1, s2, s3 = a * a + b * b, c * c + d * d, e * e + f * f
-        centre = np.array(
-            [
-                (s1 * (d - f) + s2 * (f - b) + s3 * (b - d)) / det,
-                (s1 * (e - c) + s2 * (a - e) + s3 * (c - a)) / det,
-            ]
-        )
-        radius = np.hypot(*(trio[0] - centre))
-        inliers = np.abs(np.hypot(*(points - centre).T) - radius) <= tolerance
-        count = int(inliers.sum())
-        if count > best_count:
-            best, best_count = inliers, count
-    return best
+    picks = rng.integers(0, n, size=(trials, 3))
+    distinct = (
+        (picks[:, 0] != picks[:, 1]) & (picks[:, 1] != picks[:, 2]) & (picks[:, 0] != picks[:, 2])
+    )
+    trio = points[picks[distinct]]
+    (a, b), (c, d), (e, f) = (trio[:, k, :].T for k in range(3))
+    det = 2.0 * (a * (d - f) + c * (f - b) + e * (b - d))
+    good = np.abs(det) > 1e-9
+    det = np.where(good, det, 1.0)
+    s1, s2, s3 = a * a + b * b, c * c + d * d, e * e + f * f
+    rows = (s1 * (d - f) + s2 * (f - b) + s3 * (b - d)) / det
+    cols = (s1 * (e - c) + s2 * (a - e) + s3 * (c - a)) / det
+    radius = np.hypot(a - rows, b - cols)
+    dist = np.hypot(points[None, :, 0] - rows[:, None], points[None, :, 1] - cols[:, None])
+    inliers = np.abs(dist - radius[:, None]) <= tolerance
+    counts = np.where(good, inliers.sum(axis=1), -1)
+    if not counts.size:
+        return None
+    best = int(np.argmax(counts))
+    return inliers[best] if counts[best] >= 3 else None
 
 
 def fit_circle(

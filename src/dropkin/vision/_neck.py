@@ -13,9 +13,11 @@ neighbours.
 
 from __future__ import annotations
 
+import math
 from dataclasses import dataclass
 
 import numpy as np
+from scipy import sparse
 
 __all__ = [
     "STATUS_NAMES",
@@ -56,6 +58,16 @@ class Band:
         Flat indices of the four neighbours of each sample point.
     weight : (4, U, S) ndarray of float32
         Their bilinear weights.
+    pixels : (P,) ndarray of intp
+        The distinct pixels in `index`, as flat indices into the bounding
+        box `box` (each pixel is read once).
+    inverse : (4, U, S) ndarray of intp
+        Where each entry of `index` lies in `pixels`.
+    box : tuple of int
+        (row_start, row_stop, col_start, col_stop) of the pixels the band
+        reads.
+    matrix : scipy.sparse.csr_matrix
+        (U * S, P) bilinear weights: samples = matrix @ pixel values.
     valid : (U, S) ndarray of bool
         Sample points whose four neighbours lie inside the frame.
     """
@@ -68,6 +80,10 @@ class Band:
     index: np.ndarray
     weight: np.ndarray
     valid: np.ndarray
+    pixels: np.ndarray
+    inverse: np.ndarray
+    box: tuple
+    matrix: object
 
     @property
     def points(self) -> np.ndarray:
@@ -89,6 +105,7 @@ def make_band(
     u_half: float,
     s_step: float = 0.5,
     u_step: float = 1.0,
+    u_values=None,
 ) -> Band:
     """Build the sampling grid for frames of `shape`.
 
@@ -106,18 +123,27 @@ def make_band(
         Rows cover ``-u_half ... u_half`` (px).
     s_step, u_step : float, optional
         Grid spacing (px).
+    u_values : (H,) array_like, optional
+        Distances from the axis to sample on each side, increasing from 0
+        (overrides `u_half` and `u_step`): dense only where an edge is
+        expected, sparse elsewhere.
     """
     origin = np.asarray(origin, dtype=np.float64)
     axis = np.asarray(axis, dtype=np.float64)
     axis = axis / np.hypot(*axis)
     normal = np.array([-axis[1], axis[0]])
     n_s = max(int(np.ceil(s_half / s_step)), 1)
-    n_u = max(int(np.ceil(u_half / u_step)), 2)
+    if u_values is None:
+        n_u = max(int(np.ceil(u_half / u_step)), 2)
+        u_values = u_step * np.arange(n_u + 1)
+    u_values = np.asarray(u_values, dtype=np.float64)
+    if u_values[0] != 0 or np.any(np.diff(u_values) <= 0):
+        raise ValueError("u_values must increase from 0")
     # Columns on one grid through the origin, whatever the centre: bands of
     # different chunks then sample the same points (results do not depend on
     # how the recording is cut into chunks).
     s = s_step * (round(s_centre / s_step) + np.arange(-n_s, n_s + 1))
-    u = u_step * np.arange(-n_u, n_u + 1)
+    u = np.concatenate([-u_values[:0:-1], u_values])
     rows = origin[0] + axis[0] * s[None, :] + normal[0] * u[:, None]
     cols = origin[1] + axis[1] * s[None, :] + normal[1] * u[:, None]
     r0 = np.floor(rows)
@@ -131,7 +157,22 @@ def make_band(
     base = r0 * n + c0
     index = np.stack([base, base + 1, base + n, base + n + 1])
     weight = np.stack([(1 - fr) * (1 - fc), (1 - fr) * fc, fr * (1 - fc), fr * fc])
-    return Band(origin, axis, normal, s, u, index, weight.astype(np.float32), valid)
+    pixels, inverse = np.unique(index, return_inverse=True)
+    rows_px, cols_px = np.divmod(pixels, n)
+    box = (int(rows_px.min()), int(rows_px.max()) + 1, int(cols_px.min()), int(cols_px.max()) + 1)
+    local = (rows_px - box[0]) * (box[3] - box[2]) + (cols_px - box[2])
+    inverse = inverse.reshape(index.shape)
+    weight = weight.astype(np.float32)
+    count = inverse[0].size
+    matrix = sparse.csr_matrix(
+        (
+            weight.reshape(4, -1).T.ravel(),
+            inverse.reshape(4, -1).T.ravel(),
+            np.arange(0, 4 * count + 1, 4),
+        ),
+        shape=(count, len(pixels)),
+    )
+    return Band(origin, axis, normal, s, u, index, weight, valid, local, inverse, box, matrix)
 
 
 def sample_band(frames, band: Band):
@@ -146,13 +187,15 @@ def sample_band(frames, band: Band):
     -------
     samples : (K, U, S) ndarray of float32
     """
-    frames = np.asarray(frames)
-    flat = frames.reshape(frames.shape[0], -1)
-    out = None
-    for idx, w in zip(band.index, band.weight, strict=True):
-        term = flat[:, idx].astype(np.float32, copy=False) * w
-        out = term if out is None else out + term
-    return out
+    frames = np.asarray(frames) if not isinstance(frames, np.memmap) else frames
+    r0, r1, c0, c1 = band.box
+    # Copy the band's bounding box (on a memory map, only the pages holding
+    # it are read), pick each pixel the band needs once, then apply the
+    # bilinear weights to those few values.
+    box = np.ascontiguousarray(frames[:, r0:r1, c0:c1]).reshape(frames.shape[0], -1)
+    values = np.take(box, band.pixels, axis=1).astype(np.float32)
+    out = np.asarray(values @ band.matrix.T, dtype=np.float32)
+    return out.reshape(frames.shape[0], *band.index.shape[1:])
 
 
 @dataclass(frozen=True)
@@ -187,13 +230,17 @@ class NeckResult:
     gap: np.ndarray
 
 
-def _edge_outward(side, valid_side, level, step):
+def _edge_outward(side, valid_side, level, pos):
     """First crossing of `level` going outward in each column.
 
-    `side` is (K, H, S) with row 0 on the axis and `valid_side` (H, S) marks
-    samples inside the frame. Returns the distance from the axis (K, S), the
-    local slope |dT/du| at the crossing, a mask "no crossing inside the
-    band", and a mask "the search left the frame before a crossing".
+    `side` is (K, H, S) with row 0 on the axis, `valid_side` (H, S) marks
+    samples inside the frame and `pos` (H,) holds the rows' distances from
+    the axis. Returns the distance of the crossing (K, S), the local slope
+    |dT/du| there, masks "no crossing inside the band", "the search left the
+    frame before a crossing" and "the crossing lies between samples more
+    than a pixel apart", and the distance to the frame border along the
+    search (S,) (a lower bound of the edge's distance where the search left
+    the frame).
     """
     bright = (side >= level) & valid_side[None]
     bright[:, 0, :] = False
@@ -206,8 +253,10 @@ def _edge_outward(side, valid_side, level, step):
     t_in = np.take_along_axis(side, (j - 1)[:, None, :], axis=1)[:, 0, :]
     t_out = np.take_along_axis(side, j[:, None, :], axis=1)[:, 0, :]
     rise = np.maximum(t_out - t_in, 1e-6)
-    dist = (j - 1 + np.clip((level - t_in) / rise, 0.0, 1.0)) * step
-    return dist, rise / step, none, left_frame, (first_out - 1) * step
+    spacing = pos[j] - pos[j - 1]
+    dist = pos[j - 1] + np.clip((level - t_in) / rise, 0.0, 1.0) * spacing
+    coarse = spacing > 1.0 + 1e-9
+    return dist, rise / spacing, none, left_frame, coarse, pos[np.maximum(first_out - 1, 0)]
 
 
 def gap_on_axis(on_axis, valid, s_step: float):
@@ -248,6 +297,7 @@ def neck_from_band(
     level: float = 0.5,
     min_gap: float = 1.0,
     err_floor: float = 0.1,
+    allow_coarse: bool = False,
 ) -> NeckResult:
     """Measure the neck in a chunk of frames sampled on a band.
 
@@ -269,6 +319,9 @@ def neck_from_band(
         times the edges' blur (see :func:`edge_blur`).
     err_floor : float, optional
         Uncertainty floor (px) for interpolation error.
+    allow_coarse : bool, optional
+        Accept edges found between samples more than a pixel apart (for a
+        quick, rough look); otherwise such frames need a denser band.
 
     Returns
     -------
@@ -291,7 +344,7 @@ def neck_from_band(
     trans = np.asarray(trans, dtype=np.float32)
     k, n_u, n_s = trans.shape
     c = n_u // 2
-    step = float(band.u[1] - band.u[0])
+    pos = band.u[c:]
     status = np.full(k, OK, dtype=np.int8)
     radius = np.full(k, np.nan)
     radius_err = np.full(k, np.nan)
@@ -303,13 +356,14 @@ def neck_from_band(
     on_axis_dark = trans[:, c, :] < level
     gap_seen = ~on_axis_dark & band.valid[c][None, :]
     before = gap_seen.any(axis=1)
-    nothing = ~((trans < level) & band.valid[None]).any(axis=(1, 2))
+    # No drop in the band at all (every other sample is enough to tell).
+    nothing = ~((trans[:, ::2, ::2] < level) & band.valid[None, ::2, ::2]).any(axis=(1, 2))
 
-    up, slope_up, none_up, out_up, border_up = _edge_outward(
-        trans[:, c:, :], band.valid[c:], level, step
+    up, slope_up, none_up, out_up, coarse_up, border_up = _edge_outward(
+        trans[:, c:, :], band.valid[c:], level, pos
     )
-    down, slope_dn, none_dn, out_dn, border_dn = _edge_outward(
-        trans[:, c::-1, :], band.valid[c::-1], level, step
+    down, slope_dn, none_dn, out_dn, coarse_dn, border_dn = _edge_outward(
+        trans[:, c::-1, :], band.valid[c::-1], level, pos
     )
     # Columns whose bridge reaches past the frame border: their width is
     # only known to exceed the distance to the border.
@@ -344,31 +398,25 @@ def neck_from_band(
     r_px = np.asarray(radii, dtype=np.float64)
     gap = radius_all**2 * 0.5 * (1.0 / r_px[0] + 1.0 / r_px[1])
     limit = (none_up | none_dn)[rows, m]
+    if not allow_coarse:
+        limit |= (coarse_up | coarse_dn)[rows, m]
     # At the edge: a column that leaves the frame might be narrower than
     # the narrowest column measured in full.
     at_edge = bound <= w_min
 
-    for i in range(k):
-        if nothing[i]:
-            status[i] = NOT_FOUND
-            continue
-        if before[i]:
-            status[i] = BEFORE_CONTACT
-            continue
-        if at_edge[i]:
-            status[i] = AT_EDGE
-            continue
-        if not np.isfinite(w_min[i]) or limit[i]:
-            status[i] = BAND_LIMIT
-            continue
-        radius[i] = radius_all[i]
-        radius_err[i] = err_all[i]
-        s_neck[i] = band.s[m[i]] + offset[i] * s_step
-        base = band.origin + band.axis * s_neck[i]
-        edges[i, 0] = base + band.normal * up[i, m[i]]
-        edges[i, 1] = base - band.normal * down[i, m[i]]
-        if gap[i] < min_gap:
-            status[i] = UNRESOLVED
+    measured = ~nothing & ~before & ~at_edge & np.isfinite(w_min) & ~limit
+    status[nothing] = NOT_FOUND
+    status[~nothing & before] = BEFORE_CONTACT
+    status[~nothing & ~before & at_edge] = AT_EDGE
+    status[~nothing & ~before & ~at_edge & ~measured] = BAND_LIMIT
+    status[measured & (gap < min_gap)] = UNRESOLVED
+    radius[measured] = radius_all[measured]
+    radius_err[measured] = err_all[measured]
+    s_neck[measured] = band.s[m[measured]] + offset[measured] * s_step
+    base = band.origin[None, :] + band.axis[None, :] * s_neck[:, None]
+    up_m, down_m = up[rows, m], down[rows, m]
+    edges[:, 0] = np.where(measured[:, None], base + band.normal * up_m[:, None], np.nan)
+    edges[:, 1] = np.where(measured[:, None], base - band.normal * down_m[:, None], np.nan)
     return NeckResult(radius, radius_err, s_neck, edges, status, gap_width)
 
 
@@ -382,13 +430,17 @@ def measure_necks(
     blur: float,
     level: float = 0.5,
     gap_blurs: float = 3.0,
+    cache: dict | None = None,
+    hint: float | None = None,
 ) -> NeckResult:
     """Neck radius in each frame of a chunk, looking only at a band around the neck.
 
-    The band is sized from the chunk's last frame (measured first, on a band
-    as wide as the smaller drop), since the neck grows; frames whose bridge
-    does not fit, or whose narrowest column is at the band's end, are
-    measured again on the full band. Chunks are independent of each other, so
+    The chunk's first and last frames are looked at first, roughly (every
+    2 px), on a band as wide as the smaller drop; the frames are then sampled
+    on the line of centres and, across it, only between the two neck radii
+    found, with a margin, every pixel. Frames whose edge falls outside the dense
+    rows, whose bridge does not fit, or whose narrowest column is at the
+    band's end, are measured again on the full band. Chunks are independent of each other, so
     they can be measured in parallel.
 
     Parameters
@@ -410,6 +462,15 @@ def measure_necks(
     gap_blurs : float, optional
         The neck counts as resolved once the gap beside it is this many blur
         sigmas wide (``min_gap = gap_blurs * blur``).
+    cache : dict, optional
+        Keeps bands and their illumination between calls (pass the same
+        dict for every chunk of one recording); bands are sized in steps of
+        4 px so that most chunks reuse one.
+    hint : float, optional
+        The neck radius (px) just before the chunk, when known (the previous
+        chunk's last one); it saves a look at the chunk's first frame. The
+        result does not depend on it: every band samples the same grid, and
+        frames whose edge falls outside the dense rows are measured again.
 
     Returns
     -------
@@ -423,20 +484,33 @@ def measure_necks(
     full_s = 0.25 * r_small + 6.0
     full_u = 1.1 * r_small + 4.0
     illum = illumination[None]
+    cache = {} if cache is None else cache
 
-    def run(sub, s_centre, s_half, u_half, step):
-        band = make_band(
-            shape,
-            pair.contact_point,
-            pair.axis,
-            s_centre=s_centre,
-            s_half=s_half,
-            u_half=u_half,
-            s_step=step,
-            u_step=1.0,
-        )
-        span = np.maximum(sample_band(illum, band) - np.float32(dark), 1e-6)
-        trans = (sample_band(sub, band) - np.float32(dark)) / span
+    def band_for(s_centre, s_half, u_lo, u_hi, step, sparse=None):
+        """A band (cached): the axis, and rows from u_lo to u_hi every pixel
+        (and every `sparse` px below u_lo, if given)."""
+        lo, hi = 4 * int(max(u_lo, 0.0) // 4), 4 * math.ceil(u_hi / 4.0)
+        key = (shape, round(s_centre / 2.0), math.ceil(s_half / 4.0), lo, hi, step, sparse)
+        if key not in cache:
+            inner = np.arange(0.0, lo, sparse) if sparse else np.zeros(1)
+            u_values = np.concatenate([inner, np.arange(lo, hi + 1.0)])
+            band = make_band(
+                shape,
+                pair.contact_point,
+                pair.axis,
+                s_centre=2.0 * key[1],
+                s_half=4.0 * key[2],
+                u_half=hi,
+                s_step=step,
+                u_values=np.unique(u_values),
+            )
+            span = np.maximum(sample_band(illum, band) - np.float32(dark), 1e-6)
+            cache[key] = (band, 1.0 / span)
+        return cache[key]
+
+    def run(sub, s_centre, s_half, u_lo, u_hi, step, *, sparse=None, rough=False):
+        band, inv_span = band_for(s_centre, s_half, u_lo, u_hi, step, sparse)
+        trans = (sample_band(sub, band) - np.float32(dark)) * inv_span
         result = neck_from_band(
             trans,
             band,
@@ -444,39 +518,40 @@ def measure_necks(
             radii=pair.radii,
             level=level,
             min_gap=gap_blurs * blur,
+            allow_coarse=rough,
         )
         ends = np.isin(result.s_neck, (band.s[0], band.s[-1]))
         return result, ends
 
     step = 0.5 if r_small < 80 else 1.0
-    probe, _ = run(frames[-1:], 0.0, full_s, full_u, step)
-    if np.isfinite(probe.radius[0]):
-        r_last, s_last = float(probe.radius[0]), float(probe.s_neck[0])
-        result, ends = run(
-            frames, s_last, min(0.15 * r_last + 6.0, full_s), min(1.3 * r_last + 6.0, full_u), step
-        )
+    # A rough look (every 2 px) at the chunk's last frame, and at its first
+    # unless the caller knows the neck there, bounds the neck in the chunk.
+    probe_frames = frames[[-1]] if hint is not None else frames[[0, -1]]
+    probe, _ = run(probe_frames, 0.0, full_s, full_u, full_u, 2.0, sparse=2.0, rough=True)
+    if np.isfinite(probe.radius[-1]):
+        if hint is not None:
+            r_first = hint
+        else:
+            r_first = probe.radius[0] if np.isfinite(probe.radius[0]) else 0.0
+        r_last, s_last = float(probe.radius[-1]), float(probe.s_neck[-1])
+        s_half = min(0.15 * r_last + 6.0, full_s)
+        u_lo = min(r_first, r_last) - 6.0
+        u_hi = min(1.05 * max(r_first, r_last) + 6.0, full_u)
+        result, ends = run(frames, s_last, s_half, u_lo, u_hi, step)
     else:
-        result, ends = run(frames, 0.0, full_s, full_u, step)
+        result, ends = run(frames, 0.0, full_s, 0.0, full_u, step)
         ends[:] = False
     redo = (result.status == BAND_LIMIT) | ends
     if redo.any():
-        again, _ = run(frames[redo], 0.0, full_s, full_u, step)
+        again, _ = run(frames[redo], 0.0, full_s, 0.0, full_u, step)
         for name in ("radius", "radius_err", "s_neck", "edges", "status", "gap"):
             getattr(result, name)[redo] = getattr(again, name)
     # The gap on a fixed stretch of the axis, the same for every chunk.
-    axis_band = make_band(
-        shape,
-        pair.contact_point,
-        pair.axis,
-        s_centre=0.0,
-        s_half=full_s,
-        u_half=1.0,
-        s_step=step,
-        u_step=1.0,
-    )
+    axis_band, inv_span = band_for(0.0, full_s, 0.0, 1.0, step)
     centre_row = len(axis_band.u) // 2
-    span = np.maximum(sample_band(illum, axis_band)[:, centre_row] - np.float32(dark), 1e-6)
-    on_axis = (sample_band(frames, axis_band)[:, centre_row] - np.float32(dark)) / span
+    on_axis = (sample_band(frames, axis_band)[:, centre_row] - np.float32(dark)) * inv_span[
+        :, centre_row
+    ]
     result.gap[:] = gap_on_axis(on_axis, axis_band.valid[centre_row], step)
     status = result.status
     status[status == BAND_LIMIT] = NOT_FOUND

@@ -78,15 +78,18 @@ def _order(c0: CircleFit, c1: CircleFit):
     return (c0, c1) if d[key] >= 0 else (c1, c0)
 
 
-def _fit_away_from(points, other_centre, *, exclude_deg: float = 40.0) -> CircleFit:
-    """Circle fit that leaves out the outline facing the other drop (the bridge)."""
-    first = fit_circle(points)
+def _fit_away_from(points, first: CircleFit, other_centre, *, exclude_deg: float = 40.0):
+    """Refit `first` without the outline facing the other drop (the bridge).
+
+    The points `first` trimmed as outliers stay out; the refit needs no
+    consensus search.
+    """
     towards = other_centre - first.centre
     towards = towards / max(np.hypot(*towards), 1e-12)
     rel = points - first.centre
     cosang = (rel @ towards) / np.maximum(np.hypot(rel[:, 0], rel[:, 1]), 1e-12)
-    keep = cosang < np.cos(np.deg2rad(exclude_deg))
-    return fit_circle(points[keep]) if keep.sum() >= 8 else first
+    keep = (cosang < np.cos(np.deg2rad(exclude_deg))) & first.used
+    return fit_circle(points[keep], consensus=None) if keep.sum() >= 8 else first
 
 
 def find_drop_pair(trans, *, level: float = 0.5, min_area: int = 20) -> DropPair:
@@ -184,8 +187,8 @@ def find_drop_pair(trans, *, level: float = 0.5, min_area: int = 20) -> DropPair
         raise MeasurementError("fewer than two drops found in the frame")
     first = [fit_circle(g) for g in groups]
     circles = (
-        _fit_away_from(groups[0], first[1].centre),
-        _fit_away_from(groups[1], first[0].centre),
+        _fit_away_from(groups[0], first[0], first[1].centre),
+        _fit_away_from(groups[1], first[1], first[0].centre),
     )
     c0, c1 = _order(*circles)
     delta = c1.centre - c0.centre
@@ -215,25 +218,29 @@ def edge_blur(trans, pair: DropPair, *, angles: int = 48) -> float:
 
     trans = np.asarray(trans, dtype=np.float64)
     m, n = trans.shape
-    slopes = []
     offsets = np.arange(-4.0, 4.0001, 0.25)
+    lines = []
     for k, circle in enumerate(pair.circles):
         towards = pair.axis if k == 0 else -pair.axis
-        for theta in np.linspace(0, 2 * np.pi, angles, endpoint=False):
-            direction = np.array([np.sin(theta), np.cos(theta)])
-            if direction @ towards > 0.5:
-                continue
-            pts = circle.centre[:, None] + direction[:, None] * (circle.radius + offsets)
-            if (
-                pts[0].min() < 1
-                or pts[0].max() > m - 2
-                or pts[1].min() < 1
-                or pts[1].max() > n - 2
-            ):
-                continue
-            profile = ndi.map_coordinates(trans, pts, order=1)
-            slopes.append(np.max(np.diff(profile)) / 0.25)
-    if not slopes:
+        theta = np.linspace(0, 2 * np.pi, angles, endpoint=False)
+        direction = np.stack([np.sin(theta), np.cos(theta)], axis=1)
+        direction = direction[direction @ towards <= 0.5]
+        pts = circle.centre[None, :, None] + direction[:, :, None] * (circle.radius + offsets)
+        inside = (
+            (pts[:, 0].min(axis=1) >= 1)
+            & (pts[:, 0].max(axis=1) <= m - 2)
+            & (pts[:, 1].min(axis=1) >= 1)
+            & (pts[:, 1].max(axis=1) <= n - 2)
+        )
+        lines.append(pts[inside])
+    lines = np.concatenate(lines)
+    slopes = []
+    if len(lines):
+        profiles = ndi.map_coordinates(
+            trans, [lines[:, 0].ravel(), lines[:, 1].ravel()], order=1
+        ).reshape(len(lines), -1)
+        slopes = np.max(np.diff(profiles, axis=1), axis=1) / 0.25
+    if not len(slopes):
         return 1.0
     slope = float(np.median(slopes))
     return max(1.0 / (np.sqrt(2 * np.pi) * max(slope, 1e-6)), 0.3)

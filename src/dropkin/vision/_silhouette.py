@@ -150,8 +150,13 @@ def fit_illumination(frame, *, background=None, degree: int = 2, step: int = 4):
     coeffs, *_ = np.linalg.lstsq(
         design(rows[use], cols[use]), frame[::step, ::step][use], rcond=None
     )
-    full_r, full_c = np.mgrid[0 : frame.shape[0], 0 : frame.shape[1]]
-    return design(full_r.astype(np.float64), full_c.astype(np.float64)) @ coeffs
+    # Evaluate on the full grid term by term: r^i c^j is an outer product.
+    r_axis = np.arange(frame.shape[0]) / scale_r
+    c_axis = np.arange(frame.shape[1]) / scale_c
+    out = np.zeros(frame.shape)
+    for (i, j), coeff in zip(powers, coeffs, strict=True):
+        out += coeff * np.outer(r_axis**i, c_axis**j)
+    return out
 
 
 def dark_level(frame, *, percentile: float = 0.5) -> float:
