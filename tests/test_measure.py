@@ -114,7 +114,7 @@ def test_accuracy_status_and_contact_against_synthetic_truth(measured, name):
 
 
 def test_drop_radii_from_the_circle_fits(measured):
-    for case, rec, series in measured.values():
+    for _case, rec, series in measured.values():
         truth = sorted(rec.setup.radii)
         got = sorted(series.details["drop_radii_m"])
         # Within 0.2 px, the bound the issue sets against CircleModel.
@@ -184,7 +184,8 @@ def test_blank_recording_means_no_drops(tmp_path):
     path = tmp_path / "blank.tif"
     tifffile.imwrite(path, np.full((5, 64, 64), 200, np.uint8))
     (tmp_path / "blank.toml").write_text(
-        '[recording]\nframe_rate = "1 kHz"\npixel_size = "10 um"\n[setup]\ngeometry = "coalescence"\n'
+        '[recording]\nframe_rate = "1 kHz"\npixel_size = "10 um"\n'
+        '[setup]\ngeometry = "coalescence"\n'
     )
     with pytest.raises(MeasurementError, match="not found"):
         _measure(path)

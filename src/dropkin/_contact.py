@@ -32,7 +32,6 @@ import math
 from dataclasses import dataclass
 
 import numpy as np
-from scipy.optimize import minimize_scalar
 
 __all__ = ["ContactEstimate", "estimate_contact"]
 
@@ -78,6 +77,8 @@ def _from_radius(t, r, err, lo, hi):
     alone (a profile). The error of t0 comes from the profile's curvature,
     scaled by the reduced chi-square when it exceeds one.
     """
+    from scipy.optimize import minimize_scalar  # here: keeps the command line quick
+
     if np.any(r <= 0):
         return None, None
     ln_r = np.log(r)

@@ -58,9 +58,7 @@ def _experiment_options(command):
             type=click.Path(dir_okay=False, path_type=str),
             help="Experiment file (default: experiment.toml in the folder, or <stem>.toml).",
         ),
-        click.option(
-            "--frame-rate", type=QuantityType("Hz"), help='Frame rate, e.g. "20 kfps".'
-        ),
+        click.option("--frame-rate", type=QuantityType("Hz"), help='Frame rate, e.g. "20 kfps".'),
         click.option(
             "--pixel-size", type=QuantityType("m"), help='Length of one pixel, e.g. "5 um".'
         ),
@@ -121,7 +119,9 @@ def info_command(source, experiment, frame_rate, pixel_size, geometry, view, as_
         geometry=geometry,
         view=view,
     )
-    description = describe(rec, exp)
+    from .liquids import resolve_fluids
+
+    description = describe(rec, resolve_fluids(exp))
     if as_json:
         click.echo(json.dumps(description, indent=2))
     else:
@@ -159,7 +159,9 @@ def _parse_roi(text):
         c0, c1 = (int(v) for v in cols.split(":"))
     except ValueError:
         raise ExperimentError(
-            "is not a region", key="--roi", value=text,
+            "is not a region",
+            key="--roi",
+            value=text,
             expected="ROW0:ROW1,COL0:COL1 in pixels, e.g. 100:300,50:450",
         ) from None
     return (r0, r1, c0, c1)
@@ -168,24 +170,56 @@ def _parse_roi(text):
 @main.command("measure")
 @click.argument("source", type=click.Path(exists=True, path_type=str))
 @click.option(
-    "-o", "--output", "out", required=True, type=click.Path(file_okay=False, path_type=str),
+    "-o",
+    "--output",
+    "out",
+    required=True,
+    type=click.Path(file_okay=False, path_type=str),
     help="Folder for radius.csv, measure.json and overlays/.",
 )
 @_experiment_options
 @click.option("--roi", help="Region of interest ROW0:ROW1,COL0:COL1 (pixels).")
 @click.option(
-    "--threshold", type=click.FloatRange(0.05, 0.95), default=0.5, show_default=True,
+    "--threshold",
+    type=click.FloatRange(0.05, 0.95),
+    default=0.5,
+    show_default=True,
     help="Edge level, as a fraction of the way from the drops' dark rim to the background.",
 )
-@click.option("--jobs", type=click.IntRange(1, 64), default=1, show_default=True,
-              help="Worker processes.")
-@click.option("--chunk-size", type=click.IntRange(1, 4096), default=64, show_default=True,
-              help="Frames per chunk.")
-@click.option("--overlays", "overlay_count", type=click.IntRange(0, 50), default=6,
-              show_default=True, help="Annotated frames to write.")
+@click.option(
+    "--jobs", type=click.IntRange(1, 64), default=1, show_default=True, help="Worker processes."
+)
+@click.option(
+    "--chunk-size",
+    type=click.IntRange(1, 4096),
+    default=64,
+    show_default=True,
+    help="Frames per chunk.",
+)
+@click.option(
+    "--overlays",
+    "overlay_count",
+    type=click.IntRange(0, 50),
+    default=6,
+    show_default=True,
+    help="Annotated frames to write.",
+)
 @click.pass_context
-def measure_command(ctx, source, out, experiment, frame_rate, pixel_size, geometry, view, roi,
-                    threshold, jobs, chunk_size, overlay_count):
+def measure_command(
+    ctx,
+    source,
+    out,
+    experiment,
+    frame_rate,
+    pixel_size,
+    geometry,
+    view,
+    roi,
+    threshold,
+    jobs,
+    chunk_size,
+    overlay_count,
+):
     """Measure the neck or contact radius in every frame of SOURCE."""
     from pathlib import Path
 
@@ -193,10 +227,17 @@ def measure_command(ctx, source, out, experiment, frame_rate, pixel_size, geomet
     from .measure import MeasureOptions, measure, recording_sha256
     from .series import write_series
 
-    exp, rec = _open(source, experiment=experiment, frame_rate=frame_rate,
-                     pixel_size=pixel_size, geometry=geometry, view=view)
-    options = MeasureOptions(roi=_parse_roi(roi), level=threshold, chunk_size=chunk_size,
-                             jobs=jobs)
+    exp, rec = _open(
+        source,
+        experiment=experiment,
+        frame_rate=frame_rate,
+        pixel_size=pixel_size,
+        geometry=geometry,
+        view=view,
+    )
+    options = MeasureOptions(
+        roi=_parse_roi(roi), level=threshold, chunk_size=chunk_size, jobs=jobs
+    )
     with progress_callback(ctx, "measuring", len(rec)) as progress:
         series, extras = measure(rec, exp, options=options, progress=progress, keep_edges=True)
     series.provenance["sha256"] = recording_sha256(rec)
@@ -210,8 +251,11 @@ def measure_command(ctx, source, out, experiment, frame_rate, pixel_size, geomet
     }
     summary = ", ".join(f"{n} {s}" for s, n in counts.items() if n)
     if series.contact_time is None:
-        click.echo(f"dropkin: error: {rec.path}: {extras['contact'].method}; "
-                   f"radius series written to {out}", err=True)
+        click.echo(
+            f"dropkin: error: {rec.path}: {extras['contact'].method}; "
+            f"radius series written to {out}",
+            err=True,
+        )
         ctx.exit(1)
     click.echo(
         f"{len(series)} frames: {summary}; contact at {series.contact_time:.6g} s "

@@ -10,7 +10,7 @@ from __future__ import annotations
 
 import dataclasses
 
-from .units import ureg
+from .units import registry
 
 __all__ = ["describe", "format_description"]
 
@@ -82,7 +82,7 @@ def describe(recording, experiment) -> dict:
 
 def _readable(value, unit: str, digits: int = 4) -> str:
     """An SI value in the unit that reads best (5 ms, not 0.005 s)."""
-    quantity = ureg.Quantity(value, unit).to_compact()
+    quantity = registry().Quantity(value, unit).to_compact()
     return f"{quantity.magnitude:.{digits}g} {quantity.units:~P}"
 
 
@@ -93,7 +93,7 @@ def _fluid_line(fluid: dict) -> str:
     if fluid.get("glycerol_mass_fraction") is not None:
         parts.append(f"glycerol mass fraction {fluid['glycerol_mass_fraction']:g}")
     if fluid.get("temperature_k") is not None:
-        celsius = ureg.Quantity(fluid["temperature_k"], "K").to("degC").magnitude
+        celsius = registry().Quantity(fluid["temperature_k"], "K").to("degC").magnitude
         parts.append(f"{celsius:.4g} °C")
     for key, unit, label in (
         ("surface_tension_n_per_m", "mN/m", "surface tension"),
@@ -102,7 +102,7 @@ def _fluid_line(fluid: dict) -> str:
     ):
         if fluid.get(key) is not None:
             si_unit = {"mN/m": "N/m", "mPa*s": "Pa*s", "kg/m^3": "kg/m^3"}[unit]
-            shown = ureg.Quantity(fluid[key], si_unit).to(unit)
+            shown = registry().Quantity(fluid[key], si_unit).to(unit)
             parts.append(f"{label} {shown.magnitude:.4g} {shown.units:~P}")
     return ", ".join(parts) if parts else "not given"
 
@@ -129,7 +129,7 @@ def format_description(description: dict) -> str:
         )
     if d["pixel_size_m"] is not None:
         fov_rows, fov_cols = (
-            ureg.Quantity(v, "m").to("mm").magnitude for v in d["field_of_view_m"]
+            registry().Quantity(v, "m").to("mm").magnitude for v in d["field_of_view_m"]
         )
         lines.append(f"pixel size      {_readable(d['pixel_size_m'], 'm')}")
         lines.append(f"field of view   {fov_rows:.4g} mm x {fov_cols:.4g} mm")

@@ -35,7 +35,7 @@ from numbers import Real
 from pathlib import Path
 
 from .errors import ExperimentError
-from .units import parse_si, ureg
+from .units import parse_si, registry
 
 __all__ = [
     "Experiment",
@@ -274,7 +274,7 @@ def _convert(value, kind: tuple, *, key: str, path):
     if what == "fraction":
         if isinstance(value, str):
             try:
-                number = ureg.Quantity(value).to("dimensionless").magnitude
+                number = registry().Quantity(value).to("dimensionless").magnitude
             except Exception:
                 raise ExperimentError(
                     "is not a fraction",

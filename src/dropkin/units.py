@@ -18,20 +18,43 @@ Examples
 
 from __future__ import annotations
 
+import functools
 import math
 from numbers import Real
 
 import click
-import pint
 
 from .errors import QuantityError
 
-__all__ = ["ureg", "Quantity", "parse_quantity", "parse_si", "QuantityType", "SI_UNITS"]
+__all__ = [
+    "registry",
+    "parse_quantity",
+    "parse_si",
+    "QuantityType",
+    "SI_UNITS",
+]
 
-ureg = pint.UnitRegistry(autoconvert_offset_to_baseunit=True)
-# Frame rates are the camera's word; "kfps" and "Mfps" follow from the prefixes.
-ureg.define("fps = 1 / second = frames_per_second")
-Quantity = ureg.Quantity
+
+@functools.cache
+def registry():
+    """The one pint registry (built on first use: it takes a good part of a second)."""
+    import pint
+
+    reg = pint.UnitRegistry(autoconvert_offset_to_baseunit=True)
+    # Frame rates are the camera's word; "kfps" and "Mfps" follow from the prefixes.
+    reg.define("fps = 1 / second = frames_per_second")
+    return reg
+
+
+def __getattr__(name):
+    # ``ureg`` and ``Quantity`` are the registry's, made when first asked for, so
+    # that importing the command line (``dropkin --help``) does not build it.
+    if name == "ureg":
+        return registry()
+    if name == "Quantity":
+        return registry().Quantity
+    raise AttributeError(f"module {__name__!r} has no attribute {name!r}")
+
 
 #: SI unit, as written in outputs, for each kind of quantity dropkin reads.
 SI_UNITS = {
@@ -50,7 +73,7 @@ def _where(key: str | None) -> str:
     return key if key is not None else "quantity"
 
 
-def parse_quantity(text, unit: str, *, key: str | None = None, path=None) -> pint.Quantity:
+def parse_quantity(text, unit: str, *, key: str | None = None, path=None):
     """Parse text such as ``"20000 Hz"`` and check it has the dimension of `unit`.
 
     Parameters
@@ -77,8 +100,9 @@ def parse_quantity(text, unit: str, *, key: str | None = None, path=None) -> pin
         For a bare number, unparsable text, a wrong dimension or a value that
         is not finite.
     """
+    ureg = registry()
     expected = f"a value with a unit of {unit}, e.g. '1 {unit}'"
-    if isinstance(text, pint.Quantity):
+    if isinstance(text, ureg.Quantity):
         quantity = text
     elif isinstance(text, bool) or isinstance(text, Real):
         raise QuantityError(
@@ -108,7 +132,7 @@ def parse_quantity(text, unit: str, *, key: str | None = None, path=None) -> pin
                 expected=expected,
                 path=path,
             ) from None
-        if not isinstance(quantity, pint.Quantity) or quantity.dimensionless:
+        if not isinstance(quantity, ureg.Quantity) or quantity.dimensionless:
             raise QuantityError(
                 "a bare number has no unit",
                 key=_where(key),

@@ -5,7 +5,6 @@ from __future__ import annotations
 from dataclasses import dataclass
 
 import numpy as np
-from scipy import optimize
 
 __all__ = ["CircleFit", "fit_circle"]
 
@@ -46,6 +45,7 @@ def _algebraic(points):
 
 def _geometric(points, centre, radius):
     """Least squares of the orthogonal distances (what CircleModel also minimises)."""
+    from scipy import optimize  # here, not at the top: keeps the command line quick
 
     def residuals(p):
         return np.hypot(points[:, 0] - p[0], points[:, 1] - p[1]) - p[2]
