@@ -190,3 +190,70 @@ def test_python_dash_m_runs_the_same_command():
     )
     assert done.returncode == 0
     assert __version__ in done.stdout
+
+
+def _mixed_sizes(d):
+    cv2.imwrite(str(d / "a_1.png"), _frames(n=1)[0])
+    cv2.imwrite(str(d / "a_2.png"), _frames(n=1, rows=30)[0])
+    return d, "a_2.png"
+
+
+def _mixed_depths(d):
+    cv2.imwrite(str(d / "a_1.png"), _frames(n=1)[0])
+    cv2.imwrite(str(d / "a_2.png"), _frames(n=1, dtype=np.uint16)[0])
+    return d, "a_2.png"
+
+
+def _zero_byte(d):
+    cv2.imwrite(str(d / "a_1.png"), _frames(n=1)[0])
+    (d / "a_2.png").write_bytes(b"")
+    return d, "a_2.png"
+
+
+def _truncated_png(d):
+    cv2.imwrite(str(d / "a_1.png"), _frames(n=1)[0])
+    data = (d / "a_1.png").read_bytes()
+    (d / "a_2.png").write_bytes(data[: len(data) // 2])
+    return d, "a_2.png"
+
+
+def _truncated_tiff(d):
+    path = d / "stack.tif"
+    tifffile.imwrite(path, _frames(n=6, dtype=np.uint16), photometric="minisblack")
+    data = path.read_bytes()
+    path.write_bytes(data[: len(data) * 2 // 3])
+    return path, "stack.tif"
+
+
+def _unsupported(d):
+    path = d / "shot.xyz"
+    path.write_bytes(b"not a recording")
+    return path, "shot.xyz"
+
+
+def _bad_video(d):
+    path = d / "shot.avi"
+    path.write_bytes(np.random.default_rng(1).bytes(4096))
+    return path, "shot.avi"
+
+
+@pytest.mark.parametrize(
+    "make",
+    [
+        _mixed_sizes,
+        _mixed_depths,
+        _zero_byte,
+        _truncated_png,
+        _truncated_tiff,
+        _unsupported,
+        _bad_video,
+    ],
+)
+def test_bad_recordings_give_exit_1_and_one_line_naming_the_file(tmp_path, make):
+    folder = tmp_path / "rec"
+    folder.mkdir()
+    source, name = make(folder)
+    result = _run("info", source, "--frame-rate", "1 kHz")
+    assert result.exit_code == 1, result.output
+    line = _error_line(result)
+    assert name in line and line.startswith("dropkin: error: ")

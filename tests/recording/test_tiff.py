@@ -194,3 +194,18 @@ def test_an_imagej_interval_over_channels_is_not_a_frame_rate(tmp_path, frames12
         RecordingError, match=r"no frame rate: .* \(ImageJ finterval not used: .*axes 'C'"
     ):
         open_recording(path)
+
+
+def test_max_sample_value_tag_gives_the_bit_depth(tmp_path):
+    # TIFF 6.0 tag 281 (MaxSampleValue) = 4095: a 12-bit camera in 16-bit words.
+    import numpy as np
+    import tifffile
+
+    from dropkin.recording import open_recording
+
+    frames = np.arange(3 * 4 * 5, dtype=np.uint16).reshape(3, 4, 5) * 60
+    path = tmp_path / "twelve.tif"
+    tifffile.imwrite(path, frames, photometric="minisblack", extratags=[(281, "H", 1, 4095, True)])
+    rec = open_recording(path, frame_rate=1000.0)
+    assert rec.bit_depth == 12
+    assert np.array_equal(rec[2], frames[2])  # never rescaled

@@ -167,6 +167,13 @@ class TiffStack:
         notes = list(notes_for_channels(frame_shape[2] if len(frame_shape) == 3 else 1))
         bits = int(key.bitspersample)
         self.bit_depth = min(bits, 8 * self.dtype.itemsize) if bits > 0 else 8
+        # MaxSampleValue (TIFF 6.0 tag 281) tells a 12-bit camera's 4095 in
+        # 16-bit words; it describes the data, it is never used to rescale.
+        max_tag = key.tags.get(281)
+        if max_tag is not None and self.dtype.kind == "u":
+            top = int(np.max(np.ravel(max_tag.value)))
+            if 0 < top < (1 << self.bit_depth) - 1:
+                self.bit_depth = max(int(top).bit_length(), 1)
         if self._mode == "raw":
             self._offset = int(series.dataoffset)
             self._file_dtype = self.dtype.newbyteorder(tif.byteorder)
