@@ -268,3 +268,45 @@ def test_measure_command_writes_the_contract(tmp_path):
     assert info["provenance"]["version"]
     overlays = sorted((out / "overlays").glob("*.png"))
     assert 2 <= len(overlays) <= 4
+
+
+def test_a_given_background_image_replaces_the_fitted_backlight(tmp_path):
+    # A strong vignette and gradient; the empty field is synth's own backlight
+    # (the light without drops), written as a 16-bit PNG.
+    import cv2
+
+    optics = synth.Optics(blur_px=1.0, vignette=0.5, gradient=0.4)
+    rec = synth.synthesize(
+        synth.Coalescence(drop_radius=1e-3),
+        LAW,
+        camera=synth.Camera(RATE, PIXEL, (300, 360)),
+        frames=80,
+        contact_frame=4.6,
+        optics=optics,
+        sensor=synth.Sensor(bit_depth=12),
+        seed=5,
+    )
+    path = tmp_path / "pair.tif"
+    synth.write_recording(rec, path)
+    light = synth.backlight((300, 360), optics) * rec.sensor.max_count
+    background = tmp_path / "empty.png"
+    cv2.imwrite(str(background), np.round(light).astype(np.uint16))
+    out = tmp_path / "out"
+    result = CliRunner().invoke(
+        main, ["measure", str(path), "-o", str(out), "--background", str(background)]
+    )
+    assert result.exit_code == 0, result.output
+    info = json.loads((out / "measure.json").read_text())
+    assert info["provenance"]["options"]["background"] == "given image"
+    csv = read_radius_csv(out / "radius.csv")
+    truth_px = rec.truth.radius / PIXEL
+    ok = np.array(csv["status"]) == "ok"
+    assert ok.sum() >= 30
+    error = csv["radius_m"][ok] / PIXEL - truth_px[ok]
+    assert math.sqrt(np.mean(error**2)) <= 0.5  # the bound
+    small = tmp_path / "small.png"
+    cv2.imwrite(str(small), np.zeros((10, 10), np.uint16))
+    result = CliRunner().invoke(
+        main, ["measure", str(path), "-o", str(tmp_path / "o2"), "--background", str(small)]
+    )
+    assert result.exit_code == 1 and "--background" in result.stderr

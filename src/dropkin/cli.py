@@ -187,6 +187,11 @@ def _parse_roi(text):
     help="Edge level, as a fraction of the way from the drops' dark rim to the background.",
 )
 @click.option(
+    "--background",
+    type=click.Path(exists=True, dir_okay=False, path_type=str),
+    help="Image of the empty field of view, used as the backlight.",
+)
+@click.option(
     "--jobs", type=click.IntRange(1, 64), default=1, show_default=True, help="Worker processes."
 )
 @click.option(
@@ -216,6 +221,7 @@ def measure_command(
     view,
     roi,
     threshold,
+    background,
     jobs,
     chunk_size,
     overlay_count,
@@ -235,8 +241,16 @@ def measure_command(
         geometry=geometry,
         view=view,
     )
+    if background is not None:
+        from .recording import read_image
+
+        background = read_image(background)
     options = MeasureOptions(
-        roi=_parse_roi(roi), level=threshold, chunk_size=chunk_size, jobs=jobs
+        roi=_parse_roi(roi),
+        level=threshold,
+        chunk_size=chunk_size,
+        jobs=jobs,
+        background=background,
     )
     with progress_callback(ctx, "measuring", len(rec)) as progress:
         series, extras = measure(rec, exp, options=options, progress=progress, keep_edges=True)

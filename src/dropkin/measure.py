@@ -47,6 +47,10 @@ class MeasureOptions:
     gap_blurs : float
         The neck counts as resolved once the gap beside it is this many edge
         blurs (sigma, px) wide; see :func:`dropkin.vision.neck_from_band`.
+    background : (M, N) ndarray or None
+        An image of the empty field of view (full frame), used as the
+        backlight instead of the model fitted to each recording's first
+        frames.
     """
 
     roi: tuple[int, int, int, int] | None = None
@@ -54,6 +58,7 @@ class MeasureOptions:
     chunk_size: int = 64
     jobs: int = 1
     gap_blurs: float = 3.0
+    background: np.ndarray | None = dataclasses.field(default=None, repr=False, compare=False)
 
 
 @dataclasses.dataclass(frozen=True)
@@ -138,7 +143,10 @@ def prepare(recording, *, geometry: str, options: MeasureOptions = MeasureOption
         if index >= n:
             break
         frame = _crop(recording[index], options.roi).astype(np.float64)
-        illumination = vision.fit_illumination(frame)
+        if options.background is not None:
+            illumination = _crop(np.asarray(options.background, dtype=np.float64), options.roi)
+        else:
+            illumination = vision.fit_illumination(frame)
         dark = vision.dark_level(frame)
         if float(np.median(illumination)) - dark < 1e-3 * max(abs(dark), 1.0):
             reason = "the frame has no contrast"
@@ -306,6 +314,12 @@ def measure(
             expected='e.g. pixel_size = "5 um"',
         )
     options = dataclasses.replace(options, roi=_check_roi(options.roi, recording.shape))
+    if options.background is not None and np.shape(options.background) != recording.shape:
+        raise ExperimentError(
+            f"is {np.shape(options.background)}, the frames are {recording.shape}",
+            key="--background",
+            expected="an image of the same size as the frames",
+        )
     prep = prepare(recording, geometry=geometry, options=options)
     n = len(recording)
     radius = np.full(n, np.nan)
@@ -385,6 +399,7 @@ def measure(
                 "chunk_size": options.chunk_size,
                 "jobs": options.jobs,
                 "gap_blurs": options.gap_blurs,
+                "background": "given image" if options.background is not None else "fitted",
             },
         },
         details=details,

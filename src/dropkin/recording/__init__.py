@@ -18,6 +18,7 @@ Examples
 
 from ._base import Recording as Recording
 from ._folder import FRAME_SUFFIXES as FRAME_SUFFIXES
+from ._folder import read_image as read_image
 from ._open import RECORDING_SUFFIXES as RECORDING_SUFFIXES
 from ._open import open_recording as open_recording
 from ._tiff import TIFF_SUFFIXES as TIFF_SUFFIXES
@@ -26,6 +27,7 @@ from ._video import VIDEO_SUFFIXES as VIDEO_SUFFIXES
 __all__ = [
     "Recording",
     "open_recording",
+    "read_image",
     "FRAME_SUFFIXES",
     "TIFF_SUFFIXES",
     "VIDEO_SUFFIXES",

@@ -128,25 +128,50 @@ class ImageFolder:
         return len(self.files)
 
     def _read(self, i: int) -> np.ndarray:
-        file = self.files[i]
-        if self._decoders[i] == "tifffile":
-            try:
-                image = tifffile.imread(file)
-            except Exception as exc:  # any decoder failure names the file and frame
-                raise RecordingError(
-                    f"cannot be decoded ({type(exc).__name__}: {exc})",
-                    path=file,
-                    frame=i,
-                ) from None
-            return to_gray(image, order="RGB")
-        image = cv2.imread(str(file), cv2.IMREAD_UNCHANGED)
-        if image is None:
+        return _decode(self.files[i], self._decoders[i], frame=i)
+
+
+def _decode(file: Path, decoder: str, *, frame: int | None = None) -> np.ndarray:
+    """One image file as a 2-D grayscale array, its dtype as stored."""
+    if decoder == "tifffile":
+        try:
+            image = tifffile.imread(file)
+        except Exception as exc:  # any decoder failure names the file and frame
             raise RecordingError(
-                "cannot be decoded by OpenCV (damaged, truncated or missing)",
+                f"cannot be decoded ({type(exc).__name__}: {exc})",
                 path=file,
-                frame=i,
-            )
-        return to_gray(image, order="BGR")
+                frame=frame,
+            ) from None
+        return to_gray(image, order="RGB")
+    image = cv2.imread(str(file), cv2.IMREAD_UNCHANGED)
+    if image is None:
+        raise RecordingError(
+            "cannot be decoded by OpenCV (damaged, truncated or missing)",
+            path=file,
+            frame=frame,
+        )
+    return to_gray(image, order="BGR")
+
+
+def read_image(path) -> np.ndarray:
+    """Read one image file (PNG, TIFF, BMP, JPEG) as a 2-D grayscale array.
+
+    For single images such as a background frame; the dtype is kept.
+
+    Raises
+    ------
+    RecordingError
+        If the file is missing, of another kind, or cannot be decoded.
+    """
+    path = Path(path)
+    suffix = path.suffix.lower()
+    if suffix not in FRAME_SUFFIXES:
+        raise RecordingError(
+            "is not an image file", path=path, expected=" ".join(sorted(FRAME_SUFFIXES))
+        )
+    if not path.is_file():
+        raise RecordingError("no such file", path=path)
+    return _decode(path, "tifffile" if suffix in (".tif", ".tiff") else "opencv")
 
 
 def open_image_folder(folder: Path) -> ImageFolder:
