@@ -64,8 +64,9 @@ def write_overlays(recording, series, extras, out_dir, *, count: int = 6) -> lis
     """Write annotated PNG frames into `out_dir`; return their paths.
 
     Each shows the measured outline (magenta), the fitted drop circles
-    (amber), the line of centres (blue), the neck points found in that frame
-    (green) and a caption (frame, status, radius in px).
+    (amber), the line of centres or the substrate line (blue), the neck or
+    contact points found in that frame (green) and a caption (frame, status,
+    radius in px).
     """
     import cv2
 
@@ -93,6 +94,31 @@ def write_overlays(recording, series, extras, out_dir, *, count: int = 6) -> lis
         contours, _ = cv2.findContours(mask, cv2.RETR_EXTERNAL, cv2.CHAIN_APPROX_NONE)
         shifted = [c + np.array([[[int(offset[1]), int(offset[0])]]]) for c in contours]
         cv2.drawContours(image, shifted, -1, _OUTLINE, 1, cv2.LINE_AA)
+        setup = prep.spreading
+        if setup is not None:
+            circle = setup.drop
+            cv2.circle(
+                image,
+                pt(circle.centre + offset),
+                int(round(circle.radius * scale)),
+                _FIT,
+                1,
+                cv2.LINE_AA,
+                shift,
+            )
+            if setup.view == "side":
+                cols = image.shape[1] - 1
+                row0 = setup.centre[0] + setup.tilt * (0 - setup.centre[1])
+                row1 = setup.centre[0] + setup.tilt * (cols - offset[1] - setup.centre[1])
+                cv2.line(
+                    image,
+                    pt((row0, 0) + offset * (1, 0)),
+                    pt((row1, cols)),
+                    _AXIS,
+                    1,
+                    cv2.LINE_AA,
+                    shift,
+                )
         if pair is not None:
             for circle in pair.circles:
                 cv2.circle(

@@ -77,6 +77,8 @@ class Preparation:
         Edge blur sigma (px).
     pair : DropPair or None
         The drops (coalescence).
+    spreading : SpreadingSetup or None
+        The drop and the substrate (spreading).
     reference_frame : int
         Index (in the recording) of the frame they were found in.
     cache : dict
@@ -89,6 +91,7 @@ class Preparation:
     blur: float
     pair: object | None
     reference_frame: int
+    spreading: object | None = None
     cache: dict = dataclasses.field(default_factory=dict, repr=False, compare=False)
 
 
@@ -125,7 +128,9 @@ def _noise(trans) -> float:
     return max(1.4826 * mad / math.sqrt(2.0), 1e-4)
 
 
-def prepare(recording, *, geometry: str, options: MeasureOptions = MeasureOptions()):
+def prepare(
+    recording, *, geometry: str, view: str = "side", options: MeasureOptions = MeasureOptions()
+):
     """Analyse the first frames: backlight, dark level, noise and the drops.
 
     The drops are looked for in the first frame, then in up to ten frames
@@ -152,9 +157,9 @@ def prepare(recording, *, geometry: str, options: MeasureOptions = MeasureOption
             reason = "the frame has no contrast"
             continue
         trans = vision.transmission(frame, illumination, dark)
-        if geometry != "coalescence":
-            raise MeasurementError(f"measuring {geometry} is not available yet")
         try:
+            if geometry == "spreading":
+                return _prepare_spreading(frame, trans, illumination, dark, index, view, options)
             pair = vision.find_drop_pair(trans, level=options.level)
         except MeasurementError as exc:
             reason = exc.message
@@ -166,6 +171,19 @@ def prepare(recording, *, geometry: str, options: MeasureOptions = MeasureOption
     )
 
 
+def _prepare_spreading(frame, trans, illumination, dark, index, view, options):
+    """The drop and substrate; the backlight refitted away from a mirror image."""
+    setup = vision.find_spreading_drop(trans, view=view, level=options.level)
+    if options.background is None:
+        # A reflective substrate shows the drop's mirror image, which the
+        # default backlight fit would take for background.
+        mask = vision.spreading_background_mask(frame.shape, setup)
+        illumination = vision.fit_illumination(frame, background=mask)
+        trans = vision.transmission(frame, illumination, dark)
+        setup = vision.find_spreading_drop(trans, view=view, level=options.level)
+    return Preparation(illumination, dark, _noise(trans), setup.blur, None, index, spreading=setup)
+
+
 def _measure_chunk(args):
     """One chunk, in this process or a worker (module level: picklable)."""
     recording, start, stop, prep, options = args
@@ -174,6 +192,16 @@ def _measure_chunk(args):
 
 
 def _neck_chunk(frames, prep, options, hint=None):
+    if prep.spreading is not None:
+        return vision.measure_contact_lines(
+            frames,
+            prep.spreading,
+            illumination=prep.illumination,
+            dark=prep.dark,
+            noise=prep.noise,
+            level=options.level,
+            gap_blurs=options.gap_blurs,
+        )
     return vision.measure_necks(
         frames,
         prep.pair,
@@ -249,6 +277,24 @@ def _stream(recording, prep, options, progress):
             yield first, result
 
 
+def _drop_radii_px(prep) -> np.ndarray:
+    if prep.spreading is not None:
+        return np.array([prep.spreading.drop_radius])
+    return np.asarray(prep.pair.radii, dtype=np.float64)
+
+
+def _unresolved_criterion(prep, options) -> str:
+    limit = f"{options.gap_blurs:g} edge blurs ({options.gap_blurs * prep.blur:.3g} px)"
+    if prep.spreading is not None:
+        if prep.spreading.view == "bottom":
+            return "not used in bottom view (the wetted disc is seen directly)"
+        return (
+            "apparent contact angle above 90 degrees and the air wedge beside the "
+            f"contact point lower than {limit}"
+        )
+    return f"gap beside the neck r^2/2 (1/R0 + 1/R1) narrower than {limit}"
+
+
 def recording_sha256(recording) -> str:
     """SHA-256 of the recording's bytes (a folder: every frame file, in order)."""
     digest = hashlib.sha256()
@@ -320,13 +366,15 @@ def measure(
             key="--background",
             expected="an image of the same size as the frames",
         )
-    prep = prepare(recording, geometry=geometry, options=options)
+    prep = prepare(recording, geometry=geometry, view=experiment.setup.view, options=options)
     n = len(recording)
     radius = np.full(n, np.nan)
     radius_err = np.full(n, np.nan)
     codes = np.zeros(n, dtype=np.int8)
     edges = np.full((n, 2, 2), np.nan)
     gap = np.full(n, np.nan)
+    side_spreading = prep.spreading is not None and prep.spreading.view == "side"
+    angles = np.full((n, 2), np.nan) if side_spreading else None
     for start, result in _stream(recording, prep, options, progress):
         stop = start + len(result.radius)
         radius[start:stop] = result.radius
@@ -334,6 +382,8 @@ def measure(
         codes[start:stop] = result.status
         edges[start:stop] = result.edges
         gap[start:stop] = result.gap
+        if angles is not None:
+            angles[start:stop] = result.angles
     status = tuple(vision.STATUS_NAMES[c] for c in codes)
     # In pixels: gaps below a tenth of a pixel count as closed.
     contact = estimate_contact(
@@ -342,7 +392,7 @@ def measure(
         radius_err,
         status,
         gap=gap,
-        early_radius=float(min(prep.pair.radii)) / 3.0,
+        early_radius=_drop_radii_px(prep).min() / 3.0,
         gap_floor=0.1,
     )
     if contact:
@@ -354,11 +404,12 @@ def measure(
         radius[early] = np.nan
         radius_err[early] = np.nan
         edges[early] = np.nan
+        if angles is not None:
+            angles[early] = np.nan
         status = tuple(vision.STATUS_NAMES[c] for c in codes)
     if options.roi is not None:
         edges += np.array([options.roi[0], options.roi[2]], dtype=np.float64)
-    pair = prep.pair
-    radii_px = pair.radii
+    radii_px = _drop_radii_px(prep)
     drop_radius = experiment.drops.radius
     if drop_radius is None:
         drop_radius = float(np.mean(radii_px)) * pixel
@@ -370,10 +421,7 @@ def measure(
         "edge_level": options.level,
         "noise_transmission": prep.noise,
         "edge_blur_px": prep.blur,
-        "unresolved_criterion": (
-            "gap beside the neck r^2/2 (1/R0 + 1/R1) narrower than "
-            f"{options.gap_blurs:g} edge blurs ({options.gap_blurs * prep.blur:.3g} px)"
-        ),
+        "unresolved_criterion": _unresolved_criterion(prep, options),
         "reference_frame": int(recording.source_frames[prep.reference_frame]),
     }
     series = RadiusSeries(
@@ -403,6 +451,7 @@ def measure(
             },
         },
         details=details,
+        angles=angles,
     )
     extras = {"preparation": prep, "contact": contact}
     if keep_edges:

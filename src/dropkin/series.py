@@ -71,6 +71,9 @@ class RadiusSeries:
     details : dict
         Further facts for ``measure.json`` (JSON-ready): method notes, the
         contact bracket, per-frame reasons for frames without a radius.
+    angles : (F, 2) ndarray or None
+        Apparent contact angle (degrees) at the left and right contact
+        points (spreading, side view); None otherwise.
     """
 
     frame: np.ndarray
@@ -87,6 +90,7 @@ class RadiusSeries:
     pixel_size: float
     provenance: dict = field(default_factory=dict)
     details: dict = field(default_factory=dict)
+    angles: np.ndarray | None = None
 
     def __post_init__(self):
         n = len(self.frame)
@@ -156,10 +160,29 @@ def series_summary(series: RadiusSeries) -> dict:
     }
 
 
+ANGLE_COLUMNS = ("frame", "time_s", "angle_left_deg", "angle_right_deg")
+
+
+def angles_to_csv(series: RadiusSeries) -> str:
+    """The text of ``angles.csv``: apparent contact angles per frame."""
+    buffer = io.StringIO()
+    writer = csv.writer(buffer, lineterminator="\n")
+    writer.writerow(ANGLE_COLUMNS)
+    for i in range(len(series)):
+        left, right = series.angles[i]
+        writer.writerow(
+            [int(series.frame[i]), _number(series.time[i]), _number(left), _number(right)]
+        )
+    return buffer.getvalue()
+
+
 def write_series(series: RadiusSeries, out_dir) -> tuple[Path, Path]:
-    """Write ``radius.csv`` and ``measure.json`` into `out_dir`, each atomically."""
+    """Write ``radius.csv`` and ``measure.json`` (and ``angles.csv`` when the
+    series has contact angles) into `out_dir`, each atomically."""
     out_dir = Path(out_dir)
     out_dir.mkdir(parents=True, exist_ok=True)
+    if series.angles is not None:
+        write_text_atomic(out_dir / "angles.csv", angles_to_csv(series))
     csv_path = write_text_atomic(out_dir / "radius.csv", series_to_csv(series))
     json_text = json.dumps(series_summary(series), indent=2, allow_nan=False) + "\n"
     json_path = write_text_atomic(out_dir / "measure.json", json_text)

@@ -28,6 +28,11 @@ from ._silhouette import fit_illumination as fit_illumination
 from ._silhouette import silhouette_mask as silhouette_mask
 from ._silhouette import threshold_midpoint as threshold_midpoint
 from ._silhouette import transmission as transmission
+from ._spreading import ContactLineResult as ContactLineResult
+from ._spreading import SpreadingSetup as SpreadingSetup
+from ._spreading import find_spreading_drop as find_spreading_drop
+from ._spreading import measure_contact_lines as measure_contact_lines
+from ._spreading import spreading_background_mask as spreading_background_mask
 
 __all__ = [
     "AT_EDGE",
@@ -38,6 +43,11 @@ __all__ = [
     "UNRESOLVED",
     "Band",
     "CircleFit",
+    "ContactLineResult",
+    "SpreadingSetup",
+    "find_spreading_drop",
+    "measure_contact_lines",
+    "spreading_background_mask",
     "DropPair",
     "NeckResult",
     "background_from_frames",
