@@ -226,15 +226,16 @@ def _stream(recording, prep, options, progress):
     """Yield (start, NeckResult) over the whole recording, in order."""
     n = len(recording)
     size = max(int(options.chunk_size), 1)
-    mapped = recording.memmap() if options.jobs <= 1 else None
+    mapped = recording.memmap(0, 1) if options.jobs <= 1 else None
     if mapped is not None:
         # A memory-mapped stack: the band sampling reads only the pages it
         # touches, not every pixel.
         hint = None
         size *= 4  # views of the map cost no memory: fewer, larger chunks
         for start in range(0, n, size):
-            chunk = mapped[start : start + size]
+            chunk = recording.memmap(start, start + size)  # unmapped when dropped
             result = _neck_chunk(_crop(chunk, options.roi), prep, options, hint)
+            del chunk
             hint = _last_radius(result, hint)
             if progress is not None:
                 progress(start + len(chunk), n)

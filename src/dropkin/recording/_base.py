@@ -265,21 +265,23 @@ class Recording:
             yield start, block
             del block  # hold no block while the next one is read
 
-    def memmap(self):
-        """The selected frames as a read-only memory map (K, M, N), or None.
+    def memmap(self, start: int = 0, stop: int | None = None):
+        """Frames ``start`` to ``stop - 1`` as a read-only memory map (K, M, N), or None.
 
         Available for uncompressed, contiguous TIFF stacks (and only when the
         frames selected are consecutive); None otherwise. Code that looks at a
         small part of each frame can index it directly and read only the
-        pages it needs; use :meth:`chunks` for everything else.
+        pages it needs; mapping one chunk at a time and dropping the map
+        afterwards keeps the resident memory to that chunk's pages. Use
+        :meth:`chunks` for everything else.
         """
         opener = getattr(self._source, "_memmap", None)
         if opener is None or self._indices.step != 1 or not len(self._indices):
             return None
-        whole = opener()
-        if whole is None:
+        part = self._indices[start:stop]
+        if not len(part):
             return None
-        return whole[self._indices.start : self._indices.stop]
+        return opener(part.start, part.stop)
 
     def _read_source(self, j: int) -> np.ndarray:
         frame = self._source._read(j)

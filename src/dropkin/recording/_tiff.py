@@ -229,20 +229,21 @@ class TiffStack:
             gray[k] = to_gray(image, order=self._order)
         return gray
 
-    def _memmap(self):
-        """The frames as a read-only memory map (K, M, N), or None.
+    def _memmap(self, start: int = 0, stop: int | None = None):
+        """Frames ``start`` to ``stop - 1`` as a read-only memory map, or None.
 
         Only for uncompressed, contiguous, native-order 2-D frames: then a
         caller that needs a few rows of each frame reads only those pages.
         """
         if self._mode != "raw" or len(self._frame_shape) != 2 or not self._file_dtype.isnative:
             return None
+        stop = self._n if stop is None else stop
         return np.memmap(
             self.path,
             dtype=self.dtype,
             mode="r",
-            offset=self._offset,
-            shape=(self._n, *self._frame_shape),
+            offset=self._offset + start * self._frame_bytes,
+            shape=(stop - start, *self._frame_shape),
         )
 
     def _read_raw(self, start: int, stop: int) -> np.ndarray:
