@@ -167,80 +167,84 @@ def _parse_roi(text):
     return (r0, r1, c0, c1)
 
 
-@main.command("measure")
-@click.argument("source", type=click.Path(exists=True, path_type=str))
-@click.option(
-    "-o",
-    "--output",
-    "out",
-    required=True,
-    type=click.Path(file_okay=False, path_type=str),
-    help="Folder for radius.csv, measure.json and overlays/.",
-)
-@_experiment_options
-@click.option("--roi", help="Region of interest ROW0:ROW1,COL0:COL1 (pixels).")
-@click.option(
-    "--threshold",
-    type=click.FloatRange(0.05, 0.95),
-    default=0.5,
-    show_default=True,
-    help="Edge level, as a fraction of the way from the drops' dark rim to the background.",
-)
-@click.option(
-    "--background",
-    type=click.Path(exists=True, dir_okay=False, path_type=str),
-    help="Image of the empty field of view, used as the backlight.",
-)
-@click.option(
-    "--jobs", type=click.IntRange(1, 64), default=1, show_default=True, help="Worker processes."
-)
-@click.option(
-    "--chunk-size",
-    type=click.IntRange(1, 4096),
-    default=64,
-    show_default=True,
-    help="Frames per chunk.",
-)
-@click.option(
-    "--overlays",
-    "overlay_count",
-    type=click.IntRange(0, 50),
-    default=6,
-    show_default=True,
-    help="Annotated frames to write.",
-)
-@click.pass_context
-def measure_command(
+def _measure_options(command):
+    """Options of every command that measures a recording."""
+    options = [
+        click.option(
+            "-o",
+            "--output",
+            "out",
+            required=True,
+            type=click.Path(file_okay=False, path_type=str),
+            help="Folder for the outputs.",
+        ),
+        _experiment_options,
+        click.option("--roi", help="Region of interest ROW0:ROW1,COL0:COL1 (pixels)."),
+        click.option(
+            "--threshold",
+            type=click.FloatRange(0.05, 0.95),
+            default=0.5,
+            show_default=True,
+            help="Edge level, as a fraction of the way from the drops' dark rim to the "
+            "background.",
+        ),
+        click.option(
+            "--background",
+            type=click.Path(exists=True, dir_okay=False, path_type=str),
+            help="Image of the empty field of view, used as the backlight.",
+        ),
+        click.option(
+            "--jobs",
+            type=click.IntRange(1, 64),
+            default=1,
+            show_default=True,
+            help="Worker processes.",
+        ),
+        click.option(
+            "--chunk-size",
+            type=click.IntRange(1, 4096),
+            default=64,
+            show_default=True,
+            help="Frames per chunk.",
+        ),
+        click.option(
+            "--overlays",
+            "overlay_count",
+            type=click.IntRange(0, 50),
+            default=6,
+            show_default=True,
+            help="Annotated frames to write.",
+        ),
+    ]
+    for option in reversed(options):
+        command = option(command)
+    return command
+
+
+def _run_measure(
     ctx,
     source,
     out,
-    experiment,
-    frame_rate,
-    pixel_size,
-    geometry,
-    view,
+    *,
+    background,
     roi,
     threshold,
-    background,
     jobs,
     chunk_size,
     overlay_count,
+    **experiment_options,
 ):
-    """Measure the neck or contact radius in every frame of SOURCE."""
+    """Measure SOURCE into OUT (radius.csv, measure.json, overlays/); the series.
+
+    Exits 1 (after writing the outputs) when no contact is seen.
+    """
     from pathlib import Path
 
     from ._overlays import write_overlays
     from .measure import MeasureOptions, measure, recording_sha256
     from .series import write_series
 
-    exp, rec = _open(
-        source,
-        experiment=experiment,
-        frame_rate=frame_rate,
-        pixel_size=pixel_size,
-        geometry=geometry,
-        view=view,
-    )
+    exp, rec = _open(source, **experiment_options)
     if background is not None:
         from .recording import read_image
 
@@ -255,14 +259,14 @@ def measure_command(
     with progress_callback(ctx, "measuring", len(rec)) as progress:
         series, extras = measure(rec, exp, options=options, progress=progress, keep_edges=True)
     series.provenance["sha256"] = recording_sha256(rec)
-    series.provenance["experiment_file"] = None if exp.path is None else str(exp.path)
+    series.provenance["experiment_file"] = (
+        None if exp.path is None else str(Path(exp.path).resolve())
+    )
     out = Path(out)
     write_series(series, out)
     if overlay_count:
         write_overlays(rec, series, extras, out / "overlays", count=overlay_count)
-    counts = series.details.get("status_counts") or {
-        s: series.status.count(s) for s in dict.fromkeys(series.status)
-    }
+    counts = {s: series.status.count(s) for s in dict.fromkeys(series.status)}
     summary = ", ".join(f"{n} {s}" for s, n in counts.items() if n)
     if series.contact_time is None:
         click.echo(
@@ -270,10 +274,99 @@ def measure_command(
             f"radius series written to {out}",
             err=True,
         )
-        ctx.exit(1)
+        ctx.exit(EXIT_INPUT_ERROR)
     click.echo(
         f"{len(series)} frames: {summary}; contact at {series.contact_time:.6g} s "
         f"± {series.contact_time_err:.2g} s; wrote {out / 'radius.csv'}"
+    )
+    return series
+
+
+@main.command("measure")
+@click.argument("source", type=click.Path(exists=True, path_type=str))
+@_measure_options
+@click.pass_context
+def measure_command(ctx, source, out, **options):
+    """Measure the neck or contact radius in every frame of SOURCE."""
+    _run_measure(ctx, source, out, **options)
+
+
+def _fit_options(command):
+    options = [
+        click.option(
+            "--t0",
+            type=QuantityType("s"),
+            help="Fix the contact instant (time from the first frame) instead of fitting it.",
+        ),
+        click.option("--seed", type=int, default=0, show_default=True, help="Bootstrap seed."),
+        click.option(
+            "--bootstrap",
+            type=click.IntRange(0, 100000),
+            default=200,
+            show_default=True,
+            help="Bootstrap resamples for the intervals.",
+        ),
+    ]
+    for option in reversed(options):
+        command = option(command)
+    return command
+
+
+def _run_fit(ctx, radius_csv, out, *, experiment, t0, seed, bootstrap):
+    from .analysis import fit_measurement, load_measurement, write_fit
+    from .scaling import format_verdict
+
+    measurement = load_measurement(radius_csv, experiment=experiment)
+    verdict, _ = fit_measurement(measurement, t0=t0, seed=seed, bootstrap=bootstrap)
+    path = write_fit(verdict, out)
+    click.echo(format_verdict(verdict))
+    if not verdict:
+        click.echo(f"dropkin: error: {radius_csv}: {verdict.reason}", err=True)
+        ctx.exit(EXIT_INPUT_ERROR)
+    click.echo(f"wrote {path}")
+    return verdict
+
+
+@main.command("fit")
+@click.argument("radius_csv", type=click.Path(exists=True, dir_okay=False, path_type=str))
+@click.option(
+    "-o",
+    "--output",
+    "out",
+    required=True,
+    type=click.Path(file_okay=False, path_type=str),
+    help="Folder for fit.json.",
+)
+@click.option(
+    "--experiment",
+    type=click.Path(exists=True, dir_okay=False, path_type=str),
+    help="Experiment file (default: the one named in measure.json).",
+)
+@_fit_options
+@click.pass_context
+def fit_command(ctx, radius_csv, out, experiment, t0, seed, bootstrap):
+    """Fit the scaling regimes to RADIUS_CSV (from dropkin measure) and give the verdict."""
+    _run_fit(ctx, radius_csv, out, experiment=experiment, t0=t0, seed=seed, bootstrap=bootstrap)
+
+
+@main.command("analyze")
+@click.argument("source", type=click.Path(exists=True, path_type=str))
+@_measure_options
+@_fit_options
+@click.pass_context
+def analyze_command(ctx, source, out, t0, seed, bootstrap, **options):
+    """Measure SOURCE, then fit the regimes: radius.csv, measure.json, fit.json."""
+    from pathlib import Path
+
+    _run_measure(ctx, source, out, **options)
+    _run_fit(
+        ctx,
+        str(Path(out) / "radius.csv"),
+        out,
+        experiment=options.get("experiment"),
+        t0=t0,
+        seed=seed,
+        bootstrap=bootstrap,
     )
 
 
