@@ -49,7 +49,9 @@ def generate(path: Path, frames: int) -> None:
     rec = synth.synthesize(
         synth.Coalescence(drop_radius=1e-3, angle_deg=15.0),
         law,
-        camera=synth.Camera(1e6, 10e-6, (512, 512)),
+        # 2 ms of coalescence whatever the number of frames (the neck stays
+        # well below the drop radius): 1 Mfps for 2,000 frames.
+        camera=synth.Camera(frames / 2e-3, 10e-6, (512, 512)),
         frames=frames,
         contact_frame=20.4,
         optics=synth.Optics(blur_px=1.0, dust_count=6),
