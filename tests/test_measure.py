@@ -354,3 +354,39 @@ def test_spreading_contact_radius_against_synthetic_truth(tmp_path, name):
     assert not ok[rec.truth.time_since_contact < 0].any()
     assert abs(info["contact_time_s"] - rec.truth.contact_time) < 1.0 / rate
     assert (out / "angles.csv").exists() == (case["view"] == "side")
+
+
+def test_memory_mapped_and_streamed_reading_agree_and_report_progress(tmp_path):
+    # The same frames as an uncompressed, contiguous TIFF (read through a
+    # memory map) and as a PNG folder (decoded chunk by chunk).
+    import tifffile
+
+    rec = _recording(CASES["tilted-unequal"], frames=50)
+    frames = rec.render()
+    stack = tmp_path / "raw.tif"
+    with tifffile.TiffWriter(stack) as tif:
+        for frame in frames:
+            tif.write(frame, contiguous=True, photometric="minisblack")
+    (tmp_path / "raw.toml").write_text(synth.experiment_toml(rec))
+    folder = tmp_path / "png"
+    synth.write_recording(rec, folder)
+    results = []
+    for path in (stack, folder):
+        exp = load_experiment(path)
+        opened = open_recording(
+            path, frame_rate=exp.recording.frame_rate, pixel_size=exp.recording.pixel_size
+        )
+        calls = []
+        series, _ = measure(
+            opened,
+            exp,
+            options=MeasureOptions(chunk_size=8),
+            progress=lambda done, total, calls=calls: calls.append((done, total)),
+        )
+        done = [d for d, _ in calls]
+        assert calls[-1] == (50, 50) and done == sorted(done)
+        results.append((opened.memmap(0, 1) is not None, series))
+    (mapped, one), (streamed, two) = results
+    assert mapped and not streamed
+    assert one.status == two.status
+    assert np.array_equal(one.radius, two.radius, equal_nan=True)

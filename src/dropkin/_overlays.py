@@ -95,17 +95,11 @@ def write_overlays(recording, series, extras, out_dir, *, count: int = 6) -> lis
         shifted = [c + np.array([[[int(offset[1]), int(offset[0])]]]) for c in contours]
         cv2.drawContours(image, shifted, -1, _OUTLINE, 1, cv2.LINE_AA)
         setup = prep.spreading
+        circles = [setup.drop] if setup is not None else list(pair.circles)
+        for circle in circles:
+            centre, radius = pt(circle.centre + offset), int(round(circle.radius * scale))
+            cv2.circle(image, centre, radius, _FIT, 1, cv2.LINE_AA, shift)
         if setup is not None:
-            circle = setup.drop
-            cv2.circle(
-                image,
-                pt(circle.centre + offset),
-                int(round(circle.radius * scale)),
-                _FIT,
-                1,
-                cv2.LINE_AA,
-                shift,
-            )
             if setup.view == "side":
                 cols = image.shape[1] - 1
                 row0 = setup.centre[0] + setup.tilt * (0 - setup.centre[1])
@@ -119,17 +113,7 @@ def write_overlays(recording, series, extras, out_dir, *, count: int = 6) -> lis
                     cv2.LINE_AA,
                     shift,
                 )
-        if pair is not None:
-            for circle in pair.circles:
-                cv2.circle(
-                    image,
-                    pt(circle.centre + offset),
-                    int(round(circle.radius * scale)),
-                    _FIT,
-                    1,
-                    cv2.LINE_AA,
-                    shift,
-                )
+        else:
             c0, c1 = (c.centre + offset for c in pair.circles)
             cv2.line(image, pt(c0), pt(c1), _AXIS, 1, cv2.LINE_AA, shift)
         if edges is not None and np.isfinite(edges[index]).all():

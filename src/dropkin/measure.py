@@ -222,34 +222,32 @@ def _last_radius(result, previous):
     return float(result.radius[finite[-1]]) if finite.size else previous
 
 
+def _sequential_chunks(recording, size):
+    """(start, frames) over the recording: memory-mapped when the file allows.
+
+    A memory-mapped stack is handed over four chunks at a time, each mapped
+    on its own and unmapped when dropped: the band sampling reads only the
+    pages it touches, and resident memory stays at a chunk's pages.
+    """
+    if recording.memmap(0, 1) is None:
+        yield from recording.chunks(size)
+        return
+    for start in range(0, len(recording), 4 * size):
+        yield start, recording.memmap(start, start + 4 * size)
+
+
 def _stream(recording, prep, options, progress):
     """Yield (start, NeckResult) over the whole recording, in order."""
     n = len(recording)
     size = max(int(options.chunk_size), 1)
-    mapped = recording.memmap(0, 1) if options.jobs <= 1 else None
-    if mapped is not None:
-        # A memory-mapped stack: the band sampling reads only the pages it
-        # touches, not every pixel.
+    if options.jobs <= 1:
         hint = None
-        size *= 4  # views of the map cost no memory: fewer, larger chunks
-        for start in range(0, n, size):
-            chunk = recording.memmap(start, start + size)  # unmapped when dropped
+        for start, chunk in _sequential_chunks(recording, size):
             result = _neck_chunk(_crop(chunk, options.roi), prep, options, hint)
-            del chunk
             hint = _last_radius(result, hint)
             if progress is not None:
                 progress(start + len(chunk), n)
-            yield start, result
-        return
-    if options.jobs <= 1:
-        done = 0
-        hint = None
-        for start, chunk in recording.chunks(size):
-            result = _neck_chunk(_crop(chunk, options.roi), prep, options, hint)
-            hint = _last_radius(result, hint)
-            done += len(chunk)
-            if progress is not None:
-                progress(done, n)
+            del chunk  # hold no chunk (or map) while the next one is read
             yield start, result
         return
     starts = list(range(0, n, size))
