@@ -13,6 +13,12 @@ Examples
 ['viscous', 'inertially-limited-viscous']
 """
 
+from ._blends import BlendFit as BlendFit
+from ._blends import fit_blend as fit_blend
+from ._blends import fit_broken_power_law as fit_broken_power_law
+from ._bootstrap import DEFAULT_MATERIAL_UNCERTAINTY as DEFAULT_MATERIAL_UNCERTAINTY
+from ._bootstrap import group_relative_uncertainty as group_relative_uncertainty
+from ._bootstrap import resolve_material_uncertainty as resolve_material_uncertainty
 from ._catalogue import OH_OUTER_CROSSOVER as OH_OUTER_CROSSOVER
 from ._catalogue import OH_VISCOUS as OH_VISCOUS
 from ._catalogue import REGIMES as REGIMES
@@ -32,10 +38,26 @@ from ._dimensions import DEFAULT_PRODUCTS as DEFAULT_PRODUCTS
 from ._dimensions import DimensionalLaw as DimensionalLaw
 from ._dimensions import dimensional_laws as dimensional_laws
 from ._dimensions import dimensions_of as dimensions_of
+from ._evidence import CrossoverFit as CrossoverFit
+from ._evidence import predicted_crossover as predicted_crossover
+from ._fit import LawFit as LawFit
+from ._fit import fit_log_law as fit_log_law
+from ._fit import fit_power_law as fit_power_law
+from ._fit import guess_power_law as guess_power_law
+from ._fitcore import MIN_DECADES as MIN_DECADES
+from ._fitcore import MIN_POINTS as MIN_POINTS
+from ._fitcore import ROBUST_SCALE as ROBUST_SCALE
+from ._fitcore import LawShape as LawShape
+from ._judge import EXPONENT_TOLERANCE as EXPONENT_TOLERANCE
+from ._judge import PREFACTOR_BAND as PREFACTOR_BAND
+from ._judge import CandidateFit as CandidateFit
 from ._laws import blended_law as blended_law
 from ._laws import harmonic_blend as harmonic_blend
 from ._laws import power_law as power_law
 from ._laws import viscous_log_law as viscous_log_law
+from ._local import LocalExponent as LocalExponent
+from ._local import exponent_plateaus as exponent_plateaus
+from ._local import local_exponent as local_exponent
 from ._numbers import STANDARD_GRAVITY as STANDARD_GRAVITY
 from ._numbers import SampleNumbers as SampleNumbers
 from ._numbers import bond as bond
@@ -56,6 +78,13 @@ from ._predict import RegimeWindow as RegimeWindow
 from ._predict import predict as predict
 from ._predict_text import format_prediction as format_prediction
 from ._predict_text import prediction_to_dict as prediction_to_dict
+from ._verdict import RegimeVerdict as RegimeVerdict
+from ._verdict import analyze_series as analyze_series
+from ._verdict_text import format_verdict as format_verdict
+from ._verdict_text import verdict_to_dict as verdict_to_dict
+from ._windows import AIC_THRESHOLD as AIC_THRESHOLD
+from ._windows import ModelScore as ModelScore
+from ._windows import consistent_window as consistent_window
 
 __all__ = [
     "OH_OUTER_CROSSOVER",
@@ -101,4 +130,34 @@ __all__ = [
     "viscous_length",
     "viscous_log_law",
     "viscous_time",
+    # fitting and the verdict (issue 6)
+    "AIC_THRESHOLD",
+    "DEFAULT_MATERIAL_UNCERTAINTY",
+    "EXPONENT_TOLERANCE",
+    "MIN_DECADES",
+    "MIN_POINTS",
+    "PREFACTOR_BAND",
+    "ROBUST_SCALE",
+    "BlendFit",
+    "CandidateFit",
+    "CrossoverFit",
+    "LawFit",
+    "LawShape",
+    "LocalExponent",
+    "ModelScore",
+    "RegimeVerdict",
+    "analyze_series",
+    "consistent_window",
+    "exponent_plateaus",
+    "fit_blend",
+    "fit_broken_power_law",
+    "fit_log_law",
+    "fit_power_law",
+    "format_verdict",
+    "group_relative_uncertainty",
+    "guess_power_law",
+    "local_exponent",
+    "predicted_crossover",
+    "resolve_material_uncertainty",
+    "verdict_to_dict",
 ]
