@@ -18,6 +18,7 @@ SAMPLES = Path(__file__).resolve().parents[1] / "sample_frames"
 @pytest.mark.parametrize(
     ("source", "truth", "regime"),
     [
+        ("viscous_pair", "viscous_pair/truth.json", "inertially-limited-viscous"),
         ("fast_pair.tif", "fast_pair.truth.json", "inertial"),
         ("spreading_drop", "spreading_drop/truth.json", "inertial-spreading"),
     ],
@@ -53,14 +54,16 @@ def test_analyze_names_the_law_the_sample_was_made_with(tmp_path, source, truth,
 
 
 def test_fit_refuses_a_series_too_short_with_one_line(tmp_path):
-    # The viscous sample resolves only a fraction of a decade of its ELS law
-    # (the neck beside the gap is hidden by blur before that): fit says so.
+    # The first 30 frames of the inertial sample: its measured neck is
+    # resolved over far less than the third of a decade a fit needs.
     out = tmp_path / "out"
     runner = CliRunner()
-    measured = runner.invoke(main, ["measure", str(SAMPLES / "viscous_pair"), "-o", str(out)])
+    measured = runner.invoke(main, ["measure", str(SAMPLES / "fast_pair.tif"), "-o", str(out)])
     assert measured.exit_code == 0, measured.output
+    csv = (out / "radius.csv").read_text().splitlines()
+    (out / "radius.csv").write_text("\n".join(csv[:31]) + "\n")
     result = runner.invoke(main, ["fit", str(out / "radius.csv"), "-o", str(out)])
     assert result.exit_code == 1
     lines = result.stderr.strip().splitlines()
-    assert len(lines) == 1 and "decade" in lines[0] and "radius.csv" in lines[0]
+    assert len(lines) == 1 and "radius.csv" in lines[0]
     assert "Traceback" not in result.output
