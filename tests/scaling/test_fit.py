@@ -16,7 +16,7 @@ from dropkin.scaling import (
 )
 
 # Eight planets: semi-major axis (10^6 km, the "older" column) and orbital
-# period (days). Source: NASA Planetary Fact Sheet, via the two transcriptions
+# period (days). Source: NASA Planetary Fact Sheet, via the two third-party copies
 # named in physics.md §6 (status V there).
 PLANETS = {
     "Mercury": (57.9, 88.0),
