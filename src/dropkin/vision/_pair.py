@@ -10,7 +10,7 @@ from skimage import measure as skmeasure
 
 from ..errors import MeasurementError
 from ._circle import CircleFit, fit_circle
-from ._silhouette import silhouette_mask
+from ._silhouette import dilate, silhouette_mask
 
 __all__ = ["DropPair", "find_drop_pair", "substrate_rows"]
 
@@ -136,7 +136,7 @@ def find_drop_pair(trans, *, level: float = 0.5, min_area: int = 20) -> DropPair
     big = sizes[order[0]]
     second = sizes[order[1]] if count > 1 else 0
     rows, cols = trans.shape
-    clean = np.where(ndimage.binary_dilation(labels > 0, iterations=2), trans, 1.0)
+    clean = np.where(dilate(labels > 0, 2), trans, 1.0)
     clean[:top] = 1.0
     clean[bottom:] = 1.0
     contours = skmeasure.find_contours(clean, level)

@@ -15,6 +15,8 @@ import numpy as np
 from scipy import ndimage
 
 __all__ = [
+    "holes_filled",
+    "dilate",
     "background_from_frames",
     "fit_illumination",
     "dark_level",
@@ -31,6 +33,38 @@ def _check_frame(frame, name="frame"):
     if frame.size == 0:
         raise ValueError(f"{name} is empty")
     return frame
+
+
+def holes_filled(mask):
+    """Fill the holes of a binary mask (regions not connected to the border).
+
+    The same result as :func:`scipy.ndimage.binary_fill_holes` (4-connected
+    background), computed with OpenCV's connected components, which is
+    several times faster on whole frames.
+
+    Examples
+    --------
+    >>> m = np.zeros((5, 5), bool); m[1:4, 1:4] = True; m[2, 2] = False
+    >>> bool(holes_filled(m)[2, 2])
+    True
+    """
+    import cv2
+
+    mask = np.asarray(mask, dtype=bool)
+    padded = np.pad(~mask, 1, constant_values=True).astype(np.uint8)
+    count, labels = cv2.connectedComponents(padded, connectivity=4)
+    outside = labels[0, 0]
+    return (labels[1:-1, 1:-1] != outside) | mask
+
+
+def dilate(mask, iterations: int):
+    """Binary dilation by a 3 x 3 cross, `iterations` times (as
+    :func:`scipy.ndimage.binary_dilation` with its default structure), via OpenCV."""
+    import cv2
+
+    cross = cv2.getStructuringElement(cv2.MORPH_CROSS, (3, 3))
+    out = cv2.dilate(np.asarray(mask, dtype=np.uint8), cross, iterations=iterations)
+    return out.astype(bool)
 
 
 def background_from_frames(frames):
@@ -128,8 +162,8 @@ def fit_illumination(frame, *, background=None, degree: int = 2, step: int = 4):
         raise ValueError(f"degree must be >= 0, got {degree}")
     if background is None:
         bright = frame > threshold_midpoint(frame)
-        dark = ndimage.binary_fill_holes(~bright)
-        background = ~ndimage.binary_dilation(dark, iterations=3)
+        dark = holes_filled(~bright)
+        background = ~dilate(dark, 3)
         if background.sum() < (degree + 1) * (degree + 2):
             background = bright
     else:
@@ -225,7 +259,7 @@ def silhouette_mask(trans, *, level: float = 0.5, min_area: int = 20, fill_holes
     trans = _check_frame(trans, "trans")
     mask = trans < level
     if fill_holes:
-        mask = ndimage.binary_fill_holes(mask)
+        mask = holes_filled(mask)
     if min_area > 1:
         labels, count = ndimage.label(mask)
         if count:
