@@ -355,8 +355,11 @@ def fit_command(ctx, radius_csv, out, experiment, t0, seed, bootstrap):
 @_fit_options
 @click.pass_context
 def analyze_command(ctx, source, out, t0, seed, bootstrap, **options):
-    """Measure SOURCE, then fit the regimes: radius.csv, measure.json, fit.json."""
+    """Measure SOURCE, then fit the regimes: radius.csv, measure.json, fit.json,
+    plots/ and a self-contained report.html."""
     from pathlib import Path
+
+    from .report import write_analysis_outputs
 
     _run_measure(ctx, source, out, **options)
     _run_fit(
@@ -368,6 +371,7 @@ def analyze_command(ctx, source, out, t0, seed, bootstrap, **options):
         seed=seed,
         bootstrap=bootstrap,
     )
+    click.echo(f"wrote {write_analysis_outputs(out)}")
 
 
 # --- physics commands ------------------------------------------------------------

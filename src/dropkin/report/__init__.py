@@ -1,0 +1,7 @@
+"""Figures and the self-contained HTML report of one analysis."""
+
+from ._html import write_analysis_outputs as write_analysis_outputs
+from ._html import write_report as write_report
+from ._plots import write_plots as write_plots
+
+__all__ = ["write_plots", "write_report", "write_analysis_outputs"]
