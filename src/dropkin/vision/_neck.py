@@ -54,15 +54,10 @@ class Band:
         Positions along the axis (px).
     u : (U,) ndarray
         Positions across, symmetric, ``u[U // 2] == 0`` (px).
-    index : (4, U, S) ndarray of intp
-        Flat indices of the four neighbours of each sample point.
-    weight : (4, U, S) ndarray of float32
-        Their bilinear weights.
     pixels : (P,) ndarray of intp
-        The distinct pixels in `index`, as flat indices into the bounding
+        The distinct pixels whose values the samples interpolate (the four
+        neighbours of each sample point), as flat indices into the bounding
         box `box` (each pixel is read once).
-    inverse : (4, U, S) ndarray of intp
-        Where each entry of `index` lies in `pixels`.
     box : tuple of int
         (row_start, row_stop, col_start, col_stop) of the pixels the band
         reads.
@@ -77,11 +72,8 @@ class Band:
     normal: np.ndarray
     s: np.ndarray
     u: np.ndarray
-    index: np.ndarray
-    weight: np.ndarray
     valid: np.ndarray
     pixels: np.ndarray
-    inverse: np.ndarray
     box: tuple
     matrix: object
 
@@ -172,7 +164,7 @@ def make_band(
         ),
         shape=(count, len(pixels)),
     )
-    return Band(origin, axis, normal, s, u, index, weight, valid, local, inverse, box, matrix)
+    return Band(origin, axis, normal, s, u, valid, local, box, matrix)
 
 
 def sample_band(frames, band: Band):
@@ -187,7 +179,7 @@ def sample_band(frames, band: Band):
     -------
     samples : (K, U, S) ndarray of float32
     """
-    frames = np.asarray(frames) if not isinstance(frames, np.memmap) else frames
+    frames = np.asarray(frames)
     r0, r1, c0, c1 = band.box
     # Copy the band's bounding box (on a memory map, only the pages holding
     # it are read), pick each pixel the band needs once, then apply the
@@ -195,7 +187,7 @@ def sample_band(frames, band: Band):
     box = np.ascontiguousarray(frames[:, r0:r1, c0:c1]).reshape(frames.shape[0], -1)
     values = np.take(box, band.pixels, axis=1).astype(np.float32)
     out = np.asarray(values @ band.matrix.T, dtype=np.float32)
-    return out.reshape(frames.shape[0], *band.index.shape[1:])
+    return out.reshape(frames.shape[0], len(band.u), len(band.s))
 
 
 @dataclass(frozen=True)
@@ -298,6 +290,7 @@ def neck_from_band(
     min_gap: float = 1.0,
     err_floor: float = 0.1,
     allow_coarse: bool = False,
+    with_gap: bool = True,
 ) -> NeckResult:
     """Measure the neck in a chunk of frames sampled on a band.
 
@@ -322,6 +315,9 @@ def neck_from_band(
     allow_coarse : bool, optional
         Accept edges found between samples more than a pixel apart (for a
         quick, rough look); otherwise such frames need a denser band.
+    with_gap : bool, optional
+        Measure the gap on the axis (``gap`` is NaN otherwise); callers that
+        measure it on a band of their own skip it.
 
     Returns
     -------
@@ -352,7 +348,10 @@ def neck_from_band(
     edges = np.full((k, 2, 2), np.nan)
 
     s_step = float(band.s[1] - band.s[0]) if n_s > 1 else 1.0
-    gap_width = gap_on_axis(trans[:, c, :], band.valid[c], s_step)
+    if with_gap:
+        gap_width = gap_on_axis(trans[:, c, :], band.valid[c], s_step)
+    else:
+        gap_width = np.full(k, np.nan)
     on_axis_dark = trans[:, c, :] < level
     gap_seen = ~on_axis_dark & band.valid[c][None, :]
     before = gap_seen.any(axis=1)
@@ -519,6 +518,7 @@ def measure_necks(
             level=level,
             min_gap=gap_blurs * blur,
             allow_coarse=rough,
+            with_gap=False,  # measured once below, on a fixed stretch of the axis
         )
         ends = np.isin(result.s_neck, (band.s[0], band.s[-1]))
         return result, ends

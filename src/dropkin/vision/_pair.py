@@ -214,8 +214,6 @@ def edge_blur(trans, pair: DropPair, *, angles: int = 48) -> float:
     per pixel), so sigma follows from the median largest slope. The result
     includes the pixel's own averaging and is at least 0.3 px.
     """
-    from scipy import ndimage as ndi
-
     trans = np.asarray(trans, dtype=np.float64)
     m, n = trans.shape
     offsets = np.arange(-4.0, 4.0001, 0.25)
@@ -236,7 +234,7 @@ def edge_blur(trans, pair: DropPair, *, angles: int = 48) -> float:
     lines = np.concatenate(lines)
     slopes = []
     if len(lines):
-        profiles = ndi.map_coordinates(
+        profiles = ndimage.map_coordinates(
             trans, [lines[:, 0].ravel(), lines[:, 1].ravel()], order=1
         ).reshape(len(lines), -1)
         slopes = np.max(np.diff(profiles, axis=1), axis=1) / 0.25
