@@ -65,9 +65,9 @@ def load_measurement(radius_csv, *, experiment=None, overrides=None) -> Measurem
     ----------
     radius_csv : str or os.PathLike
         A ``radius.csv`` written by ``dropkin measure``.
-    experiment : str or os.PathLike, optional
-        The experiment file; by default the one named in ``measure.json``'s
-        provenance.
+    experiment : str, os.PathLike or Experiment, optional
+        The experiment file (or an experiment already read); by default the
+        file named in ``measure.json``'s provenance.
     overrides : dict, optional
         Values that take precedence (as for
         :meth:`dropkin.experiment.Experiment.with_overrides`).
@@ -94,6 +94,8 @@ def load_measurement(radius_csv, *, experiment=None, overrides=None) -> Measurem
                     path=path,
                     expected="--experiment FILE, or the experiment file named in measure.json",
                 )
+    elif isinstance(experiment, Experiment):
+        exp = experiment
     else:
         exp = read_experiment(experiment)
     if overrides:

@@ -76,8 +76,7 @@ def _experiment_options(command):
 
 def _open(source, *, experiment, frame_rate, pixel_size, geometry, view):
     """Experiment (file + options) and the recording it describes."""
-    from .experiment import load_experiment
-    from .recording import open_recording
+    from .pipeline import open_source
 
     overrides = {
         "recording.frame_rate": frame_rate,
@@ -85,22 +84,7 @@ def _open(source, *, experiment, frame_rate, pixel_size, geometry, view):
         "setup.geometry": geometry,
         "setup.view": view,
     }
-    exp = load_experiment(source, experiment=experiment, overrides=overrides)
-    if frame_rate is not None:
-        origin = "command line"
-    elif exp.recording.frame_rate is not None:
-        origin = "experiment file"
-    else:
-        origin = None
-    rec = open_recording(
-        source,
-        frame_rate=exp.recording.frame_rate,
-        frame_rate_origin=origin or "given",
-        pixel_size=exp.recording.pixel_size,
-        first_frame=exp.recording.first_frame,
-        last_frame=exp.recording.last_frame,
-    )
-    return exp, rec
+    return open_source(source, experiment=experiment, overrides=overrides)
 
 
 @main.command("info")
@@ -144,7 +128,7 @@ def progress_callback(ctx: click.Context, label: str, total: int):
 
     with Progress(console=Console(stderr=True), transient=True) as bar:
         task = bar.add_task(label, total=total)
-        yield lambda done, _total: bar.update(task, completed=done)
+        yield lambda done, total: bar.update(task, completed=done, total=total)
 
 
 def _parse_roi(text):
@@ -221,65 +205,64 @@ def _measure_options(command):
     return command
 
 
-def _run_measure(
-    ctx,
-    source,
-    out,
-    *,
-    background,
-    roi,
-    threshold,
-    jobs,
-    chunk_size,
-    overlay_count,
-    **experiment_options,
-):
+def _settings(*, background, roi, threshold, jobs, chunk_size, overlay_count, **fit):
+    from .pipeline import AnalysisSettings
+
+    return AnalysisSettings(
+        roi=_parse_roi(roi),
+        threshold=threshold,
+        background=background,
+        jobs=jobs,
+        chunk_size=chunk_size,
+        overlays=overlay_count,
+        **fit,
+    )
+
+
+def _overrides(*, frame_rate, pixel_size, geometry, view, **_):
+    return {
+        "recording.frame_rate": frame_rate,
+        "recording.pixel_size": pixel_size,
+        "setup.geometry": geometry,
+        "setup.view": view,
+    }
+
+
+def _measure_summary(series, out) -> str:
+    counts = {s: series.status.count(s) for s in dict.fromkeys(series.status)}
+    summary = ", ".join(f"{n} {s}" for s, n in counts.items() if n)
+    return (
+        f"{len(series)} frames: {summary}; contact at {series.contact_time:.6g} s "
+        f"± {series.contact_time_err:.2g} s; wrote {out / 'radius.csv'}"
+    )
+
+
+def _run_measure(ctx, source, out, **options):
     """Measure SOURCE into OUT (radius.csv, measure.json, overlays/); the series.
 
     Exits 1 (after writing the outputs) when no contact is seen.
     """
     from pathlib import Path
 
-    from ._overlays import write_overlays
-    from .measure import MeasureOptions, measure, recording_sha256
-    from .series import write_series
+    from .pipeline import measure_into, open_source
 
-    exp, rec = _open(source, **experiment_options)
-    if background is not None:
-        from .recording import read_image
-
-        background = read_image(background)
-    options = MeasureOptions(
-        roi=_parse_roi(roi),
-        level=threshold,
-        chunk_size=chunk_size,
-        jobs=jobs,
-        background=background,
-    )
-    with progress_callback(ctx, "measuring", len(rec)) as progress:
-        series, extras = measure(rec, exp, options=options, progress=progress, keep_edges=True)
-    series.provenance["sha256"] = recording_sha256(rec)
-    series.provenance["experiment_file"] = (
-        None if exp.path is None else str(Path(exp.path).resolve())
+    exp, rec = open_source(
+        source, experiment=options["experiment"], overrides=_overrides(**options)
     )
     out = Path(out)
-    write_series(series, out)
-    if overlay_count:
-        write_overlays(rec, series, extras, out / "overlays", count=overlay_count)
-    counts = {s: series.status.count(s) for s in dict.fromkeys(series.status)}
-    summary = ", ".join(f"{n} {s}" for s, n in counts.items() if n)
+    settings = _settings(**{k: v for k, v in options.items() if k not in _EXPERIMENT_KEYS})
+    with progress_callback(ctx, "measuring", len(rec)) as progress:
+        series, method = measure_into(out, exp, rec, settings, progress=progress)
     if series.contact_time is None:
         click.echo(
-            f"dropkin: error: {rec.path}: {extras['contact'].method}; "
-            f"radius series written to {out}",
-            err=True,
+            f"dropkin: error: {rec.path}: {method}; radius series written to {out}", err=True
         )
         ctx.exit(EXIT_INPUT_ERROR)
-    click.echo(
-        f"{len(series)} frames: {summary}; contact at {series.contact_time:.6g} s "
-        f"± {series.contact_time_err:.2g} s; wrote {out / 'radius.csv'}"
-    )
+    click.echo(_measure_summary(series, out))
     return series
+
+
+_EXPERIMENT_KEYS = ("experiment", "frame_rate", "pixel_size", "geometry", "view")
 
 
 @main.command("measure")
@@ -312,18 +295,25 @@ def _fit_options(command):
     return command
 
 
-def _run_fit(ctx, radius_csv, out, *, experiment, t0, seed, bootstrap):
-    from .analysis import fit_measurement, load_measurement, write_fit
+def _report_verdict(ctx, verdict, radius_csv, path) -> None:
     from .scaling import format_verdict
 
-    measurement = load_measurement(radius_csv, experiment=experiment)
-    verdict, _ = fit_measurement(measurement, t0=t0, seed=seed, bootstrap=bootstrap)
-    path = write_fit(verdict, out)
     click.echo(format_verdict(verdict))
     if not verdict:
         click.echo(f"dropkin: error: {radius_csv}: {verdict.reason}", err=True)
         ctx.exit(EXIT_INPUT_ERROR)
     click.echo(f"wrote {path}")
+
+
+def _run_fit(ctx, radius_csv, out, *, experiment, t0, seed, bootstrap):
+    from pathlib import Path
+
+    from .pipeline import fit_into
+
+    verdict, _, _ = fit_into(
+        radius_csv, out, experiment=experiment, t0=t0, seed=seed, bootstrap=bootstrap
+    )
+    _report_verdict(ctx, verdict, radius_csv, Path(out) / "fit.json")
     return verdict
 
 
@@ -359,19 +349,37 @@ def analyze_command(ctx, source, out, t0, seed, bootstrap, **options):
     plots/ and a self-contained report.html."""
     from pathlib import Path
 
-    from .report import write_analysis_outputs
+    from .errors import MeasurementError
+    from .pipeline import analyze_into
 
-    _run_measure(ctx, source, out, **options)
-    _run_fit(
-        ctx,
-        str(Path(out) / "radius.csv"),
-        out,
-        experiment=options.get("experiment"),
+    out = Path(out)
+    settings = _settings(
+        **{k: v for k, v in options.items() if k not in _EXPERIMENT_KEYS},
         t0=t0,
         seed=seed,
         bootstrap=bootstrap,
     )
-    click.echo(f"wrote {write_analysis_outputs(out)}")
+    # The frame count is known only once the recording is open; the bar then
+    # counts frames (the fit and the report take a few seconds more).
+    with progress_callback(ctx, "measuring", 0) as progress:
+        try:
+            result = analyze_into(
+                source,
+                out,
+                settings,
+                experiment=options["experiment"],
+                overrides=_overrides(**options),
+                progress=progress,
+            )
+        except MeasurementError as exc:
+            if (out / "radius.csv").is_file():
+                raise MeasurementError(
+                    f"{exc.message}; radius series written to {out}", path=exc.path
+                ) from None
+            raise
+    click.echo(_measure_summary(result.series, out))
+    _report_verdict(ctx, result.verdict, out / "radius.csv", out / "fit.json")
+    click.echo(f"wrote {result.report}")
 
 
 # --- physics commands ------------------------------------------------------------

@@ -28,6 +28,7 @@ Examples
 from __future__ import annotations
 
 import dataclasses
+import json
 import math
 import tomllib
 from dataclasses import dataclass, field
@@ -50,6 +51,7 @@ __all__ = [
     "read_experiment",
     "experiment_from_toml",
     "load_experiment",
+    "experiment_to_toml",
 ]
 
 EXPERIMENT_FILE_NAME = "experiment.toml"
@@ -437,3 +439,36 @@ def load_experiment(source, *, experiment=None, overrides=None) -> Experiment:
         found = find_experiment_file(source)
         exp = read_experiment(found) if found is not None else Experiment()
     return exp.with_overrides(overrides) if overrides else exp
+
+
+def experiment_to_toml(exp: Experiment, *, header: str = "") -> str:
+    """The text of an experiment file that reads back as `exp` (values in SI).
+
+    Floats are written with ``repr``, so :func:`experiment_from_toml` returns
+    the same values exactly.
+
+    Examples
+    --------
+    >>> exp = Experiment().with_overrides({"recording.frame_rate": "20 kHz",
+    ...                                    "liquid.viscosity": "110 mPa*s"})
+    >>> experiment_from_toml(experiment_to_toml(exp)) == exp
+    True
+    """
+    lines = [f"# {line}".rstrip() for line in header.splitlines()]
+    for section, (_, keys) in _SCHEMA.items():
+        record = getattr(exp, section)
+        default = type(record)() if section != "medium" else Fluid(name="air")
+        rows = []
+        for key, kind in keys.items():
+            value = getattr(record, key)
+            if value is None or (section != "medium" and value == getattr(default, key)):
+                continue
+            if kind[0] == "quantity":
+                rows.append(f'{key} = "{float(value)!r} {kind[1]}"')
+            elif kind[0] in ("choice", "text"):
+                rows.append(f"{key} = {json.dumps(value, ensure_ascii=False)}")
+            else:
+                rows.append(f"{key} = {value!r}")
+        if rows:
+            lines += ["", f"[{section}]", *rows]
+    return "\n".join(lines).lstrip("\n") + "\n"
