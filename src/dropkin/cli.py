@@ -382,6 +382,136 @@ def analyze_command(ctx, source, out, t0, seed, bootstrap, **options):
     click.echo(f"wrote {result.report}")
 
 
+# --- campaigns --------------------------------------------------------------------
+
+EXIT_INTERRUPTED = 130
+
+
+def _batch_line(done, total, label, row) -> str:
+    width = len(str(total))
+    head = f"[{done:>{width}}/{total}] {label}: "
+    if row is None:
+        return head + "unchanged since its complete row, skipped"
+    if row["status"] != "complete":
+        return head + f"failed: {row.get('error')}"
+    n = row.get("exponent_fit")
+    exponent = f", n = {n:.3g}" if n is not None else ""
+    return head + f"{row.get('regime')}{exponent} ({row.get('seconds', 0):.1f} s)"
+
+
+@main.command("batch")
+@click.argument("manifest", type=click.Path(exists=True, dir_okay=False, path_type=str))
+@click.option(
+    "-o",
+    "--output",
+    "out",
+    required=True,
+    type=click.Path(file_okay=False, path_type=str),
+    help="Folder for the catalogue and one folder per recording.",
+)
+@click.option(
+    "--jobs",
+    type=click.IntRange(1, 256),
+    default=1,
+    show_default=True,
+    help="Recordings analysed at once on this machine.",
+)
+@click.option(
+    "--scheduler",
+    metavar="ADDRESS",
+    help="Run on a Dask distributed cluster (e.g. tcp://10.0.0.5:8786) instead.",
+)
+@click.option("--redo", is_flag=True, help="Analyse again even recordings already complete.")
+@click.option(
+    "--allow-outside-paths",
+    is_flag=True,
+    help="Let the manifest name recordings outside its own folder.",
+)
+@click.pass_context
+def batch_command(ctx, manifest, out, jobs, scheduler, redo, allow_outside_paths):
+    """Analyse every recording a campaign MANIFEST lists; catalogue the results.
+
+    Exits 3 when some recordings failed (the others are complete; the
+    failures are listed), 130 when interrupted (run it again to finish).
+    """
+    from pathlib import Path
+
+    from ._results import CATALOGUE_NAME
+    from .batch import run_batch
+
+    quiet = (ctx.find_root().obj or {}).get("verbosity", 0) < 0
+
+    def report(done, total, label, row):
+        if not quiet:
+            click.echo(_batch_line(done, total, label, row), err=True)
+
+    summary = run_batch(
+        manifest,
+        out,
+        jobs=jobs,
+        scheduler=scheduler,
+        redo=redo,
+        allow_outside=allow_outside_paths,
+        report=report,
+    )
+    finished = len(summary.done) + len(summary.skipped) + len(summary.failed)
+    if summary.interrupted:
+        click.echo(
+            f"dropkin: interrupted: {finished} of {summary.total} recordings finished and "
+            "catalogued; run the same command again to do the rest",
+            err=True,
+        )
+        ctx.exit(EXIT_INTERRUPTED)
+    click.echo(
+        f"{summary.total} recordings: {len(summary.done)} analysed, "
+        f"{len(summary.skipped)} unchanged, {len(summary.failed)} failed; "
+        f"catalogue {Path(out) / CATALOGUE_NAME}"
+    )
+    if summary.failed:
+        for label, message in summary.failed:
+            click.echo(f"dropkin: failed: {label}: {message}", err=True)
+        ctx.exit(EXIT_BATCH_PARTIAL)
+
+
+@main.command("collapse")
+@click.argument("out", type=click.Path(exists=True, file_okay=False, path_type=str))
+@click.option(
+    "--regime",
+    help="Put every recording on this regime's scales (default: each on its own regime's).",
+)
+@click.option(
+    "-o",
+    "--output",
+    "dest",
+    type=click.Path(file_okay=False, path_type=str),
+    help="Folder for collapse.json and the figures (default: OUT/collapse).",
+)
+def collapse_command(out, regime, dest):
+    """Master curve of a campaign (the OUT of dropkin batch): r/R against t/tau,
+    the collective prefactor, and the recordings that do not collapse."""
+    from pathlib import Path
+
+    from .collapse import master_curves, write_collapse
+
+    curves = master_curves(out, regime=regime)
+    dest = Path(dest) if dest else Path(out) / "collapse"
+    write_collapse(curves, dest)
+    for curve in curves:
+        lo, hi = curve.pooled.ci
+        published = "" if curve.published is None else f" (published {curve.published:g})"
+        click.echo(
+            f"{curve.regime}: C = {curve.pooled.value:.4g} [{lo:.4g}, {hi:.4g}] from "
+            f"{curve.pooled.k} recordings{published}"
+        )
+        for member in curve.members:
+            if not member.collapses:
+                click.echo(f"  does not collapse: {member.label}: {member.note}")
+    left = {label: why for curve in curves for label, why in curve.left_out}
+    for label, why in left.items():
+        click.echo(f"  left out: {label}: {why}")
+    click.echo(f"wrote {dest / 'collapse.json'}")
+
+
 # --- physics commands ------------------------------------------------------------
 # Owned by the scaling-physics work (issue 5): `dropkin predict` and `dropkin liquids`.
 # Everything up to the next line that starts `def run()`.

@@ -214,6 +214,7 @@ def analyze_into(
     overrides=None,
     origin: str = "command line",
     experiment_copy: bool = False,
+    published_dir=None,
     progress: Callable[[int, int], None] | None = None,
 ) -> Analysis:
     """Measure, fit and report one recording into the folder `out`.
@@ -224,6 +225,9 @@ def analyze_into(
         Also write the experiment as used to ``OUT/experiment.toml`` and name
         that file in the provenance (for a campaign, whose values come from a
         manifest rather than one file).
+    published_dir : str or os.PathLike, optional
+        Where `out` will be moved once complete (the provenance names the
+        experiment copy there).
 
     Raises
     ------
@@ -242,10 +246,11 @@ def analyze_into(
     copy = None
     if experiment_copy:
         out.mkdir(parents=True, exist_ok=True)
-        copy = write_text_atomic(
+        write_text_atomic(
             out / "experiment.toml",
             experiment_to_toml(exp, header=f"The experiment as analysed, for {source}"),
         )
+        copy = Path(published_dir if published_dir is not None else out) / "experiment.toml"
     series, method = measure_into(out, exp, rec, settings, progress=progress, experiment_file=copy)
     if series.contact_time is None:
         raise MeasurementError(method, path=rec.path)
