@@ -12,6 +12,7 @@ from __future__ import annotations
 
 import json
 from pathlib import Path
+from types import SimpleNamespace
 
 import pytest
 
@@ -59,8 +60,10 @@ def write_manifest(folder: Path, entries: list[str], *, bootstrap: int = 40) -> 
         "[shared]",
         'recording = { pixel_size = "2.5 um" }',
         'setup = { geometry = "coalescence", view = "side" }',
-        f'liquid = {{ surface_tension = "{SURFACE_TENSION * 1e3} mN/m", '
-        f'density = "{DENSITY} kg/m^3" }}',
+        (
+            f'liquid = {{ surface_tension = "{SURFACE_TENSION * 1e3} mN/m", '
+            f'density = "{DENSITY} kg/m^3" }}'
+        ),
         f'drops = {{ radius = "{DROP_RADIUS * 1e3} mm" }}',
         f"analysis = {{ bootstrap = {bootstrap}, overlays = 2, seed = 7 }}",
         "",
@@ -73,7 +76,10 @@ def write_manifest(folder: Path, entries: list[str], *, bootstrap: int = 40) -> 
 
 @pytest.fixture(scope="session")
 def viscosity_campaign(tmp_path_factory):
-    """(folder, manifest path, truth): five good recordings and a corrupt one."""
+    """The folder, its manifest and the truth: five good recordings and a corrupt one.
+
+    Also carries the constants and ``write_manifest`` for the tests.
+    """
     folder = tmp_path_factory.mktemp("campaign")
     entries = []
     truth = {}
@@ -103,4 +109,12 @@ def viscosity_campaign(tmp_path_factory):
     ]
     manifest = write_manifest(folder, entries)
     (folder / "truth.json").write_text(json.dumps(truth), encoding="utf-8")
-    return folder, manifest, truth
+    return SimpleNamespace(
+        folder=folder,
+        manifest=manifest,
+        truth=truth,
+        good=sorted(truth),
+        viscosities=VISCOSITIES,
+        true_prefactor=TRUE_PREFACTOR,
+        write_manifest=write_manifest,
+    )

@@ -1,0 +1,241 @@
+"""dropkin batch and dropkin collapse on a synthetic viscosity series (conftest.py)."""
+
+from __future__ import annotations
+
+import hashlib
+import json
+import shutil
+import signal
+import sqlite3
+import subprocess
+import sys
+import time
+from pathlib import Path
+
+import pytest
+from click.testing import CliRunner
+
+from dropkin import __version__
+from dropkin._results import TIMING_COLUMNS, read_rows
+from dropkin.batch import run_batch
+from dropkin.cli import main
+
+# The campaign's constants, as conftest.py makes it (invented scenario).
+VISCOSITIES = (0.05, 0.08, 0.12, 0.18, 0.25)
+GOOD = [f"mu{round(v * 1e3):03d}" for v in VISCOSITIES]
+TRUE_PREFACTOR = 1.0
+
+
+def _rows(out) -> dict:
+    return {row["label"]: row for row in read_rows(out)}
+
+
+def _comparable(rows: dict) -> dict:
+    return {
+        label: {k: v for k, v in row.items() if k not in TIMING_COLUMNS}
+        for label, row in rows.items()
+    }
+
+
+def _hidden(out: Path) -> list[str]:
+    return sorted(p.name for p in out.iterdir() if p.name.startswith("."))
+
+
+@pytest.fixture(scope="module")
+def pool_run(viscosity_campaign, tmp_path_factory):
+    """The campaign run once with a pool of two processes, through the command line."""
+    manifest = viscosity_campaign.manifest
+    assert viscosity_campaign.good == GOOD and viscosity_campaign.true_prefactor == TRUE_PREFACTOR
+    out = tmp_path_factory.mktemp("pool") / "out"
+    result = CliRunner().invoke(main, ["batch", str(manifest), "-o", str(out), "--jobs", "2"])
+    return out, result
+
+
+def test_a_campaign_with_a_corrupt_recording_gives_five_rows_one_failure_and_exit_3(
+    pool_run, viscosity_campaign
+):
+    folder, truth = viscosity_campaign.folder, viscosity_campaign.truth
+    out, result = pool_run
+    assert result.exit_code == 3, result.output
+    # The failure is listed at the end, naming the recording and the file.
+    last = result.stderr.strip().splitlines()[-1]
+    assert last.startswith("dropkin: failed: cut: ") and "cut.tif" in last
+    rows = _rows(out)
+    assert sorted(rows) == sorted([*GOOD, "cut"])
+    failed = rows["cut"]
+    assert failed["status"] == "failed" and "cut.tif" in failed["error"]
+    for label in GOOD:
+        row = rows[label]
+        assert row["status"] == "complete", row["error"]
+        assert row["decided"] == 1 and row["regime"] == "inertially-limited-viscous"
+        # The manifest's values reached the sample (shared and per-recording).
+        assert row["viscosity_pa_s"] == pytest.approx(truth[label]["viscosity"], rel=1e-12)
+        assert row["surface_tension_n_per_m"] == pytest.approx(65e-3, rel=1e-12)
+        assert row["pixel_size_m"] == pytest.approx(2.5e-6, rel=1e-12)
+        # The exponent of the law the recording was made with, inside 0.02.
+        assert abs(row["exponent_fit"] - 1.0) < 0.02
+        assert row["exponent_ci_low"] <= row["exponent_fit"] <= row["exponent_ci_high"]
+        assert row["prefactor_ci_low"] <= TRUE_PREFACTOR * 1.01
+        # Input hash: SHA-256 of the file's bytes (reference: hashlib).
+        digest = hashlib.sha256((folder / f"{label}.tif").read_bytes()).hexdigest()
+        assert row["input_sha256"] == digest
+        assert len(row["settings_sha256"]) == 64 and row["dropkin_version"] == __version__
+        assert (
+            abs(row["contact_time_s"] - truth[label]["contact_time"]) < 1.0 / row["frame_rate_hz"]
+        )
+        for name in ("fit.json", "radius.csv", "measure.json", "report.html", "experiment.toml"):
+            assert (out / label / name).is_file(), (label, name)
+    # Five different samples: five different settings hashes.
+    assert len({rows[label]["settings_sha256"] for label in GOOD}) == 5
+    assert _hidden(out) == []
+
+
+def test_the_master_curve_recovers_the_prefactor_the_recordings_were_made_with(pool_run):
+    out, _ = pool_run
+    result = CliRunner().invoke(main, ["collapse", str(out)])
+    assert result.exit_code == 0, result.output
+    assert (out / "collapse" / "collapse-inertially-limited-viscous.png").stat().st_size > 1000
+    assert (out / "collapse" / "collapse-inertially-limited-viscous.svg").is_file()
+    data = json.loads((out / "collapse" / "collapse.json").read_text())
+    (curve,) = data["curves"]
+    assert curve["regime"] == "inertially-limited-viscous" and curve["recordings"] == 5
+    lo, hi = curve["prefactor_ci"]
+    assert lo <= TRUE_PREFACTOR <= hi, (lo, curve["prefactor"], hi)
+    assert hi / lo < 1.1  # an interval that says something
+    assert curve["flagged"] == []
+    assert [m["label"] for m in curve["left_out"]] == ["cut"]
+    # On its own scales every series falls on r/R = C t/tau: the time scales
+    # are eta R / gamma (physics.md A2), in proportion to the viscosities.
+    taus = {m["label"]: m["tau_s"] for m in curve["members"]}
+    for label, viscosity in zip(GOOD, VISCOSITIES, strict=True):
+        assert taus[label] == pytest.approx(viscosity * 1e-3 / 65e-3, rel=1e-12)
+
+
+def test_a_wrong_viscosity_in_the_catalogue_is_flagged_as_off_the_curve(pool_run, tmp_path):
+    out, _ = pool_run
+    copy = tmp_path / "out"
+    shutil.copytree(out, copy)
+    # As if the sample's viscosity had been typed twice too large: its
+    # rescaled time halves and its prefactor doubles.
+    with sqlite3.connect(copy / "catalogue.sqlite") as conn:
+        conn.execute(
+            "UPDATE recordings SET viscosity_pa_s = viscosity_pa_s * 2 WHERE label = ?", ("mu120",)
+        )
+    result = CliRunner().invoke(main, ["collapse", str(copy)])
+    assert result.exit_code == 0, result.output
+    assert "does not collapse: mu120" in result.output
+    data = json.loads((copy / "collapse" / "collapse.json").read_text())
+    (curve,) = data["curves"]
+    assert curve["flagged"] == ["mu120"]
+    member = next(m for m in curve["members"] if m["label"] == "mu120")
+    assert member["prefactor"] == pytest.approx(2.0, rel=0.02)
+
+
+def test_dask_local_cluster_gives_the_same_rows_as_the_pool(
+    pool_run, viscosity_campaign, tmp_path
+):
+    distributed = pytest.importorskip("distributed")
+    manifest = viscosity_campaign.manifest
+    out_pool, _ = pool_run
+    out = tmp_path / "dask"
+    with distributed.LocalCluster(
+        n_workers=2, threads_per_worker=1, processes=True, dashboard_address=None
+    ) as cluster:
+        summary = run_batch(manifest, out, scheduler=cluster.scheduler_address)
+    assert sorted(summary.done) == GOOD and [f for f, _ in summary.failed] == ["cut"]
+    assert _comparable(_rows(out)) == _comparable(_rows(out_pool))
+
+
+def test_rerun_skips_what_is_unchanged_and_redo_or_a_new_value_forces(
+    viscosity_campaign, tmp_path
+):
+    folder = viscosity_campaign.folder
+    entries = [
+        "[[recordings]]",
+        'path = "mu250.tif"',
+        'recording = { frame_rate = "41600 Hz" }',
+        'liquid = { viscosity = "250 mPa*s" }',
+    ]
+    manifest = viscosity_campaign.write_manifest(tmp_path, [], bootstrap=20)
+    shutil.copy(folder / "mu250.tif", tmp_path / "mu250.tif")
+    manifest.write_text(manifest.read_text() + "\n".join(entries) + "\n")
+    out = tmp_path / "out"
+    first = run_batch(manifest, out)
+    assert first.done == ["mu250"] and not first.failed
+    stamp = _rows(out)["mu250"]["finished_utc"]
+    again = run_batch(manifest, out)
+    assert again.skipped == ["mu250"] and again.done == []
+    assert _rows(out)["mu250"]["finished_utc"] == stamp
+    forced = run_batch(manifest, out, redo=True)
+    assert forced.done == ["mu250"]
+    stamp2 = _rows(out)["mu250"]["finished_utc"]
+    assert stamp2 != stamp
+    # A changed value changes the settings hash: analysed again.
+    manifest.write_text(manifest.read_text().replace("250 mPa*s", "240 mPa*s"))
+    changed = run_batch(manifest, out)
+    assert changed.done == ["mu250"]
+    assert _rows(out)["mu250"]["viscosity_pa_s"] == pytest.approx(0.24)
+    assert _hidden(out) == []
+
+
+def _complete(folder: Path) -> bool:
+    """Every file an analysis writes is there and parses."""
+    json.loads((folder / "fit.json").read_text())
+    json.loads((folder / "measure.json").read_text())
+    html = (folder / "report.html").read_text()
+    return html.rstrip().endswith("</html>") and (folder / "radius.csv").is_file()
+
+
+def test_an_interrupted_campaign_is_finished_by_a_rerun_without_redoing(
+    viscosity_campaign, tmp_path
+):
+    manifest = viscosity_campaign.manifest
+    out = tmp_path / "out"
+    command = [sys.executable, "-m", "dropkin", "-q", "batch", str(manifest), "-o", str(out)]
+    proc = subprocess.Popen(command, stdout=subprocess.PIPE, stderr=subprocess.PIPE, text=True)
+    deadline = time.monotonic() + 240
+    done = 0
+    while time.monotonic() < deadline and proc.poll() is None:
+        time.sleep(0.2)
+        if (out / "catalogue.sqlite").is_file():
+            try:
+                done = len(read_rows(out))
+            except Exception:  # noqa: BLE001 - the file may be mid-creation
+                done = 0
+            if done >= 2:
+                break
+    assert proc.poll() is None, "the batch ended before it could be interrupted"
+    proc.send_signal(signal.SIGINT)
+    _, err = proc.communicate(timeout=60)
+    assert proc.returncode == 130, err
+    assert "interrupted" in err and "Traceback" not in err
+    # Nothing half-made: no work folders left, every recording folder complete.
+    assert _hidden(out) == []
+    before = _rows(out)
+    assert 2 <= len(before) < 6
+    for entry in out.iterdir():
+        if entry.is_dir() and entry.name in GOOD:
+            assert _complete(entry), entry
+    # The rerun finishes the rest and leaves the finished rows alone.
+    runner = CliRunner()
+    result = runner.invoke(main, ["batch", str(manifest), "-o", str(out)])
+    assert result.exit_code == 3, result.output
+    after = _rows(out)
+    assert sorted(after) == sorted([*GOOD, "cut"])
+    complete_before = [k for k, r in before.items() if r["status"] == "complete"]
+    assert complete_before
+    for label in complete_before:
+        assert after[label]["finished_utc"] == before[label]["finished_utc"]
+    assert result.stderr.count("unchanged since its complete row, skipped") == len(complete_before)
+    assert all(after[label]["status"] == "complete" for label in GOOD)
+    assert _hidden(out) == []
+
+
+def test_batch_with_a_bad_manifest_runs_nothing(tmp_path):
+    manifest = tmp_path / "m.toml"
+    manifest.write_text('[[recordings]]\npath = "../elsewhere"\n')
+    result = CliRunner().invoke(main, ["batch", str(manifest), "-o", str(tmp_path / "out")])
+    assert result.exit_code == 1
+    line = result.stderr.strip()
+    assert "\n" not in line and "m.toml" in line and "recordings[1].path" in line
+    assert not (tmp_path / "out").exists()
