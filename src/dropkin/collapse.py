@@ -85,7 +85,7 @@ def pool_log_prefactors(log_c, se) -> Pooled:
     --------
     >>> p = pool_log_prefactors([0.0, 0.02, -0.01], [0.01, 0.01, 0.02])
     >>> round(p.value, 4), p.k
-    (1.0083, 3)
+    (1.007, 3)
     """
     from scipy import stats
 
