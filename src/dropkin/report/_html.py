@@ -40,7 +40,8 @@ body { font-family: sans-serif; font-size: 14px; color: #1a1a1a; max-width: 62em
        margin: 1.5em auto; padding: 0 1em; line-height: 1.45; }
 h1 { font-size: 1.5em; border-bottom: 3px solid #0072B2; padding-bottom: .2em; }
 h2 { font-size: 1.15em; margin-top: 1.8em; color: #0a3d62; }
-table { border-collapse: collapse; margin: .5em 0; }
+.scroll { overflow-x: auto; margin: .5em 0; }
+table { border-collapse: collapse; }
 th, td { border-bottom: 1px solid #d0d0d0; padding: .2em .7em; text-align: left;
          vertical-align: top; }
 th { background: #eef3f7; }
@@ -84,17 +85,17 @@ theory {{ dominant.prefactor_theory }}), window τ = {{ dominant.window }}.</p>
 {% endif %}
 
 <h2>Sample</h2>
-<table>
+<div class="scroll"><table>
 {% for label, value in sample %}<tr><th>{{ label }}</th><td>{{ value }}</td></tr>
-{% endfor %}</table>
+{% endfor %}</table></div>
 
 <h2>Dimensionless numbers and scales</h2>
-<table>
+<div class="scroll"><table>
 {% for label, value in numbers %}<tr><th>{{ label }}</th><td class="num">{{ value }}</td></tr>
-{% endfor %}</table>
+{% endfor %}</table></div>
 
 <h2>Candidate regimes</h2>
-<table>
+<div class="scroll"><table>
 <tr><th>rank</th><th>regime</th><th>n theory</th><th>n fit [95 %]</th><th>C fit</th>
 <th>C theory</th><th>window τ</th><th>AIC</th><th>consistent</th><th>note</th></tr>
 {% for c in candidates %}<tr class="{{ 'yes' if c.consistent else 'no' }}">
@@ -103,7 +104,7 @@ theory {{ dominant.prefactor_theory }}), window τ = {{ dominant.window }}.</p>
 <td class="num">{{ c.prefactor_theory }}</td><td class="num">{{ c.window }}</td>
 <td class="num">{{ c.aic }}</td><td>{{ 'yes' if c.consistent else 'no' }}</td>
 <td>{{ c.note }}</td></tr>
-{% endfor %}</table>
+{% endfor %}</table></div>
 
 <h2>Plots</h2>
 {% for p in plots %}
@@ -119,14 +120,14 @@ theory {{ dominant.prefactor_theory }}), window τ = {{ dominant.window }}.</p>
 {% endfor %}</div>
 
 <h2>Measurement</h2>
-<table>
+<div class="scroll"><table>
 {% for label, value in measurement %}<tr><th>{{ label }}</th><td>{{ value }}</td></tr>
-{% endfor %}</table>
+{% endfor %}</table></div>
 
 <h2>Provenance</h2>
-<table>
+<div class="scroll"><table>
 {% for label, value in provenance %}<tr><th>{{ label }}</th><td><code>{{ value }}</code></td></tr>
-{% endfor %}</table>
+{% endfor %}</table></div>
 </body>
 </html>
 """
