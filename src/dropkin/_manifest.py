@@ -99,15 +99,16 @@ def _table(value, path, key) -> dict:
 
 def _experiment_values(table: dict, path, where: str) -> dict:
     """Flatten an entry's experiment tables to dotted keys, checking each value."""
-    from .experiment import Experiment
+    from .experiment import experiment_from_mapping
 
-    flat = {}
+    flat, document = {}, {}
     for section in _SECTIONS:
         if section in table:
-            for key, value in _table(table[section], path, f"{where}.{section}").items():
+            document[section] = _table(table[section], path, f"{where}.{section}")
+            for key, value in document[section].items():
                 flat[f"{section}.{key}"] = value
     try:
-        Experiment().with_overrides(flat)
+        experiment_from_mapping(document)  # the rules of an experiment file
     except ExperimentError as exc:
         raise ExperimentError(
             exc.message,

@@ -50,6 +50,7 @@ __all__ = [
     "find_experiment_file",
     "read_experiment",
     "experiment_from_toml",
+    "experiment_from_mapping",
     "load_experiment",
     "experiment_to_toml",
 ]
@@ -359,6 +360,14 @@ def _from_mapping(document: dict, *, path) -> Experiment:
     exp = Experiment(**parts, path=None if path is None else Path(path))
     _check_consistency(exp, path=path)
     return exp
+
+
+def experiment_from_mapping(document: dict, *, path=None) -> Experiment:
+    """Validate tables as an experiment file holds them (as ``tomllib`` reads it).
+
+    The rules are the file's: a bare number where a unit is needed is refused.
+    """
+    return _from_mapping(document, path=path)
 
 
 def experiment_from_toml(text: str, *, path=None) -> Experiment:
