@@ -125,10 +125,31 @@ def write_overlays(recording, series, extras, out_dir, *, count: int = 6) -> lis
         label = f"frame {int(series.frame[index])}  {series.status[index]}"
         if np.isfinite(radius_px):
             label += f"  r = {radius_px:.2f} px"
-        cv2.putText(image, label, (6, 16), cv2.FONT_HERSHEY_SIMPLEX, 0.45, _TEXT, 1, cv2.LINE_AA)
+        _put_label(image, label)
         path = out_dir / f"frame_{int(series.frame[index]):06d}.png"
         with atomic_path(path) as tmp:
             if not cv2.imwrite(str(tmp), image):
                 raise OSError(f"cannot write {path}")
         written.append(path)
     return written
+
+
+def _put_label(image, text: str) -> None:
+    """Write `text` at the top left, on as many lines as the frame's width needs."""
+    import cv2
+
+    font, width = cv2.FONT_HERSHEY_SIMPLEX, image.shape[1] - 12
+    lines, current = [], ""
+    for word in text.split("  "):
+        trial = f"{current}  {word}" if current else word
+        if current and cv2.getTextSize(trial, font, 0.45, 1)[0][0] > width:
+            lines.append(current)
+            current = word
+        else:
+            current = trial
+    lines.append(current)
+    for i, line in enumerate(lines):
+        size = 0.45
+        while size > 0.25 and cv2.getTextSize(line, font, size, 1)[0][0] > width:
+            size -= 0.05
+        cv2.putText(image, line, (6, 16 + 16 * i), font, size, _TEXT, 1, cv2.LINE_AA)
