@@ -50,6 +50,18 @@ def main(ctx: click.Context, verbose: int, quiet: bool) -> None:
     ctx.obj["verbosity"] = -1 if quiet else verbose
 
 
+def _output_option(help_text: str):
+    """The -o/--output folder option, required by every command that writes."""
+    return click.option(
+        "-o",
+        "--output",
+        "out",
+        required=True,
+        type=click.Path(file_okay=False, path_type=str),
+        help=help_text,
+    )
+
+
 def _experiment_options(command):
     """Options shared by every command that reads a recording."""
     options = [
@@ -154,14 +166,7 @@ def _parse_roi(text):
 def _measure_options(command):
     """Options of every command that measures a recording."""
     options = [
-        click.option(
-            "-o",
-            "--output",
-            "out",
-            required=True,
-            type=click.Path(file_okay=False, path_type=str),
-            help="Folder for the outputs.",
-        ),
+        _output_option("Folder for the outputs."),
         _experiment_options,
         click.option("--roi", help="Region of interest ROW0:ROW1,COL0:COL1 (pixels)."),
         click.option(
@@ -319,14 +324,7 @@ def _run_fit(ctx, radius_csv, out, *, experiment, t0, seed, bootstrap):
 
 @main.command("fit")
 @click.argument("radius_csv", type=click.Path(exists=True, dir_okay=False, path_type=str))
-@click.option(
-    "-o",
-    "--output",
-    "out",
-    required=True,
-    type=click.Path(file_okay=False, path_type=str),
-    help="Folder for fit.json.",
-)
+@_output_option("Folder for fit.json.")
 @click.option(
     "--experiment",
     type=click.Path(exists=True, dir_okay=False, path_type=str),
@@ -401,14 +399,7 @@ def _batch_line(done, total, label, row) -> str:
 
 @main.command("batch")
 @click.argument("manifest", type=click.Path(exists=True, dir_okay=False, path_type=str))
-@click.option(
-    "-o",
-    "--output",
-    "out",
-    required=True,
-    type=click.Path(file_okay=False, path_type=str),
-    help="Folder for the catalogue and one folder per recording.",
-)
+@_output_option("Folder for the catalogue and one folder per recording.")
 @click.option(
     "--jobs",
     type=click.IntRange(1, 256),
