@@ -492,7 +492,7 @@ def collapse_command(out, regime, dest):
         published = "" if curve.published is None else f" (published {curve.published:g})"
         click.echo(
             f"{curve.regime}: C = {curve.pooled.value:.4g} [{lo:.4g}, {hi:.4g}] from "
-            f"{curve.pooled.k} recordings{published}"
+            f"{curve.pooled.k} recording{'' if curve.pooled.k == 1 else 's'}{published}"
         )
         for member in curve.members:
             if not member.collapses:

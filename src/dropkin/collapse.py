@@ -8,18 +8,23 @@ The logarithmic (ELS) law becomes r / R = -C x ln x with x = t / tau_v.
 Every series that follows the law then falls on one curve, whatever its
 liquid or drop size.
 
-Each recording's prefactor C_i is the weighted mean of ln(y / f(x)) over its
-``ok`` points inside the window of its fit (f the law with C = 1), with a
-standard error that is the larger of the points' own and the one the
-recording's fit interval implies (which carries the contact-instant
-uncertainty). The collective prefactor combines the ln C_i with the random-
+Each recording's prefactor C_i, on its own regime's curve, is the one of its
+own fixed-exponent fit (as its report gives it), with the standard error
+its 95 % interval implies (which carries the contact-instant uncertainty).
+Put on another regime's scales (``regime=``), it is the weighted mean of
+ln(y / f(x)) over its ``ok`` points (f the law with C = 1), with the larger
+of the points' scatter and their own errors as its standard error.
+The collective prefactor combines the ln C_i with the random-
 effects model of DerSimonian & Laird (Control. Clin. Trials 7, 177, 1986),
 its 95 % interval with the Hartung–Knapp t-interval on k - 1 degrees of
 freedom, never narrower than the DerSimonian–Laird one (Hartung & Knapp,
 Stat. Med. 20, 3875, 2001; the "never narrower" rule as in Röver, Knapp &
 Friede, BMC Med. Res. Methodol. 15, 99, 2015). A recording does not collapse
 when its ln C_i lies more than three standard errors (its own and the
-collective's, without the between-recording spread) from the collective.
+collective's, without the between-recording spread) from the collective, or
+when its points do not have the law's shape: the slope of ln(y / f(x))
+against ln x (its exponent minus the law's) exceeds both three standard
+errors and the verdict's exponent tolerance.
 """
 
 from __future__ import annotations
@@ -131,6 +136,9 @@ class Member:
         C_i.
     log_se : float
         Standard error of ln C_i.
+    slope, slope_se : float
+        Slope of ln(y / f(x)) against ln x over its window, and its standard
+        error: its exponent minus the law's.
     deviation : float
         (ln C_i - ln C) over the combined standard error; NaN until pooled.
     collapses : bool
@@ -146,6 +154,8 @@ class Member:
     drop_radius: float
     prefactor: float
     log_se: float
+    slope: float = math.nan
+    slope_se: float = math.nan
     deviation: float = math.nan
     collapses: bool = True
     note: str = ""
@@ -210,6 +220,33 @@ def _time_scale(regime, numbers) -> float:
     return (numbers.radius / group) ** (1.0 / float(regime.exponent))
 
 
+def _points_prefactor(x, y, rel, regime) -> tuple[float, float]:
+    """ln C and its standard error from points (x, y) and their relative errors."""
+    resid = np.log(y) - np.log(_law_unit(x, float(regime.exponent), regime.logarithmic))
+    finite = np.isfinite(rel) & (rel > 0)
+    sigma = np.where(finite, rel, np.median(rel[finite]) if finite.any() else 1.0)
+    w = 1.0 / sigma**2
+    log_c = float(np.sum(w * resid) / np.sum(w))
+    scatter = math.sqrt(float(np.sum(w * (resid - log_c) ** 2)) / ((resid.size - 1) * np.sum(w)))
+    return log_c, max(scatter, 1.0 / math.sqrt(float(np.sum(w))))
+
+
+def _shape_slope(x, y, rel, regime) -> tuple[float, float]:
+    """Slope of ln(y / f(x)) against ln x, and its standard error (NaN if < 3 points).
+
+    Zero when the series has the law's shape; its exponent minus the law's
+    otherwise.
+    """
+    if x.size < 3:
+        return math.nan, math.nan
+    resid = np.log(y) - np.log(_law_unit(x, float(regime.exponent), regime.logarithmic))
+    finite = np.isfinite(rel) & (rel > 0)
+    sigma = np.where(finite, rel, np.median(rel[finite]) if finite.any() else 1.0)
+    fit, cov = np.polyfit(np.log(x), resid, 1, w=1.0 / sigma, cov="unscaled")
+    chi2 = float(np.sum(((resid - np.polyval(fit, np.log(x))) / sigma) ** 2)) / (x.size - 2)
+    return float(fit[0]), math.sqrt(float(cov[0, 0]) * max(chi2, 1.0))
+
+
 def _member(row, out_dir: Path, regime) -> Member:
     import json
 
@@ -236,24 +273,17 @@ def _member(row, out_dir: Path, regime) -> Member:
         window &= x < math.exp(-1.0)  # the ELS form rises only up to x = 1/e
     if window.sum() < 2:
         raise DropkinError("has fewer than two measured points in its window", path=folder)
-    resid = np.log(y[window]) - np.log(
-        _law_unit(x[window], float(regime.exponent), regime.logarithmic)
-    )
-    sigma = rel[window]
-    sigma = np.where(
-        np.isfinite(sigma), sigma, np.nanmedian(sigma) if np.any(np.isfinite(sigma)) else 1.0
-    )
-    w = 1.0 / np.maximum(sigma, 1e-12) ** 2
-    log_c = float(np.sum(w * resid) / np.sum(w))
-    n = resid.size
-    scatter = float(np.sqrt(np.sum(w * (resid - log_c) ** 2) / ((n - 1) * np.sum(w))))
-    se = max(scatter, 1.0 / math.sqrt(float(np.sum(w))))
-    note = "standard error from its points"
+    c_fit = row.get("prefactor_fit")
     c_lo, c_hi = row.get("prefactor_ci_low"), row.get("prefactor_ci_high")
-    if own and c_lo and c_hi and c_hi > c_lo > 0:
-        from_fit = (math.log(c_hi) - math.log(c_lo)) / (2 * 1.959963984540054)
-        if from_fit > se:
-            se, note = from_fit, "standard error from its fit's interval"
+    if own and c_fit and c_lo and c_hi and c_hi > c_lo > 0 and c_fit > 0:
+        # The recording's own fixed-exponent fit, as its report gives it.
+        log_c = math.log(c_fit)
+        se = (math.log(c_hi) - math.log(c_lo)) / (2 * 1.959963984540054)
+        note = "its own fit's prefactor and interval"
+    else:
+        log_c, se = _points_prefactor(x[window], y[window], rel[window], regime)
+        note = "prefactor from its points on these scales"
+    slope, slope_se = _shape_slope(x[window], y[window], rel[window], regime)
     return Member(
         label=row["label"],
         x=x,
@@ -263,6 +293,8 @@ def _member(row, out_dir: Path, regime) -> Member:
         drop_radius=radius,
         prefactor=math.exp(log_c),
         log_se=se,
+        slope=slope,
+        slope_se=slope_se,
         note=note,
     )
 
@@ -285,7 +317,7 @@ def master_curves(out_dir, *, regime: str | None = None) -> list[MasterCurve]:
         unknown regime.
     """
     from ._results import read_rows
-    from .scaling import REGIMES
+    from .scaling import EXPONENT_TOLERANCE, REGIMES
 
     out_dir = Path(out_dir)
     rows = read_rows(out_dir)
@@ -302,7 +334,7 @@ def master_curves(out_dir, *, regime: str | None = None) -> list[MasterCurve]:
     for row in rows:
         if row["status"] != "complete":
             left_out.append((row["label"], f"failed: {row.get('error') or ''}"))
-        elif not row.get("decided") or not row.get("regime"):
+        elif regime is None and (not row.get("decided") or not row.get("regime")):
             left_out.append((row["label"], "no regime decided"))
         else:
             groups.setdefault(regime or row["regime"], []).append(row)
@@ -329,12 +361,23 @@ def master_curves(out_dir, *, regime: str | None = None) -> list[MasterCurve]:
         judged = []
         for m in members:
             z = (math.log(m.prefactor) - pooled.log_value) / math.hypot(m.log_se, pooled.log_se)
-            off = abs(z) > FLAG_SIGMAS and pooled.k > 1
-            note = (
-                f"C = {m.prefactor:.3g} lies {abs(z):.1f} standard errors from the collective"
-                if off
-                else m.note
+            off_c = abs(z) > FLAG_SIGMAS and pooled.k > 1
+            off_shape = (
+                math.isfinite(m.slope)
+                and abs(m.slope) > FLAG_SIGMAS * m.slope_se
+                and abs(m.slope) > EXPONENT_TOLERANCE
             )
+            off = off_c or off_shape
+            reasons = []
+            if off_c:
+                reasons.append(
+                    f"C = {m.prefactor:.3g} lies {abs(z):.1f} standard errors from the collective"
+                )
+            if off_shape:
+                reasons.append(
+                    f"its exponent differs from the law's by {m.slope:+.3g} (± {m.slope_se:.2g})"
+                )
+            note = "; ".join(reasons) if off else m.note
             judged.append(
                 Member(**{**m.__dict__, "deviation": z, "collapses": not off, "note": note})
             )
@@ -350,6 +393,10 @@ def master_curves(out_dir, *, regime: str | None = None) -> list[MasterCurve]:
             )
         )
     return curves
+
+
+def _num(value):
+    return value if math.isfinite(value) else None
 
 
 def curve_to_dict(curve: MasterCurve) -> dict:
@@ -375,7 +422,9 @@ def curve_to_dict(curve: MasterCurve) -> dict:
                 "drop_radius_m": m.drop_radius,
                 "prefactor": m.prefactor,
                 "log_se": m.log_se,
-                "deviation_se": m.deviation,
+                "deviation_se": _num(m.deviation),
+                "exponent_offset": _num(m.slope),
+                "exponent_offset_se": _num(m.slope_se),
                 "collapses": m.collapses,
                 "note": m.note,
                 "points": int(m.x.size),

@@ -111,15 +111,19 @@ def test_the_master_curve_recovers_the_prefactor_the_recordings_were_made_with(p
         assert taus[label] == pytest.approx(viscosity * 1e-3 / 65e-3, rel=1e-12)
 
 
-def test_a_wrong_viscosity_in_the_catalogue_is_flagged_as_off_the_curve(pool_run, tmp_path):
+def test_a_recording_whose_prefactor_is_off_is_flagged(pool_run, tmp_path):
     out, _ = pool_run
     copy = tmp_path / "out"
     shutil.copytree(out, copy)
-    # As if the sample's viscosity had been typed twice too large: its
-    # rescaled time halves and its prefactor doubles.
+    # As if one sample's surface tension had been a quarter of the others'
+    # (a surfactant, say) while the manifest kept the same value: its fitted
+    # C on gamma/eta is then four times too small... here, simply halved.
     with sqlite3.connect(copy / "catalogue.sqlite") as conn:
         conn.execute(
-            "UPDATE recordings SET viscosity_pa_s = viscosity_pa_s * 2 WHERE label = ?", ("mu120",)
+            "UPDATE recordings SET prefactor_fit = prefactor_fit / 2, "
+            "prefactor_ci_low = prefactor_ci_low / 2, prefactor_ci_high = prefactor_ci_high / 2 "
+            "WHERE label = ?",
+            ("mu120",),
         )
     result = CliRunner().invoke(main, ["collapse", str(copy)])
     assert result.exit_code == 0, result.output
@@ -128,7 +132,28 @@ def test_a_wrong_viscosity_in_the_catalogue_is_flagged_as_off_the_curve(pool_run
     (curve,) = data["curves"]
     assert curve["flagged"] == ["mu120"]
     member = next(m for m in curve["members"] if m["label"] == "mu120")
-    assert member["prefactor"] == pytest.approx(2.0, rel=0.02)
+    assert member["prefactor"] == pytest.approx(0.5, rel=0.03)
+
+
+def test_on_the_wrong_regimes_scales_the_series_do_not_collapse(pool_run, tmp_path):
+    out, _ = pool_run
+    dest = tmp_path / "inertial"
+    result = CliRunner().invoke(
+        main, ["collapse", str(out), "--regime", "inertial", "-o", str(dest)]
+    )
+    assert result.exit_code == 0, result.output
+    (curve,) = json.loads((dest / "collapse.json").read_text())["curves"]
+    # tau = sqrt(rho R^3 / gamma) for every member (physics.md A3): the same
+    # for all five, since only the viscosity changes.
+    tau_i = (1221.0 * 1e-3**3 / 65e-3) ** 0.5
+    assert all(m["tau_s"] == pytest.approx(tau_i, rel=1e-12) for m in curve["members"])
+    # r = C (gamma/eta) t on these scales is y = C (tau_i/tau_v) x. Every
+    # series spans the same y, so over it y / x^(1/2) = (C y tau_i/tau_v)^(1/2):
+    # the prefactors on x^(1/2) go as eta^(-1/2) instead of being one, and
+    # the curve says the series do not collapse.
+    c = {m["label"]: m["prefactor"] for m in curve["members"]}
+    assert c["mu050"] / c["mu250"] == pytest.approx((0.25 / 0.05) ** 0.5, rel=0.05)
+    assert len(curve["flagged"]) >= 2
 
 
 def test_dask_local_cluster_gives_the_same_rows_as_the_pool(
