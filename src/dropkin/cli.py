@@ -270,6 +270,7 @@ def _run_measure(
     """
     from pathlib import Path
 
+    from ._atomic import remove_temporaries
     from ._overlays import write_overlays
     from .measure import MeasureOptions, measure, recording_sha256
     from .series import write_series
@@ -297,6 +298,7 @@ def _run_measure(
         None if exp.path is None else str(Path(exp.path).resolve())
     )
     out = Path(out)
+    remove_temporaries(out, out / "overlays")  # left by a run that was killed
     write_series(series, out)
     if overlay_count:
         write_overlays(rec, series, extras, out / "overlays", count=overlay_count)
@@ -347,11 +349,15 @@ def _fit_options(command):
 
 
 def _run_fit(ctx, radius_csv, out, *, experiment, t0, seed, bootstrap):
+    from pathlib import Path
+
+    from ._atomic import remove_temporaries
     from .analysis import fit_measurement, load_measurement, write_fit
     from .scaling import format_verdict
 
     measurement = load_measurement(radius_csv, experiment=experiment)
     verdict, _ = fit_measurement(measurement, t0=t0, seed=seed, bootstrap=bootstrap)
+    remove_temporaries(out, Path(out) / "plots")  # left by a run that was killed
     path = write_fit(verdict, out)
     click.echo(format_verdict(verdict))
     if not verdict:
