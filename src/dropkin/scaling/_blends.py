@@ -29,6 +29,7 @@ Examples
 from __future__ import annotations
 
 import math
+import warnings
 from dataclasses import dataclass
 
 import numpy as np
@@ -234,8 +235,13 @@ def _exp_or_nan(x: float) -> float:
 
 def _polyfit(x, y, w):
     if len(x) >= 2 and np.ptp(x) > 0:
-        n, a = np.polyfit(x, y, 1, w=np.sqrt(w))
-        return float(a), float(n)
+        try:
+            with warnings.catch_warnings():
+                warnings.simplefilter("error")  # times (nearly) equal: RankWarning
+                n, a = np.polyfit(x, y, 1, w=np.sqrt(w))
+            return float(a), float(n)
+        except (Warning, ValueError, np.linalg.LinAlgError):
+            pass
     return float(np.mean(y)), 0.5
 
 

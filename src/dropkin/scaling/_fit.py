@@ -30,6 +30,7 @@ False
 from __future__ import annotations
 
 import math
+import warnings
 from dataclasses import dataclass
 
 import numpy as np
@@ -494,11 +495,16 @@ def guess_power_law(time, radius, *, t0=0.0) -> tuple[float, float]:
     r = as_array("radius", radius, len(t))
     keep = np.isfinite(t) & np.isfinite(r) & (r > 0) & (t > t0)
     x = np.log(t[keep] - t0)
-    if np.unique(x).size < 2:
+    try:
+        if x.size < 2:
+            raise ValueError("one point")
+        with warnings.catch_warnings():
+            warnings.simplefilter("error")  # times (nearly) equal: RankWarning
+            n, lna = np.polyfit(x, np.log(r[keep]), 1)
+    except (Warning, TypeError, ValueError, np.linalg.LinAlgError):
         raise FitError(
-            "needs two points at different times after t0 with a positive radius", key="radius"
-        )
-    n, lna = np.polyfit(x, np.log(r[keep]), 1)
+            "needs two points at distinct times after t0 with a positive radius", key="radius"
+        ) from None
     if not (math.isfinite(n) and abs(lna) < _LN_MAX):
         raise FitError("gives a prefactor outside the floating-point range", key="radius")
     return float(math.exp(lna)), float(n)

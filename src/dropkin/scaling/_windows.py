@@ -34,6 +34,7 @@ True
 from __future__ import annotations
 
 import math
+import warnings
 from dataclasses import dataclass, field
 
 import numpy as np
@@ -191,9 +192,12 @@ def sides_ok(data: Series, fit: BlendFit) -> bool:
 def curvature_direction(data: Series, t0) -> int:
     """-1 if ``ln r`` bends down against ``ln τ`` (a weighted quadratic polyfit), else +1."""
     x = np.log(data.time - t0)
-    if np.unique(x).size < 3:  # too few distinct times to see a bend: as for c2 = 0
-        return 1
-    c2 = np.polyfit(x - x.mean(), data.y, 2, w=1.0 / data.s)[0]
+    try:
+        with warnings.catch_warnings():
+            warnings.simplefilter("error")  # times (nearly) equal: RankWarning
+            c2 = np.polyfit(x - x.mean(), data.y, 2, w=1.0 / data.s)[0]
+    except (Warning, TypeError, ValueError, np.linalg.LinAlgError):
+        return 1  # too few distinct times to see a bend: as for c2 = 0
     return -1 if c2 < 0 else 1
 
 
