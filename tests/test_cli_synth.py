@@ -113,7 +113,7 @@ def test_bad_size_is_a_usage_error(tmp_path):
     ("args", "message"),
     [
         (["--law", "power"], "--law = 'power': needs --exponent and --prefactor"),
-        (["--contact-frame", "9"], "contact_frame = 9.0: must lie within the recording"),
+        (["--contact-frame", "9"], "--contact-frame = 9.0: must lie within the recording"),
         (
             ["--law", "power", "--exponent", "0.5", "--prefactor", "10", "--contact-frame", "0"],
             "reaches the smaller drop radius",

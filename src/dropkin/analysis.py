@@ -20,7 +20,7 @@ from .errors import DropkinError, ExperimentError
 from .experiment import Drops, Experiment, load_experiment, read_experiment
 from .series import read_radius_csv
 
-__all__ = ["Measurement", "load_measurement", "fit_measurement", "write_fit"]
+__all__ = ["Measurement", "load_measurement", "fit_measurement", "write_fit", "check_sample"]
 
 
 @dataclass(frozen=True)
@@ -46,6 +46,23 @@ class Measurement:
     path: Path
 
 
+def _number(value) -> bool:
+    return isinstance(value, int | float) and not isinstance(value, bool) and math.isfinite(value)
+
+
+# What fit_measurement reads from measure.json: key -> (test, what it must be).
+_INFO_KEYS = {
+    "contact_time_s": (_number, "a finite time in s"),
+    "contact_time_err_s": (lambda v: _number(v) and v >= 0, "a finite time >= 0 in s"),
+    "contact_bracket_s": (
+        lambda v: isinstance(v, list) and len(v) == 2 and all(map(_number, v)) and v[0] <= v[1],
+        "two finite times [lo, hi] in s, lo <= hi",
+    ),
+    "drop_radius_m": (lambda v: _number(v) and v > 0, "a length above 0 in m"),
+    "geometry": (lambda v: v in ("coalescence", "spreading"), "coalescence or spreading"),
+}
+
+
 def _read_info(path: Path) -> dict:
     if not path.is_file():
         return {}
@@ -55,7 +72,46 @@ def _read_info(path: Path) -> dict:
         raise DropkinError(f"cannot be read as JSON ({exc})", path=path) from None
     if not isinstance(info, dict):
         raise DropkinError("is not a JSON object", path=path)
+    for key, (valid, expected) in _INFO_KEYS.items():
+        if info.get(key) is not None and not valid(info[key]):
+            raise DropkinError(
+                "has a bad value", path=path, key=key, value=info[key], expected=expected
+            )
+    provenance = info.get("provenance")
+    if provenance is not None and not isinstance(provenance, dict):
+        raise DropkinError("is not a JSON object", path=path, key="provenance")
+    named = (provenance or {}).get("experiment_file")
+    if named is not None and not isinstance(named, str):
+        raise DropkinError(
+            "has a bad value",
+            path=path,
+            key="provenance.experiment_file",
+            value=named,
+            expected="the path of an experiment file",
+        )
     return info
+
+
+def check_sample(experiment: Experiment) -> None:
+    """Raise now what :func:`fit_measurement` would raise later about the sample.
+
+    The liquid and the medium must resolve (library names, temperatures,
+    values); only the drop radius may be missing, since a measurement
+    supplies it. ``dropkin analyze`` calls this before measuring, so that a
+    bad sample description fails in a second rather than after the frames.
+
+    Raises
+    ------
+    ExperimentError
+        Naming the experiment file and the key.
+    """
+    from .liquids import resolve_fluids
+    from .scaling import sample_numbers_from_experiment
+
+    full = resolve_fluids(experiment)
+    if full.drops.radius is None:
+        full = replace(full, drops=Drops(radius=1.0))  # any size: measured later
+    sample_numbers_from_experiment(full)
 
 
 def load_measurement(radius_csv, *, experiment=None, overrides=None) -> Measurement:
@@ -81,6 +137,8 @@ def load_measurement(radius_csv, *, experiment=None, overrides=None) -> Measurem
 
     path = Path(radius_csv)
     series = read_radius_csv(path)
+    if not len(series["frame"]):
+        raise DropkinError("has no rows, only a header", path=path, expected="one row per frame")
     info = _read_info(path.with_name("measure.json"))
     if experiment is None:
         named = (info.get("provenance") or {}).get("experiment_file")

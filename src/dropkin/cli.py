@@ -11,6 +11,7 @@ from __future__ import annotations
 
 import contextlib
 import json
+import math
 import sys
 
 import click
@@ -21,6 +22,32 @@ from .units import QuantityType
 
 EXIT_INPUT_ERROR = 1
 EXIT_BATCH_PARTIAL = 3
+
+
+def _positive(unit: str) -> QuantityType:
+    """A quantity option that must lie above zero; the usage error names the option."""
+    return QuantityType(unit, positive=True)
+
+
+class _FiniteFloat(click.FloatRange):
+    """click's FloatRange, refusing NaN and infinity (which its bounds let through)."""
+
+    def __init__(self, min=None, max=None, **kwargs):
+        super().__init__(min, max, **kwargs)
+        if min is None and max is None:
+            self.name = "float"  # help shows FLOAT, without a range
+
+    def convert(self, value, param, ctx):
+        number = super().convert(value, param, ctx)
+        if not math.isfinite(number):
+            self.fail(f"{value!r} is not a finite number.", param, ctx)
+        return number
+
+    def _describe_range(self) -> str:
+        return "" if self.min is None and self.max is None else super()._describe_range()
+
+
+FINITE_FLOAT = _FiniteFloat()
 
 
 class _Group(click.Group):
@@ -70,9 +97,9 @@ def _experiment_options(command):
             type=click.Path(dir_okay=False, path_type=str),
             help="Experiment file (default: experiment.toml in the folder, or <stem>.toml).",
         ),
-        click.option("--frame-rate", type=QuantityType("Hz"), help='Frame rate, e.g. "20 kfps".'),
+        click.option("--frame-rate", type=_positive("Hz"), help='Frame rate, e.g. "20 kfps".'),
         click.option(
-            "--pixel-size", type=QuantityType("m"), help='Length of one pixel, e.g. "5 um".'
+            "--pixel-size", type=_positive("m"), help='Length of one pixel, e.g. "5 um".'
         ),
         click.option(
             "--geometry",
@@ -171,7 +198,7 @@ def _measure_options(command):
         click.option("--roi", help="Region of interest ROW0:ROW1,COL0:COL1 (pixels)."),
         click.option(
             "--threshold",
-            type=click.FloatRange(0.05, 0.95),
+            type=_FiniteFloat(0.05, 0.95),
             default=0.5,
             show_default=True,
             help="Edge level, as a fraction of the way from the drops' dark rim to the "
@@ -553,17 +580,19 @@ def _physics_fill_notes(before, after, *, user_library):
 @click.option("--view", type=click.Choice(["side", "bottom"]), help="Camera view.")
 @click.option("--liquid", help="Library name of the drops' liquid (see `dropkin liquids`).")
 @click.option("--medium", help="Library name of the surrounding fluid (default air).")
-@click.option("--temperature", type=QuantityType("K"), help='e.g. "21 degC" (default 20 °C).')
-@click.option("--glycerol-mass-fraction", type=float, help="For glycerol-water, 0 to 1.")
-@click.option("--surface-tension", type=QuantityType("N/m"), help='e.g. "63 mN/m".')
-@click.option("--viscosity", type=QuantityType("Pa*s"), help='e.g. "110 mPa*s".')
-@click.option("--density", type=QuantityType("kg/m^3"), help='e.g. "1220 kg/m^3".')
-@click.option("--drop-radius", type=QuantityType("m"), help='e.g. "1 mm".')
-@click.option("--outer-viscosity", type=QuantityType("Pa*s"), help="Surrounding fluid.")
-@click.option("--outer-density", type=QuantityType("kg/m^3"), help="Surrounding fluid.")
-@click.option("--contact-angle", type=float, help="Contact angle on the substrate (degrees).")
-@click.option("--frame-rate", type=QuantityType("Hz"), help="Your camera's, to check it.")
-@click.option("--pixel-size", type=QuantityType("m"), help="Your optics', to check them.")
+@click.option("--temperature", type=_positive("K"), help='e.g. "21 degC" (default 20 °C).')
+@click.option("--glycerol-mass-fraction", type=FINITE_FLOAT, help="For glycerol-water, 0 to 1.")
+@click.option("--surface-tension", type=_positive("N/m"), help='e.g. "63 mN/m".')
+@click.option("--viscosity", type=_positive("Pa*s"), help='e.g. "110 mPa*s".')
+@click.option("--density", type=_positive("kg/m^3"), help='e.g. "1220 kg/m^3".')
+@click.option("--drop-radius", type=_positive("m"), help='e.g. "1 mm".')
+@click.option("--outer-viscosity", type=_positive("Pa*s"), help="Surrounding fluid.")
+@click.option("--outer-density", type=_positive("kg/m^3"), help="Surrounding fluid.")
+@click.option(
+    "--contact-angle", type=FINITE_FLOAT, help="Contact angle on the substrate (degrees)."
+)
+@click.option("--frame-rate", type=_positive("Hz"), help="Your camera's, to check it.")
+@click.option("--pixel-size", type=_positive("m"), help="Your optics', to check them.")
 @click.option(
     "--liquids",
     "liquids_file",
@@ -667,8 +696,8 @@ def predict_command(
 
 @main.command("liquids")
 @click.argument("name", required=False)
-@click.option("--temperature", type=QuantityType("K"), help='e.g. "25 degC" (default 20 °C).')
-@click.option("--glycerol-mass-fraction", type=float, help="For glycerol-water, 0 to 1.")
+@click.option("--temperature", type=_positive("K"), help='e.g. "25 degC" (default 20 °C).')
+@click.option("--glycerol-mass-fraction", type=FINITE_FLOAT, help="For glycerol-water, 0 to 1.")
 @click.option(
     "--liquids",
     "liquids_file",
@@ -796,59 +825,55 @@ def _synth_size(ctx, param, value):
     type=click.Choice(_SYNTH_LAWS),
     help="Radius law (default: inertial, or inertial-spreading for spreading).",
 )
-@click.option("--exponent", type=float, help="Exponent n of --law power.")
+@click.option("--exponent", type=FINITE_FLOAT, help="Exponent n of --law power.")
 @click.option(
     "--prefactor",
-    type=float,
+    type=FINITE_FLOAT,
     help="--law power: C of r = C t^n in SI units (m s^-n); "
     "inertial, viscous-outer, inertial-spreading, gravity-spreading: the dimensionless C.",
 )
+@click.option("--surface-tension", type=_positive("N/m"), default="72.74 mN/m", show_default=True)
+@click.option("--viscosity", type=_positive("Pa*s"), default="1.0016 mPa*s", show_default=True)
+@click.option("--density", type=_positive("kg/m^3"), default="998.2 kg/m^3", show_default=True)
 @click.option(
-    "--surface-tension", type=QuantityType("N/m"), default="72.74 mN/m", show_default=True
+    "--outer-viscosity", type=_positive("Pa*s"), default="0.018 mPa*s", show_default=True
 )
-@click.option("--viscosity", type=QuantityType("Pa*s"), default="1.0016 mPa*s", show_default=True)
-@click.option("--density", type=QuantityType("kg/m^3"), default="998.2 kg/m^3", show_default=True)
-@click.option(
-    "--outer-viscosity", type=QuantityType("Pa*s"), default="0.018 mPa*s", show_default=True
-)
-@click.option(
-    "--outer-density", type=QuantityType("kg/m^3"), default="1.2 kg/m^3", show_default=True
-)
+@click.option("--outer-density", type=_positive("kg/m^3"), default="1.2 kg/m^3", show_default=True)
 @click.option("--liquid-name", default="water", show_default=True, help="Written to [liquid].")
-@click.option("--temperature", type=QuantityType("K"), default="20 degC", show_default=True)
-@click.option("--glycerol-mass-fraction", type=click.FloatRange(0, 1), help="For glycerol-water.")
-@click.option("--drop-radius", type=QuantityType("m"), default="1 mm", show_default=True)
-@click.option("--second-radius", type=QuantityType("m"), help="Radius of drop 2 (default equal).")
+@click.option("--temperature", type=_positive("K"), default="20 degC", show_default=True)
+@click.option("--glycerol-mass-fraction", type=_FiniteFloat(0, 1), help="For glycerol-water.")
+@click.option("--drop-radius", type=_positive("m"), default="1 mm", show_default=True)
+@click.option("--second-radius", type=_positive("m"), help="Radius of drop 2 (default equal).")
 @click.option(
     "--angle",
-    type=float,
+    type=FINITE_FLOAT,
     default=0.0,
     show_default=True,
     help="Line of centres, degrees counter-clockwise from horizontal (-90: drop 2 below).",
 )
 @click.option("--frames", type=click.IntRange(min=1), default=100, show_default=True)
-@click.option("--frame-rate", type=QuantityType("Hz"), default="100 kHz", show_default=True)
-@click.option("--pixel-size", type=QuantityType("m"), default="10 um", show_default=True)
+@click.option("--frame-rate", type=_positive("Hz"), default="100 kHz", show_default=True)
+@click.option("--pixel-size", type=_positive("m"), default="10 um", show_default=True)
 @click.option(
     "--size", callback=_synth_size, default="320x512", show_default=True, help="ROWSxCOLS."
 )
 @click.option(
     "--contact-frame",
-    type=float,
+    type=FINITE_FLOAT,
     default=5.0,
     show_default=True,
     help="Contact instant in frames from the first (fractional: between two frames).",
 )
 @click.option(
     "--noise",
-    type=click.FloatRange(min=0),
+    type=_FiniteFloat(min=0),
     default=1.0,
     show_default=True,
     help="Noise level: 1 is a 20000-electron sensor with 10 e- read noise; 0 is none.",
 )
 @click.option(
     "--blur",
-    type=click.FloatRange(min=0),
+    type=_FiniteFloat(min=0),
     default=1.0,
     show_default=True,
     help="Sigma of the Gaussian blur, pixels.",
@@ -863,12 +888,12 @@ def _synth_size(ctx, param, value):
 @click.option("--seed", type=click.IntRange(min=0), default=0, show_default=True)
 @click.option(
     "--reflectivity",
-    type=click.FloatRange(0, 1, max_open=True),
+    type=_FiniteFloat(0, 1, max_open=True),
     default=0.0,
     show_default=True,
     help="Spreading, side view: 0 for an opaque plate, else the drop's mirror image shows.",
 )
-@click.option("--needle-width", type=QuantityType("m"), help="A needle into the upper drop.")
+@click.option("--needle-width", type=_positive("m"), help="A needle into the upper drop.")
 @click.option(
     "--dust",
     type=click.IntRange(min=0),
@@ -878,13 +903,30 @@ def _synth_size(ctx, param, value):
 )
 @click.option(
     "--approach-speed",
-    type=QuantityType("m/s"),
+    type=_positive("m/s"),
     help="Before contact (default: half a pixel per frame).",
 )
 @click.option("--overwrite", is_flag=True, help="Replace existing output.")
 @click.pass_context
 def synth_command(ctx, out, **options):
     """Write a synthetic recording with known truth to OUT (a folder, or a .tif file)."""
+    try:
+        _synth(ctx, out, options)
+    except DropkinError as exc:
+        raise _as_option_error(ctx, exc) from None
+
+
+def _as_option_error(ctx, exc):
+    """`exc` naming the command's option (``--contact-frame``) instead of the
+    library's keyword (``contact_frame``), when there is such an option."""
+    option = "--" + (exc.key or "").replace("_", "-")
+    if exc.key is None or not any(option in p.opts for p in ctx.command.params):
+        return exc
+    fields = {name: getattr(exc, name) for name in ("path", "value", "expected", "frame")}
+    return type(exc)(exc.message, key=option, **fields)
+
+
+def _synth(ctx, out, options):
     import time
 
     from . import synth

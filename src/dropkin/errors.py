@@ -30,6 +30,7 @@ __all__ = [
     "RecordingError",
     "MeasurementError",
     "FitError",
+    "with_path",
 ]
 
 _FIELDS = ("path", "key", "value", "expected", "frame")
@@ -129,3 +130,22 @@ class MeasurementError(DropkinError, RuntimeError):
 
 class FitError(DropkinError, ValueError):
     """A radius series cannot be fitted because the call itself is wrong."""
+
+
+def with_path(error: DropkinError, path) -> DropkinError:
+    """A copy of `error` that names `path`, when it names no file yet.
+
+    For code that knows which file a value came from while the code that
+    found the problem did not (a liquid looked up for an experiment file).
+
+    Examples
+    --------
+    >>> err = ExperimentError("unknown liquid", key="liquid.name")
+    >>> str(with_path(err, "run3/experiment.toml"))
+    'run3/experiment.toml: liquid.name: unknown liquid'
+    """
+    if error.path is not None or path is None:
+        return error
+    fields = {name: getattr(error, name) for name in _FIELDS}
+    fields["path"] = path
+    return _restore(type(error), error.message, fields)

@@ -50,7 +50,7 @@ from ._liquids_user import (
     liquid_library_from_toml,
     load_liquid_library,
 )
-from .errors import ExperimentError
+from .errors import ExperimentError, with_path
 
 __all__ = [
     "DEFAULT_TEMPERATURE",
@@ -412,6 +412,13 @@ def resolve_fluids(experiment, *, user_library=None):
     (0.0011, 998.2, 'air')
     """
     library = _as_library(user_library)
+    try:
+        return _resolve(experiment, library)
+    except ExperimentError as exc:  # the values came from the experiment file: name it
+        raise with_path(exc, getattr(experiment, "path", None)) from None
+
+
+def _resolve(experiment, library):
     liquid = experiment.liquid
     if liquid.name is not None and any(getattr(liquid, n) is None for n in _FILLED):
         temperature = DEFAULT_TEMPERATURE if liquid.temperature is None else liquid.temperature

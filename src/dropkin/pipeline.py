@@ -158,6 +158,7 @@ def measure_into(
         written all the same).
     contact_method : str
     """
+    from ._atomic import remove_temporaries
     from ._overlays import write_overlays
     from .measure import MeasureOptions, measure, recording_sha256
     from .series import write_series
@@ -179,6 +180,7 @@ def measure_into(
     named = experiment_file if experiment_file is not None else exp.path
     series.provenance["experiment_file"] = None if named is None else str(Path(named).resolve())
     out = Path(out)
+    remove_temporaries(out, out / "overlays")  # left by a run that was killed
     write_series(series, out)
     if settings.overlays:
         write_overlays(rec, series, extras, out / "overlays", count=settings.overlays)
@@ -197,10 +199,12 @@ def fit_into(radius_csv, out, *, experiment=None, t0=None, seed: int = 0, bootst
     experiment : Experiment
         The sample as used.
     """
+    from ._atomic import remove_temporaries
     from .analysis import fit_measurement, load_measurement, write_fit
 
     measurement = load_measurement(radius_csv, experiment=experiment)
     verdict, numbers = fit_measurement(measurement, t0=t0, seed=seed, bootstrap=bootstrap)
+    remove_temporaries(out, Path(out) / "plots")  # left by a run that was killed
     write_fit(verdict, out)
     return verdict, numbers, measurement.experiment
 
@@ -241,8 +245,11 @@ def analyze_into(
     from .experiment import experiment_to_toml
     from .report import write_analysis_outputs
 
+    from .analysis import check_sample
+
     out = Path(out)
     exp, rec = open_source(source, experiment=experiment, overrides=overrides, origin=origin)
+    check_sample(exp)  # a bad sample description fails before the frames are measured
     copy = None
     if experiment_copy:
         out.mkdir(parents=True, exist_ok=True)

@@ -200,7 +200,34 @@ def _parse_float(text: str, *, path, line: int, column: str) -> float:
         ) from None
     if math.isinf(value):
         raise DropkinError(f"line {line}: {column} is infinite", path=path, value=text)
+    if math.isnan(value):  # the format leaves a cell empty where there is no value
+        raise DropkinError(
+            f"line {line}: {column} is NaN", path=path, value=text, expected="a number, or nothing"
+        )
+    if value < 0 and column != "time_s":
+        raise DropkinError(f"line {line}: {column} is negative", path=path, value=text)
     return value
+
+
+def _check_row(values: dict, previous: dict | None, *, path, line: int) -> None:
+    """A row's cells against each other and against the row before it."""
+    if math.isnan(values["time_s"]):
+        raise DropkinError(f"line {line}: time_s is empty", path=path, expected="a time in s")
+    if values["status"] == "ok" and not values["radius_m"] > 0:
+        raise DropkinError(
+            f"line {line}: status ok without a radius", path=path, expected="radius_m above 0"
+        )
+    if previous is None:
+        return
+    for column in ("frame", "time_s"):
+        if not values[column] > previous[column]:
+            raise DropkinError(
+                f"line {line}: {column} does not increase (line {line - 1} has "
+                f"{previous[column]!r})",
+                path=path,
+                value=values[column],
+                expected="rows in the order of the frames, one per frame",
+            )
 
 
 def read_radius_csv(path) -> dict:
@@ -217,7 +244,10 @@ def read_radius_csv(path) -> dict:
     ------
     DropkinError
         If the file is missing, has other columns, or holds a value that is
-        not a number or not a known status; the message names the line.
+        not a number or not a known status, a NaN (the format leaves such
+        cells empty), a negative radius, uncertainty or time since contact, a
+        row without a time, an ``ok`` row without a radius, or rows whose
+        frames or times do not increase; the message names the line.
     """
     path = Path(path)
     try:
@@ -236,6 +266,7 @@ def read_radius_csv(path) -> dict:
             expected=",".join(CSV_COLUMNS),
         )
     data = {name: [] for name in CSV_COLUMNS}
+    previous = None
     for line, row in enumerate(rows[1:], start=2):
         if not row:
             continue
@@ -244,22 +275,25 @@ def read_radius_csv(path) -> dict:
                 f"line {line}: has {len(row)} fields", path=path, expected=str(len(CSV_COLUMNS))
             )
         try:
-            data["frame"].append(int(row[0]))
+            values = {"frame": int(row[0])}
         except ValueError:
             raise DropkinError(
                 f"line {line}: frame is not a whole number", path=path, value=row[0]
             ) from None
         for column, text in zip(CSV_COLUMNS[1:5], row[1:5], strict=True):
-            data[column].append(_parse_float(text, path=path, line=line, column=column))
-        status = row[5].strip()
-        if status not in STATUSES:
+            values[column] = _parse_float(text, path=path, line=line, column=column)
+        values["status"] = row[5].strip()
+        if values["status"] not in STATUSES:
             raise DropkinError(
                 f"line {line}: unknown status",
                 path=path,
-                value=status,
+                value=values["status"],
                 expected=" | ".join(STATUSES),
             )
-        data["status"].append(status)
+        _check_row(values, previous, path=path, line=line)
+        previous = values
+        for name in CSV_COLUMNS:
+            data[name].append(values[name])
     out = {name: np.asarray(data[name], dtype=np.float64) for name in CSV_COLUMNS[1:5]}
     out["frame"] = np.asarray(data["frame"], dtype=np.int64)
     out["status"] = tuple(data["status"])

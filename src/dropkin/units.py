@@ -180,20 +180,32 @@ class QuantityType(click.ParamType):
     ----------
     unit : str
         The unit the value is converted to, which also fixes the dimension.
+    positive : bool, optional
+        Refuse values that are not above zero (in `unit`: a temperature in
+        kelvin), so that the message names the option rather than the
+        setting it feeds.
     """
 
-    def __init__(self, unit: str) -> None:
+    def __init__(self, unit: str, *, positive: bool = False) -> None:
         self.unit = unit
+        self.positive = positive
         self.name = f"quantity [{unit}]"
 
     def convert(self, value, param, ctx):
-        if isinstance(value, float):
-            return value
         key = None if param is None else "--" + param.name.replace("_", "-")
-        try:
-            return parse_si(value, self.unit, key=key)
-        except QuantityError as exc:
-            self.fail(str(exc), param, ctx)
+        if isinstance(value, float):
+            number = value
+        else:
+            try:
+                number = parse_si(value, self.unit, key=key)
+            except QuantityError as exc:
+                self.fail(str(exc), param, ctx)
+        if self.positive and not number > 0:
+            where = f"{key} = {value!r}" if key else repr(value)
+            self.fail(
+                f"{where}: must be positive (expected a value above 0 {self.unit})", param, ctx
+            )
+        return number
 
     def __repr__(self) -> str:
-        return f"QuantityType({self.unit!r})"
+        return f"QuantityType({self.unit!r}, positive={self.positive})"

@@ -12,7 +12,7 @@ import json
 import math
 from pathlib import Path
 
-from .._atomic import write_text_atomic
+from .._atomic import completed_files, write_text_atomic
 from .._version import __version__
 from ._plots import PLOT_NAMES, write_plots
 
@@ -309,7 +309,7 @@ def _context(out_dir, series, measure_info, fit, experiment, plot_files):
     ]
     overlays = [
         {"name": p.stem, "uri": _data_uri(p)}
-        for p in sorted((Path(out_dir) / "overlays").glob("*.png"))
+        for p in completed_files(Path(out_dir) / "overlays", "*.png")
     ]
     counts = measure_info.get("status_counts") or {}
     contact = fit.get("contact") or {}

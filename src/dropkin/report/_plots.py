@@ -17,7 +17,7 @@ from pathlib import Path
 
 import numpy as np
 
-from .._atomic import atomic_path
+from .._atomic import atomic_path, completed_files
 
 __all__ = ["write_plots", "OKABE_ITO", "PLOT_NAMES", "dominant_curve", "fit_times"]
 
@@ -372,7 +372,7 @@ def _plot_residuals(series, fit):
 
 
 def _overlay_files(out_dir: Path) -> list[Path]:
-    return sorted((Path(out_dir) / "overlays").glob("*.png"))
+    return completed_files(Path(out_dir) / "overlays", "*.png")
 
 
 def _plot_overlays(files):

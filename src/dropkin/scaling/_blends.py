@@ -29,6 +29,7 @@ Examples
 from __future__ import annotations
 
 import math
+import warnings
 from dataclasses import dataclass
 
 import numpy as np
@@ -220,13 +221,27 @@ class TwoLawModel:
         ln_a2 = p["lnA1"] + f1c - f2c
         u1 = 1.0 if self.early is None else self.early.prefactor_unit_factor()
         u2 = 1.0 if self.late is None else self.late.prefactor_unit_factor()
-        return u1 * math.exp(p["lnA1"]), u2 * math.exp(ln_a2), math.exp(p["lnA1"] + f1c)
+        return (
+            u1 * _exp_or_nan(p["lnA1"]),
+            u2 * _exp_or_nan(ln_a2),
+            _exp_or_nan(p["lnA1"] + f1c),
+        )
+
+
+def _exp_or_nan(x: float) -> float:
+    """``exp(x)``, or NaN beyond the floating-point range (the fit then fails)."""
+    return math.exp(x) if abs(x) < 700.0 else math.nan
 
 
 def _polyfit(x, y, w):
     if len(x) >= 2 and np.ptp(x) > 0:
-        n, a = np.polyfit(x, y, 1, w=np.sqrt(w))
-        return float(a), float(n)
+        try:
+            with warnings.catch_warnings():
+                warnings.simplefilter("error")  # times (nearly) equal: RankWarning
+                n, a = np.polyfit(x, y, 1, w=np.sqrt(w))
+            return float(a), float(n)
+        except (Warning, ValueError, np.linalg.LinAlgError):
+            pass
     return float(np.mean(y)), 0.5
 
 
@@ -313,15 +328,19 @@ def least_squares_fit(model, data, x0, bounds, *, loss, f_scale, max_nfev=None):
         z = (data.y - model.log_radius(theta, data.time)) / data.s
         return np.where(np.isfinite(z), z, 1e6)
 
-    return least_squares(
-        residuals,
-        x0,
-        bounds=bounds,
-        loss=loss,
-        f_scale=f_scale,
-        x_scale="jac",
-        max_nfev=max_nfev or 100 * (len(x0) + 1),
-    )
+    # Times over hundreds of decades can overflow the Jacobian's scale, or put
+    # a trial origin on a point (log 0); the result is then not finite, and
+    # blend_fit returns a falsy record.
+    with np.errstate(over="ignore", invalid="ignore", divide="ignore"):
+        return least_squares(
+            residuals,
+            x0,
+            bounds=bounds,
+            loss=loss,
+            f_scale=f_scale,
+            x_scale="jac",
+            max_nfev=max_nfev or 100 * (len(x0) + 1),
+        )
 
 
 def blend_fit(
@@ -354,31 +373,45 @@ def blend_fit(
     model, x0, bounds = build_model(
         data, kind, early, late, sharpness, lo, hi, t0_start, direction, start
     )
-    res = least_squares_fit(model, data, x0, bounds, loss=loss, f_scale=f_scale)
+    try:
+        res = least_squares_fit(model, data, x0, bounds, loss=loss, f_scale=f_scale)
+    except (ValueError, np.linalg.LinAlgError) as exc:  # scipy met infinities it made
+        return BlendFit(False, f"the fit did not converge ({exc})", name, loss=loss)
     theta = res.x
     p = model.unpack(theta)
     z = (data.y - model.log_radius(theta, data.time)) / data.s
     chi2 = float(np.sum(z * z))
     n, k = len(z), len(theta)
     try:
-        cov = np.linalg.pinv(res.jac.T @ res.jac) * chi2 / max(n - k, 1)
-    except np.linalg.LinAlgError:
+        with np.errstate(over="ignore", invalid="ignore"):  # not finite: a falsy fit below
+            cov = np.linalg.pinv(res.jac.T @ res.jac) * chi2 / max(n - k, 1)
+    except (ValueError, np.linalg.LinAlgError):
         cov = np.full((k, k), np.nan)
     err = dict(zip(model.names(), np.sqrt(np.maximum(np.diag(cov), 0.0)), strict=True))
     n1, n2 = model.exponents(theta)
     a1, a2, rc = model.prefactors(theta)
-    tc = math.exp(p["lntc"])
+    tc = _exp_or_nan(p["lntc"])
     lo_c, hi_c = normal_ci(p["lntc"], err["lntc"])
+    n1_ci = (n1, n1) if early is not None else normal_ci(n1, err["n1"])
+    n2_ci = (n2, n2) if late is not None else normal_ci(n2, err["n2"])
     aic, bic = information(chi2, n, k)
     tau = data.time - p["t0"]
+    numbers = (chi2, n1, n2, a1, a2, rc, tc, p["t0"], lo_c, hi_c, *n1_ci, *n2_ci)
+    finite = bool(np.all(np.isfinite(numbers)))
+    if finite:
+        message = ""
+    elif not np.isfinite(chi2):
+        message = "the fit did not converge"
+    else:
+        message = "the fitted laws or their intervals are outside the floating-point range"
     return BlendFit(
-        success=bool(np.isfinite(chi2)),
-        message="" if np.isfinite(chi2) else "the fit did not converge",
+        success=finite,
+        message=message,
         model=name,
         early_exponent=n1,
         late_exponent=n2,
-        early_exponent_ci=(n1, n1) if early is not None else normal_ci(n1, err["n1"]),
-        late_exponent_ci=(n2, n2) if late is not None else normal_ci(n2, err["n2"]),
+        early_exponent_ci=n1_ci,
+        late_exponent_ci=n2_ci,
         exponents_fixed=early is not None and late is not None,
         early_shape=early,
         late_shape=late,

@@ -37,7 +37,7 @@ import numpy as np
 from ..errors import FitError
 from ._blends import BlendFit, TwoLawModel, least_squares_fit
 from ._fit import LawFit, LinearModel
-from ._fitcore import Series, solve_linear
+from ._fitcore import Series, safe_exp, solve_linear
 
 __all__ = [
     "DEFAULT_MATERIAL_UNCERTAINTY",
@@ -113,6 +113,16 @@ def _interval(values, estimate) -> tuple[float, float]:
     return (float(min(lo, estimate)), float(max(hi, estimate)))
 
 
+def _std(values) -> float:
+    """Sample standard deviation of the finite values (NaN for fewer than two)."""
+    values = np.asarray(values, dtype=float)
+    values = values[np.isfinite(values)]
+    if len(values) < 2:
+        return math.nan
+    with np.errstate(over="ignore"):
+        return float(np.std(values, ddof=1))
+
+
 def _draws(n_points, fit_t0, free, bracket, n, rng):
     idx = rng.integers(0, n_points, size=(n, n_points))
     t0s = rng.uniform(bracket[0], bracket[1], n) if free else np.full(n, fit_t0)
@@ -143,18 +153,21 @@ def bootstrap_linear(series: Series, model: LinearModel, fit: LawFit, *, f_scale
         n_b = beta_b[:, 1]
         ln_rp = ln_a + n_b * math.log(tp)
         exponent_ci = _interval(n_b, fit.exponent)
-        exponent_err = float(np.std(n_b, ddof=1))
+        exponent_err = _std(n_b)
     else:
         ln_rp = ln_a + float(model.shape.log_shape(np.array([tp]))[0])
         exponent_ci, exponent_err = fit.exponent_ci, fit.exponent_err
-    a_b = unit * np.exp(ln_a)
+    # Intervals of the positive A and r_p from the percentiles of their
+    # logarithms (the same order statistics; exp of a resample may overflow).
+    lo_a, hi_a = _interval(ln_a, beta[0])
+    lo_p, hi_p = _interval(ln_rp, math.log(fit.pivot_radius))
     return dataclasses.replace(
         fit,
         exponent_err=exponent_err,
         exponent_ci=exponent_ci,
-        prefactor_err=float(np.std(a_b, ddof=1)),
-        prefactor_ci=_interval(a_b, fit.prefactor),
-        pivot_radius_ci=_interval(np.exp(ln_rp), fit.pivot_radius),
+        prefactor_err=fit.prefactor * _std(ln_a),
+        prefactor_ci=(unit * safe_exp(lo_a), unit * safe_exp(hi_a)),
+        pivot_radius_ci=(safe_exp(lo_p), safe_exp(hi_p)),
         ci_method=_method(fit.t0_free),
         n_resamples=n,
     )

@@ -30,6 +30,7 @@ False
 from __future__ import annotations
 
 import math
+import warnings
 from dataclasses import dataclass
 
 import numpy as np
@@ -57,6 +58,7 @@ from ._fitcore import (
 __all__ = ["LawFit", "fit_power_law", "fit_log_law", "guess_power_law"]
 
 _T0_GRID = 17
+_LN_MAX = 700.0  # exp(±700) ≈ 1e±304: beyond, a prefactor or radius is not a float
 
 
 @dataclass(frozen=True)
@@ -233,6 +235,36 @@ def _correlation(c, va, vb) -> float:
     return float(c / math.sqrt(denominator)) if denominator > 0 else math.nan
 
 
+def _covariance(jac, w, scale, free_t0, t0_variance):
+    """Covariance of (β, t0) from the weighted Jacobian, or None when singular.
+
+    When the points do not determine t0 (the law's slope is zero, so moving
+    t0 changes nothing; or a point so close to t0 that the derivative is not
+    a float), β's covariance is taken at the fitted t0 and t0 gets the
+    variance of a uniform draw across its bracket, which bounds it.
+    """
+
+    def inverse(j):
+        with np.errstate(all="ignore"):
+            try:
+                c = np.linalg.inv(j.T @ (w[:, None] * j)) * scale
+            except np.linalg.LinAlgError:
+                return None
+        return c if np.isfinite(c).all() else None
+
+    cov = inverse(jac)
+    if cov is not None or not free_t0:
+        return cov
+    reduced = inverse(jac[:, :-1])
+    if reduced is None:
+        return None
+    k = jac.shape[1]
+    cov = np.zeros((k, k))
+    cov[:-1, :-1] = reduced
+    cov[-1, -1] = t0_variance
+    return cov
+
+
 def linear_fit(series, model, lo, hi, *, loss, f_scale, reference=None) -> LawFit:
     """Fit one linear-in-β law with the origin fixed or free in [lo, hi]."""
     law = "log" if model.shape is not None and model.shape.logarithmic else "power"
@@ -250,13 +282,13 @@ def linear_fit(series, model, lo, hi, *, loss, f_scale, reference=None) -> LawFi
     # Jacobian of the model in (β, t0): d/dt0 of ln r is -slope/τ.
     jac = x
     if free_t0:
-        jac = np.column_stack([x, -model.slope(tau, beta) / tau])
+        with np.errstate(over="ignore"):  # τ near 0: not finite, see _covariance
+            jac = np.column_stack([x, -model.slope(tau, beta) / tau])
     chi2_w = float(np.sum(w * (data.y - fitted) ** 2))
     dof = max(n - k, 1)
-    try:
-        cov = np.linalg.inv(jac.T @ (w[:, None] * jac)) * chi2_w / dof
-    except np.linalg.LinAlgError:
-        cov = np.full((k, k), np.nan)
+    cov = _covariance(jac, w, chi2_w / dof, free_t0, (hi - lo) ** 2 / 12.0)
+    if cov is None:
+        return LawFit(False, "the points do not determine the law (singular fit)", law, loss=loss)
     tp = math.exp(float(np.sum(w * np.log(tau)) / np.sum(w)))
     lna = float(beta[0])
     unit = 1.0 if model.shape is None else model.shape.prefactor_unit_factor()
@@ -278,6 +310,10 @@ def linear_fit(series, model, lo, hi, *, loss, f_scale, reference=None) -> LawFi
         ln_rp = lna + float(model.shape.log_shape(np.array([tp]))[0])
         exponent_ci = (exponent, exponent)
     lna_err = math.sqrt(max(cov[0, 0], 0.0))
+    if not (abs(lna) < _LN_MAX and abs(ln_rp) < _LN_MAX):  # False for NaN too
+        return LawFit(
+            False, "the fitted radius law is outside the floating-point range", law, loss=loss
+        )
     prefactor = unit * math.exp(lna)
     lo_a, hi_a = normal_ci(lna, lna_err)
     lnp_err = math.sqrt(max(var_lnp, 0.0))
@@ -306,7 +342,7 @@ def linear_fit(series, model, lo, hi, *, loss, f_scale, reference=None) -> LawFi
         correlation_pivot=corr_pivot,
         n_points=n,
         window=(float(tau[0]), float(tau[-1])),
-        decades=math.log10(tau[-1] / tau[0]),
+        decades=math.log10(tau[-1]) - math.log10(tau[0]),
         chi2=chi2,
         aic=aic,
         bic=bic,
@@ -458,7 +494,17 @@ def guess_power_law(time, radius, *, t0=0.0) -> tuple[float, float]:
     t = as_array("time", time)
     r = as_array("radius", radius, len(t))
     keep = np.isfinite(t) & np.isfinite(r) & (r > 0) & (t > t0)
-    if keep.sum() < 2:
-        raise FitError("needs two points after t0 with a positive radius", key="radius")
-    n, lna = np.polyfit(np.log(t[keep] - t0), np.log(r[keep]), 1)
+    x = np.log(t[keep] - t0)
+    try:
+        if x.size < 2:
+            raise ValueError("one point")
+        with warnings.catch_warnings():
+            warnings.simplefilter("error")  # times (nearly) equal: RankWarning
+            n, lna = np.polyfit(x, np.log(r[keep]), 1)
+    except (Warning, TypeError, ValueError, np.linalg.LinAlgError):
+        raise FitError(
+            "needs two points at distinct times after t0 with a positive radius", key="radius"
+        ) from None
+    if not (math.isfinite(n) and abs(lna) < _LN_MAX):
+        raise FitError("gives a prefactor outside the floating-point range", key="radius")
     return float(math.exp(lna)), float(n)

@@ -34,6 +34,7 @@ MIN_DECADES = 1.0 / 3.0
 ROBUST_SCALE = 3.0
 #: Smallest noise unit (in units of the given σ, or of ln r without σ).
 NOISE_FLOOR = 1e-3
+_S_RANGE = (1e-12, 1e12)  # bounds of the relative uncertainty σ_r / r of one point
 _Z95 = 1.959963984540054  # two-sided 95 % quantile of the normal distribution
 _LOSSES = ("soft_l1", "linear")
 
@@ -79,7 +80,8 @@ class LawShape:
         if not self.logarithmic:
             return self.exponent * np.log(tau)
         u, big_r = self.capillary_speed, self.drop_radius
-        x = np.minimum(u * tau / big_r, math.exp(-1.0))
+        with np.errstate(over="ignore"):  # beyond the peak the law is held anyway
+            x = np.minimum(u * tau / big_r, math.exp(-1.0))
         return np.log(x * big_r) + np.log(-np.log(x))
 
     def slope(self, tau):
@@ -87,8 +89,8 @@ class LawShape:
         tau = np.asarray(tau, dtype=float)
         if not self.logarithmic:
             return np.full(tau.shape, float(self.exponent))
-        x = self.capillary_speed * tau / self.drop_radius
-        with np.errstate(divide="ignore", invalid="ignore"):
+        with np.errstate(divide="ignore", invalid="ignore", over="ignore"):
+            x = self.capillary_speed * tau / self.drop_radius
             s = 1.0 + 1.0 / np.log(x)
         return np.where(x < math.exp(-1.0), s, 0.0)
 
@@ -161,11 +163,14 @@ def make_series(time, radius, radius_err=None) -> Series:
     t, r, e = t[keep], r[keep], e[keep]
     order = np.argsort(t, kind="stable")
     t, r, e = t[order], r[order], e[order]
-    with np.errstate(divide="ignore", invalid="ignore"):
+    with np.errstate(divide="ignore", invalid="ignore", over="ignore"):
         s = e / r
     good = np.isfinite(s) & (s > 0)
     weighted = bool(good.any())
     s = np.where(good, s, np.median(s[good]) if weighted else 1.0)
+    # Below 1e-12 a relative uncertainty is finer than ln r's own rounding; the
+    # bounds also keep the weights 1/s² finite and non-zero for any radius.
+    s = np.clip(s, _S_RANGE[0], _S_RANGE[1])
     return Series(t, np.log(r), s, weighted)
 
 
@@ -223,7 +228,7 @@ def data_problem(series: Series, lo: float, hi: float, *, reference=None) -> str
     ref = 0.5 * (lo + hi) if reference is None else reference
     tau = series.time[after] - ref
     tau = tau[tau > 0]
-    decades = math.log10(tau[-1] / tau[0]) if len(tau) >= 2 else 0.0
+    decades = math.log10(tau[-1]) - math.log10(tau[0]) if len(tau) >= 2 else 0.0
     if decades < MIN_DECADES:
         return (
             f"too short: the points span {decades:.2f} decades of time since contact, "
@@ -264,17 +269,30 @@ def solve_linear(x, y, s, f, loss, iterations=8):
     w = w0
     steps = 1 if loss == "linear" else iterations
     for _ in range(steps):
-        xtw = np.swapaxes(x, -1, -2) * w[..., None, :]
-        beta = np.linalg.solve(xtw @ x, (xtw @ y[..., None]))[..., 0]
+        beta = _weighted_solve(x, y, w)
         z = (y - (x @ beta[..., None])[..., 0]) / s
         if loss != "linear":
             w = w0 / np.sqrt(1.0 + (z / f) ** 2)
     if loss != "linear":
         # One last solve with the final weights, so beta, z and w agree.
-        xtw = np.swapaxes(x, -1, -2) * w[..., None, :]
-        beta = np.linalg.solve(xtw @ x, (xtw @ y[..., None]))[..., 0]
+        beta = _weighted_solve(x, y, w)
         z = (y - (x @ beta[..., None])[..., 0]) / s
     return beta, z, w
+
+
+def _weighted_solve(x, y, w):
+    """β of the normal equations ``XᵀWX β = XᵀW y``, batched.
+
+    When a system is singular (the robust weights left fewer effective points
+    than parameters, or all times coincide), the pseudo-inverse gives the
+    minimum-norm solution instead of an exception.
+    """
+    xtw = np.swapaxes(x, -1, -2) * w[..., None, :]
+    a, b = xtw @ x, xtw @ y[..., None]
+    try:
+        return np.linalg.solve(a, b)[..., 0]
+    except np.linalg.LinAlgError:
+        return (np.linalg.pinv(a) @ b)[..., 0]
 
 
 def apparent_exponent(shape: LawShape, tau, w=None) -> float:

@@ -235,7 +235,7 @@ def judge(
     if not candidate.plausible:
         notes.append(f"numbers: {candidate.reason} (c)")
     checks = int(a) + int(b is True) + int(candidate.plausible)
-    decades = 0.0 if window is None else math.log10(window[1] / window[0])
+    decades = 0.0 if window is None else math.log10(window[1]) - math.log10(window[0])
     return CandidateFit(
         regime=reg,
         key=reg.key,

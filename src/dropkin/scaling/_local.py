@@ -84,6 +84,17 @@ class LocalExponent:
         return self.success
 
 
+#: Most grid points of a local exponent (the Savitzky-Golay matrix is grid x grid).
+_MAX_GRID = 2000
+
+
+def _span_decades(series: Series, t0) -> float:
+    """Decades of time since `t0` that the points after it span."""
+    tau = series.time - t0
+    tau = tau[tau > 0]
+    return math.log10(tau.max()) - math.log10(tau.min()) if len(tau) > 1 else 0.0
+
+
 def _grid_exponent(series: Series, t0, ppd, window_points, order):
     """(grid ln τ, n_loc, s.e.) for one origin; None when too short."""
     from scipy.signal import savgol_filter
@@ -126,12 +137,19 @@ def local_from_series(
     """The local exponent of prepared points (after contact) for origin t0."""
     window_points = 2 * int(round(window_decades * points_per_decade / 2.0)) + 1
     window_points = max(window_points, order + 3 - (order % 2))
-    best = _grid_exponent(series, t0, points_per_decade, window_points, order)
+    span = _span_decades(series, t0)
+    too_long = span * points_per_decade > _MAX_GRID  # the filter's matrix is grid²
+    best = (
+        None if too_long else _grid_exponent(series, t0, points_per_decade, window_points, order)
+    )
     empty = np.array([])
     if best is None:
         return LocalExponent(
             False,
-            "too short for a local exponent: fewer than 5 grid points of "
+            f"the points span {span:.0f} decades of time since contact; a local exponent "
+            f"is computed over at most {_MAX_GRID // points_per_decade} decades"
+            if too_long
+            else "too short for a local exponent: fewer than 5 grid points of "
             f"1/{points_per_decade} decade",
             empty,
             empty,
@@ -147,15 +165,19 @@ def local_from_series(
     grid, n_loc, err, used = best
     low, high = n_loc.copy(), n_loc.copy()
     for t0_end in bracket:
-        if t0_end == t0:
+        if t0_end == t0 or _span_decades(series, t0_end) * points_per_decade > _MAX_GRID:
             continue
         other = _grid_exponent(series, t0_end, points_per_decade, window_points, order)
         if other is None:
             continue
         g2, n2 = other[0], other[1]
         # The same frame times, counted from the best origin.
-        mapped = np.log(np.exp(g2) + (t0_end - t0))
-        n_at = np.interp(grid, mapped, n2)
+        with np.errstate(invalid="ignore", divide="ignore"):
+            mapped = np.log(np.exp(g2) + (t0_end - t0))
+        keep = np.isfinite(mapped)  # grid points before the best origin have no time
+        if keep.sum() < 2:
+            continue
+        n_at = np.interp(grid, mapped[keep], n2[keep])
         low, high = np.minimum(low, n_at), np.maximum(high, n_at)
     return LocalExponent(
         True,

@@ -364,7 +364,11 @@ def sample_numbers_from_experiment(experiment, *, contact_angle=None) -> SampleN
                 if section == "drops"
                 else "give it in the experiment file, or name a library liquid"
             )
-            raise ExperimentError(f"is not known: {hint}", key=f"{section}.{name}")
+            raise ExperimentError(
+                f"is not known: {hint}",
+                key=f"{section}.{name}",
+                path=getattr(experiment, "path", None),
+            )
     liquid, medium = experiment.liquid, experiment.medium
     return SampleNumbers(
         surface_tension=liquid.surface_tension,

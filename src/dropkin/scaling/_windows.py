@@ -34,6 +34,7 @@ True
 from __future__ import annotations
 
 import math
+import warnings
 from dataclasses import dataclass, field
 
 import numpy as np
@@ -121,7 +122,7 @@ def points_in(data: Series, t0, window) -> Series | None:
     if mask.sum() < MIN_POINTS:
         return None
     inside = tau[mask]
-    if math.log10(inside[-1] / inside[0]) < MIN_DECADES:
+    if math.log10(inside[-1]) - math.log10(inside[0]) < MIN_DECADES:
         return None
     return data.subset(mask)
 
@@ -182,13 +183,21 @@ def sides_ok(data: Series, fit: BlendFit) -> bool:
     early, late = tau[tau < tc], tau[tau > tc]
     if len(early) < MIN_POINTS or len(late) < MIN_POINTS:
         return False
-    return math.log10(tc / early[0]) >= MIN_DECADES and math.log10(late[-1] / tc) >= MIN_DECADES
+    return (
+        math.log10(tc) - math.log10(early[0]) >= MIN_DECADES
+        and math.log10(late[-1]) - math.log10(tc) >= MIN_DECADES
+    )
 
 
 def curvature_direction(data: Series, t0) -> int:
     """-1 if ``ln r`` bends down against ``ln τ`` (a weighted quadratic polyfit), else +1."""
     x = np.log(data.time - t0)
-    c2 = np.polyfit(x - x.mean(), data.y, 2, w=1.0 / data.s)[0]
+    try:
+        with warnings.catch_warnings():
+            warnings.simplefilter("error")  # times (nearly) equal: RankWarning
+            c2 = np.polyfit(x - x.mean(), data.y, 2, w=1.0 / data.s)[0]
+    except (Warning, TypeError, ValueError, np.linalg.LinAlgError):
+        return 1  # too few distinct times to see a bend: as for c2 = 0
     return -1 if c2 < 0 else 1
 
 
