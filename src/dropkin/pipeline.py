@@ -242,10 +242,9 @@ def analyze_into(
         For any other input that cannot be read or measured.
     """
     from ._atomic import write_text_atomic
+    from .analysis import check_sample
     from .experiment import experiment_to_toml
     from .report import write_analysis_outputs
-
-    from .analysis import check_sample
 
     out = Path(out)
     exp, rec = open_source(source, experiment=experiment, overrides=overrides, origin=origin)
