@@ -19,7 +19,9 @@ Each case has a kind, which says how the test hands its input to a command:
 - ``series``: a ``radius.csv`` given to ``dropkin fit`` (an experiment file beside it);
 - ``liquids``: a liquid library, given with ``--liquids``;
 - ``options``: no file; the case's ``options`` are bad option values, given with
-  the good inputs.
+  the good inputs;
+- ``manifest``: a campaign manifest, given to ``dropkin batch``;
+- ``catalogue``: a campaign's output folder, given to ``dropkin collapse``.
 
 Fields of an index entry: ``kind``, ``input`` (path relative to ``bad/``; none
 for ``options``), ``commands``, ``words`` (each must appear in the one-line
@@ -1045,6 +1047,113 @@ def index_text() -> str:
     return "\n".join(lines)
 
 
+def _manifest(name, text, *, words, about, **extra):
+    path = f"manifests/{name}.toml"
+    case(
+        name,
+        "manifest",
+        files={path: text},
+        input=path,
+        commands=["batch"],
+        words=[f"{name}.toml", *words],
+        about=about,
+        **extra,
+    )
+
+
+def campaign_cases():
+    """Bad manifests for ``dropkin batch``; bad output folders for ``dropkin collapse``."""
+    one = '[[recordings]]\npath = "."\n'
+    _manifest(
+        "manifest_malformed",
+        "[[recordings]\n",
+        words=["not valid TOML"],
+        about="an unclosed table header",
+    )
+    _manifest(
+        "manifest_empty",
+        "",
+        words=["recordings", "lists no recordings"],
+        about="no recordings listed",
+    )
+    _manifest(
+        "manifest_unknown_key",
+        one + "speed = 3\n",
+        words=["recordings[1].speed"],
+        about="a key the format does not have",
+    )
+    _manifest(
+        "manifest_escapes",
+        '[[recordings]]\npath = "../../../elsewhere"\n',
+        words=["recordings[1].path", "leads out"],
+        about="a recording outside the manifest's folder",
+    )
+    _manifest(
+        "manifest_absolute",
+        '[[recordings]]\npath = "/tmp/rec"\n',
+        words=["recordings[1].path", "absolute"],
+        about="an absolute path",
+    )
+    _manifest(
+        "manifest_glob_escapes",
+        '[[recordings]]\nglob = "../*"\n',
+        words=["recordings[1].glob", "leads out"],
+        about="a glob out of the folder",
+    )
+    _manifest(
+        "manifest_missing",
+        '[[recordings]]\npath = "no-such-recording"\n',
+        words=["recordings[1].path", "does not exist"],
+        about="a recording not there",
+    )
+    _manifest(
+        "manifest_bare_number",
+        one + "recording = { frame_rate = 20000 }\n",
+        words=["recordings[1].recording.frame_rate", "Hz"],
+        about="a frame rate without a unit",
+    )
+    _manifest(
+        "manifest_bad_threshold",
+        "[shared]\nanalysis = { threshold = 7 }\n" + one,
+        words=["shared.analysis.threshold"],
+        about="an edge level outside 0.05-0.95",
+    )
+    _manifest(
+        "manifest_same_label",
+        one + one,
+        words=["recordings[2].label"],
+        about="two recordings with one label",
+    )
+    _manifest(
+        "manifest_path_and_glob",
+        one + 'glob = "*"\n',
+        words=["recordings[1]", "either path or glob"],
+        about="both path and glob",
+    )
+    for name, blob, about in (
+        ("catalogue_garbage", b"not a database, just text\n" * 40, "text named catalogue.sqlite"),
+        ("catalogue_empty", b"", "an empty catalogue.sqlite"),
+    ):
+        case(
+            name,
+            "catalogue",
+            files={f"catalogues/{name}/catalogue.sqlite": blob},
+            input=f"catalogues/{name}",
+            commands=["collapse"],
+            words=[f"{name}/catalogue.sqlite", "results catalogue"],
+            about=about,
+        )
+    case(
+        "catalogue_missing",
+        "catalogue",
+        files={"catalogues/catalogue_missing/README.txt": "A folder with no catalogue.\n"},
+        input="catalogues/catalogue_missing",
+        commands=["collapse"],
+        words=["catalogue_missing", "no results catalogue"],
+        about="a folder that dropkin batch did not write",
+    )
+
+
 def build() -> dict[str, bytes]:
     """Every file of the corpus, by path relative to ``bad/``."""
     CASES.clear()
@@ -1053,6 +1162,7 @@ def build() -> dict[str, bytes]:
     series_cases()
     liquids_cases()
     option_cases()
+    campaign_cases()
     names = [c["name"] for c in CASES]
     duplicates = {n for n in names if names.count(n) > 1}
     assert not duplicates, duplicates

@@ -48,7 +48,7 @@ from dropkin.cli import main
 ROOT = Path(__file__).resolve().parents[2]
 BAD = ROOT / "tests" / "data" / "bad"
 GOOD_RECORDING = ROOT / "sample_frames" / "viscous_pair"  # shipped, measurable
-KINDS = ("experiment", "recording", "series", "liquids", "options")
+KINDS = ("experiment", "recording", "series", "liquids", "options", "manifest", "catalogue")
 
 
 def _make_bad():
@@ -178,6 +178,14 @@ COMMANDS: dict[str, Command] = {
     "predict": Command(_predict, kinds=("experiment", "liquids", "options")),
     "liquids": Command(_liquids, kinds=("liquids", "options")),
     "synth": Command(lambda case, out, goods: ["synth", out, *case.args], kinds=("options",)),
+    "batch": Command(
+        lambda case, out, goods: ["batch", case.source, "-o", out, *case.args],
+        kinds=("manifest",),
+    ),
+    "collapse": Command(
+        lambda case, out, goods: ["collapse", case.source, "-o", out, *case.args],
+        kinds=("catalogue",),
+    ),
 }
 
 CASES = load_cases()
