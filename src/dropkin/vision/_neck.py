@@ -180,14 +180,18 @@ def sample_band(frames, band: Band):
     samples : (K, U, S) ndarray of float32
     """
     frames = np.asarray(frames)
+    k = frames.shape[0]
     r0, r1, c0, c1 = band.box
     # Copy the band's bounding box (on a memory map, only the pages holding
     # it are read), pick each pixel the band needs once, then apply the
-    # bilinear weights to those few values.
-    box = np.ascontiguousarray(frames[:, r0:r1, c0:c1]).reshape(frames.shape[0], -1)
-    values = np.take(box, band.pixels, axis=1).astype(np.float32)
-    out = np.asarray(values @ band.matrix.T, dtype=np.float32)
-    return out.reshape(frames.shape[0], len(band.u), len(band.s))
+    # bilinear weights to those few values, all frames at once: the pixels
+    # as rows of a (P, K) array, so that the sparse product runs over
+    # contiguous rows of K values.
+    box = np.ascontiguousarray(frames[:, r0:r1, c0:c1]).reshape(k, -1)
+    values = np.ascontiguousarray(np.take(box, band.pixels, axis=1).T, dtype=np.float32)
+    out = band.matrix @ values
+    # (U * S, K) -> (K, U, S): a view, frames innermost in memory.
+    return out.T.reshape(k, len(band.u), len(band.s))
 
 
 @dataclass(frozen=True)
@@ -487,12 +491,13 @@ def measure_necks(
 
     def band_for(s_centre, s_half, u_lo, u_hi, step, sparse=None):
         """A band (cached): the axis, and rows from u_lo to u_hi every pixel
-        (and every `sparse` px below u_lo, if given)."""
+        (and every `sparse` px below u_lo, if given); the axis alone if
+        `u_hi` is 0."""
         lo, hi = 4 * int(max(u_lo, 0.0) // 4), 4 * math.ceil(u_hi / 4.0)
         key = (shape, round(s_centre / 2.0), math.ceil(s_half / 4.0), lo, hi, step, sparse)
         if key not in cache:
             inner = np.arange(0.0, lo, sparse) if sparse else np.zeros(1)
-            u_values = np.concatenate([inner, np.arange(lo, hi + 1.0)])
+            u_values = np.concatenate([inner, np.arange(lo, hi + 1.0)]) if hi > 0 else inner
             band = make_band(
                 shape,
                 pair.contact_point,
@@ -547,12 +552,9 @@ def measure_necks(
         for name in ("radius", "radius_err", "s_neck", "edges", "status", "gap"):
             getattr(result, name)[redo] = getattr(again, name)
     # The gap on a fixed stretch of the axis, the same for every chunk.
-    axis_band, inv_span = band_for(0.0, full_s, 0.0, 1.0, step)
-    centre_row = len(axis_band.u) // 2
-    on_axis = (sample_band(frames, axis_band)[:, centre_row] - np.float32(dark)) * inv_span[
-        :, centre_row
-    ]
-    result.gap[:] = gap_on_axis(on_axis, axis_band.valid[centre_row], step)
+    axis_band, inv_span = band_for(0.0, full_s, 0.0, 0.0, step)
+    on_axis = (sample_band(frames, axis_band)[:, 0] - np.float32(dark)) * inv_span[:, 0]
+    result.gap[:] = gap_on_axis(on_axis, axis_band.valid[0], step)
     status = result.status
     status[status == BAND_LIMIT] = NOT_FOUND
     return result
