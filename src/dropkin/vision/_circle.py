@@ -87,8 +87,16 @@ def _consensus(points, tolerance: float, trials: int):
     rows = (s1 * (d - f) + s2 * (f - b) + s3 * (b - d)) / det
     cols = (s1 * (e - c) + s2 * (a - e) + s3 * (c - a)) / det
     radius = np.hypot(a - rows, b - cols)
-    dist = np.hypot(sample[None, :, 0] - rows[:, None], sample[None, :, 1] - cols[:, None])
-    counts = np.where(good, (np.abs(dist - radius[:, None]) <= tolerance).sum(axis=1), -1)
+    # |d - radius| <= tolerance as a band of squared distances, with
+    # d^2 - |c|^2 = |p|^2 - 2 p.c: no square root per point and candidate.
+    centre_sq = rows**2 + cols**2
+    lower = np.where(radius > tolerance, (radius - tolerance) ** 2, -np.inf) - centre_sq
+    upper = (radius + tolerance) ** 2 - centre_sq
+    partial = np.multiply.outer(-2.0 * rows, sample[:, 0])
+    partial -= np.multiply.outer(2.0 * cols, sample[:, 1])
+    partial += (sample**2).sum(axis=1)
+    inside = (partial >= lower[:, None]) & (partial <= upper[:, None])
+    counts = np.where(good, inside.sum(axis=1), -1)
     if not counts.size:
         return None
     best = int(np.argmax(counts))

@@ -110,11 +110,19 @@ def threshold_midpoint(frame, *, nbins: int = 256) -> float:
         IEEE Trans. Syst. Man Cybern. 9, 62).
     """
     frame = _check_frame(frame)
-    values = frame.astype(np.float64, copy=False).ravel()
-    low, high = float(values.min()), float(values.max())
+    low, high = float(frame.min()), float(frame.max())
     if high <= low:
         return low
-    hist, edges = np.histogram(values, bins=nbins, range=(low, high))
+    if frame.dtype.kind == "u" and frame.dtype.itemsize <= 2:
+        # Integer grey levels: count each level once, then bin the levels
+        # with those counts as weights (the same bins as binning every pixel).
+        counts = np.bincount(frame.ravel(), minlength=int(high) + 1)[int(low) :]
+        levels = np.arange(int(low), int(high) + 1, dtype=np.float64)
+        weighted, edges = np.histogram(levels, bins=nbins, range=(low, high), weights=counts)
+        hist = weighted.astype(np.int64)
+    else:
+        values = frame.astype(np.float64, copy=False).ravel()
+        hist, edges = np.histogram(values, bins=nbins, range=(low, high))
     centres = 0.5 * (edges[:-1] + edges[1:])
     weight1 = np.cumsum(hist)
     weight2 = weight1[-1] - weight1
@@ -157,11 +165,12 @@ def fit_illumination(frame, *, background=None, degree: int = 2, step: int = 4):
     >>> bool(np.allclose(model, light))
     True
     """
-    frame = _check_frame(frame).astype(np.float64, copy=False)
+    given = _check_frame(frame)
+    frame = given.astype(np.float64, copy=False)
     if degree < 0:
         raise ValueError(f"degree must be >= 0, got {degree}")
     if background is None:
-        bright = frame > threshold_midpoint(frame)
+        bright = frame > threshold_midpoint(given)
         dark = holes_filled(~bright)
         background = ~dilate(dark, 3)
         if background.sum() < (degree + 1) * (degree + 2):
@@ -181,15 +190,27 @@ def fit_illumination(frame, *, background=None, degree: int = 2, step: int = 4):
         r, c = r / scale_r, c / scale_c
         return np.stack([r**i * c**j for i, j in powers], axis=-1)
 
+    # Least squares through the normal equations: the few terms' products
+    # summed without BLAS (whose threads only wait on one another on a busy
+    # machine), then a small solve; the columns, scaled to 0..1, are well
+    # conditioned.
+    a = design(rows[use], cols[use])
+    y = frame[::step, ::step][use]
     coeffs, *_ = np.linalg.lstsq(
-        design(rows[use], cols[use]), frame[::step, ::step][use], rcond=None
+        np.einsum("ki,kj->ij", a, a), np.einsum("ki,k->i", a, y), rcond=None
     )
-    # Evaluate on the full grid term by term: r^i c^j is an outer product.
+    # Evaluate on the full grid by Horner's rule in the row, each power of
+    # the row weighting a polynomial in the column: sum_i r^i (sum_j a_ij c^j).
     r_axis = np.arange(frame.shape[0]) / scale_r
     c_axis = np.arange(frame.shape[1]) / scale_c
-    out = np.zeros(frame.shape)
+    in_col = np.zeros((degree + 1, frame.shape[1]))
     for (i, j), coeff in zip(powers, coeffs, strict=True):
-        out += coeff * np.outer(r_axis**i, c_axis**j)
+        in_col[i] += coeff * c_axis**j
+    out = np.empty(frame.shape)
+    out[...] = in_col[degree]
+    for i in range(degree - 1, -1, -1):
+        out *= r_axis[:, None]
+        out += in_col[i]
     return out
 
 
