@@ -36,3 +36,33 @@ def test_band_near_the_border_marks_samples_outside():
     # Rows above the frame (row < 0) are invalid; all others are inside.
     rows = band.points[0]
     assert np.array_equal(band.valid, (rows >= 0) & (rows <= 28))
+
+
+def test_distinct_pixels_equal_numpy_unique():
+    # Reference: numpy.unique(return_inverse=True).
+    from dropkin.vision._neck import _distinct
+
+    rng = np.random.default_rng(9)
+    index = rng.integers(1000, 5000, size=(4, 7, 11))
+    values, where = _distinct(index)
+    ref_values, ref_where = np.unique(index, return_inverse=True)
+    assert np.array_equal(values, ref_values)
+    assert np.array_equal(where, ref_where.reshape(index.shape))
+
+
+def test_a_band_with_a_gap_reads_one_box_per_stretch():
+    # Axis row plus rows 6..12 on each side: three boxes, none holding the
+    # pixels between the axis and the dense rows (rows 2 to 4 away from it).
+    band = make_band(
+        (70, 90),
+        (35.0, 45.0),
+        (0.0, 1.0),
+        s_centre=0.0,
+        s_half=5.0,
+        u_half=0.0,
+        s_step=1.0,
+        u_values=[0.0, 6.0, 7.0, 8.0, 9.0, 10.0, 11.0, 12.0],
+    )
+    assert len(band.boxes) == 3
+    for r0, r1, _, _ in band.boxes:
+        assert not any(r0 <= row < r1 for row in (31, 32, 33, 37, 38, 39))

@@ -38,6 +38,9 @@ STATUS_NAMES = ("ok", "before-contact", "unresolved", "not-found", "at-edge")
 OK, BEFORE_CONTACT, UNRESOLVED, NOT_FOUND, AT_EDGE = range(5)
 #: Internal: the bridge is wider than the band (the caller widens the band).
 BAND_LIMIT = 5
+#: Frames sampled together: few enough that a block's copies stay in the
+#: processor's cache, enough that numpy's per-call cost is shared.
+_BLOCK = 64
 
 
 @dataclass(frozen=True)
@@ -54,15 +57,18 @@ class Band:
         Positions along the axis (px).
     u : (U,) ndarray
         Positions across, symmetric, ``u[U // 2] == 0`` (px).
-    pixels : (P,) ndarray of intp
-        The distinct pixels whose values the samples interpolate (the four
-        neighbours of each sample point), as flat indices into the bounding
-        box `box` (each pixel is read once).
-    box : tuple of int
+    boxes : tuple of tuple of int
         (row_start, row_stop, col_start, col_stop) of the pixels the band
-        reads.
+        reads, one box per stretch of rows ``u`` (a band that skips the rows
+        between the axis and the expected edges reads the axis and each side
+        in a box of its own, not the whole bounding box).
+    pixels : tuple of (P_i,) ndarray of intp
+        For each box, the distinct pixels whose values its samples
+        interpolate (the four neighbours of each sample point), as flat
+        indices into the box; each pixel is read once per box.
     matrix : scipy.sparse.csr_matrix
-        (U * S, P) bilinear weights: samples = matrix @ pixel values.
+        (U * S, P) bilinear weights, P the pixels of all boxes in order:
+        samples = matrix @ pixel values.
     valid : (U, S) ndarray of bool
         Sample points whose four neighbours lie inside the frame.
     """
@@ -73,8 +79,8 @@ class Band:
     s: np.ndarray
     u: np.ndarray
     valid: np.ndarray
-    pixels: np.ndarray
-    box: tuple
+    pixels: tuple
+    boxes: tuple
     matrix: object
 
     @property
@@ -149,11 +155,24 @@ def make_band(
     base = r0 * n + c0
     index = np.stack([base, base + 1, base + n, base + n + 1])
     weight = np.stack([(1 - fr) * (1 - fc), (1 - fr) * fc, fr * (1 - fc), fr * fc])
-    pixels, inverse = np.unique(index, return_inverse=True)
-    rows_px, cols_px = np.divmod(pixels, n)
-    box = (int(rows_px.min()), int(rows_px.max()) + 1, int(cols_px.min()), int(cols_px.max()) + 1)
-    local = (rows_px - box[0]) * (box[3] - box[2]) + (cols_px - box[2])
-    inverse = inverse.reshape(index.shape)
+    # Rows u more than 2 px apart start a new box: the pixels between them
+    # are not read.
+    stretches = np.split(np.arange(len(u)), np.flatnonzero(np.diff(u) > 2.0) + 1)
+    inverse = np.empty(index.shape, dtype=np.intp)
+    boxes, pixels, offset = [], [], 0
+    for rows_u in stretches:
+        used, where = _distinct(index[:, rows_u, :])
+        rows_px, cols_px = np.divmod(used, n)
+        box = (
+            int(rows_px.min()),
+            int(rows_px.max()) + 1,
+            int(cols_px.min()),
+            int(cols_px.max()) + 1,
+        )
+        boxes.append(box)
+        pixels.append((rows_px - box[0]) * (box[3] - box[2]) + (cols_px - box[2]))
+        inverse[:, rows_u, :] = where + offset
+        offset += len(used)
     weight = weight.astype(np.float32)
     count = inverse[0].size
     matrix = sparse.csr_matrix(
@@ -162,9 +181,53 @@ def make_band(
             inverse.reshape(4, -1).T.ravel(),
             np.arange(0, 4 * count + 1, 4),
         ),
-        shape=(count, len(pixels)),
+        shape=(count, offset),
     )
-    return Band(origin, axis, normal, s, u, valid, local, box, matrix)
+    return Band(origin, axis, normal, s, u, valid, tuple(pixels), tuple(boxes), matrix)
+
+
+def _distinct(index):
+    """Sorted distinct values of an integer array and where each element is
+    among them (``np.unique(index, return_inverse=True)``, by marking the
+    values' range instead of sorting)."""
+    low = int(index.min())
+    mark = np.zeros(int(index.max()) - low + 1, dtype=bool)
+    mark[index - low] = True
+    rank = np.cumsum(mark) - 1
+    return np.flatnonzero(mark) + low, rank[index - low]
+
+
+def _sample_block(frames, band: Band):
+    """(U * S, K) float32 bilinear samples of a few frames: a row per point."""
+    k = frames.shape[0]
+    # Copy each of the band's boxes (on a memory map, only the pages holding
+    # them are read), pick each pixel the band needs once, then apply the
+    # bilinear weights to those few values, all frames at once: the pixels
+    # as rows of a (P, K) array, so that the sparse product runs over
+    # contiguous rows of K values.
+    values = np.empty((band.matrix.shape[1], k), dtype=np.float32)
+    first = 0
+    for (r0, r1, c0, c1), pixels in zip(band.boxes, band.pixels, strict=True):
+        box = np.ascontiguousarray(frames[:, r0:r1, c0:c1]).reshape(k, -1)
+        values[first : first + len(pixels)] = np.take(box, pixels, axis=1).T
+        first += len(pixels)
+    return band.matrix @ values
+
+
+def _band_transmission(frames, band: Band, dark: float, inv_span):
+    """Transmission ``(samples - dark) * inv_span`` on the band, (K, U, S).
+
+    `inv_span` is (U * S, 1). Frames go through in blocks, so that each
+    block's copies stay in the processor's cache; the result is a view with
+    the frames innermost in memory.
+    """
+    k = frames.shape[0]
+    out = np.empty((band.matrix.shape[0], k), dtype=np.float32)
+    for first in range(0, k, _BLOCK):
+        samples = _sample_block(frames[first : first + _BLOCK], band)
+        samples -= np.float32(dark)
+        np.multiply(samples, inv_span, out=out[:, first : first + _BLOCK])
+    return out.T.reshape(k, len(band.u), len(band.s))
 
 
 def sample_band(frames, band: Band):
@@ -178,19 +241,13 @@ def sample_band(frames, band: Band):
     Returns
     -------
     samples : (K, U, S) ndarray of float32
+        A view with the frames innermost in memory.
     """
     frames = np.asarray(frames)
     k = frames.shape[0]
-    r0, r1, c0, c1 = band.box
-    # Copy the band's bounding box (on a memory map, only the pages holding
-    # it are read), pick each pixel the band needs once, then apply the
-    # bilinear weights to those few values, all frames at once: the pixels
-    # as rows of a (P, K) array, so that the sparse product runs over
-    # contiguous rows of K values.
-    box = np.ascontiguousarray(frames[:, r0:r1, c0:c1]).reshape(k, -1)
-    values = np.ascontiguousarray(np.take(box, band.pixels, axis=1).T, dtype=np.float32)
-    out = band.matrix @ values
-    # (U * S, K) -> (K, U, S): a view, frames innermost in memory.
+    out = np.empty((band.matrix.shape[0], k), dtype=np.float32)
+    for first in range(0, k, _BLOCK):
+        out[:, first : first + _BLOCK] = _sample_block(frames[first : first + _BLOCK], band)
     return out.T.reshape(k, len(band.u), len(band.s))
 
 
@@ -508,15 +565,14 @@ def measure_necks(
                 s_step=step,
                 u_values=np.unique(u_values),
             )
-            span = np.maximum(sample_band(illum, band) - np.float32(dark), 1e-6)
+            span = np.maximum(_sample_block(illum, band) - np.float32(dark), 1e-6)
             cache[key] = (band, 1.0 / span)
         return cache[key]
 
     def run(sub, s_centre, s_half, u_lo, u_hi, step, *, sparse=None, rough=False):
         band, inv_span = band_for(s_centre, s_half, u_lo, u_hi, step, sparse)
-        trans = (sample_band(sub, band) - np.float32(dark)) * inv_span
         result = neck_from_band(
-            trans,
+            _band_transmission(sub, band, dark, inv_span),
             band,
             noise=noise,
             radii=pair.radii,
@@ -553,7 +609,7 @@ def measure_necks(
             getattr(result, name)[redo] = getattr(again, name)
     # The gap on a fixed stretch of the axis, the same for every chunk.
     axis_band, inv_span = band_for(0.0, full_s, 0.0, 0.0, step)
-    on_axis = (sample_band(frames, axis_band)[:, 0] - np.float32(dark)) * inv_span[:, 0]
+    on_axis = _band_transmission(frames, axis_band, dark, inv_span)[:, 0]
     result.gap[:] = gap_on_axis(on_axis, axis_band.valid[0], step)
     status = result.status
     status[status == BAND_LIMIT] = NOT_FOUND
