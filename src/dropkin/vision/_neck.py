@@ -286,25 +286,27 @@ class NeckResult:
 def _edge_outward(side, valid_side, level, pos):
     """First crossing of `level` going outward in each column.
 
-    `side` is (K, H, S) with row 0 on the axis, `valid_side` (H, S) marks
-    samples inside the frame and `pos` (H,) holds the rows' distances from
-    the axis. Returns the distance of the crossing (K, S), the local slope
-    |dT/du| there, masks "no crossing inside the band", "the search left the
-    frame before a crossing" and "the crossing lies between samples more
-    than a pixel apart", and the distance to the frame border along the
-    search (S,) (a lower bound of the edge's distance where the search left
-    the frame).
+    `side` is (H, S, K) with row 0 on the axis (K frames innermost),
+    `valid_side` (H, S) marks samples inside the frame and `pos` (H,) holds
+    the rows' distances from the axis. Returns the distance of the crossing
+    (S, K), the local slope |dT/du| there, masks "no crossing inside the
+    band", "the search left the frame before a crossing" and "the crossing
+    lies between samples more than a pixel apart", and the distance to the
+    frame border along the search (S,) (a lower bound of the edge's distance
+    where the search left the frame).
     """
-    bright = (side >= level) & valid_side[None]
-    bright[:, 0, :] = False
-    j = np.argmax(bright, axis=1)  # (K, S): first bright sample, 0 if none
+    bright = side >= level
+    if not valid_side.all():
+        bright &= valid_side[:, :, None]
+    bright[0] = False
+    j = np.argmax(bright, axis=0)  # (S, K): first bright sample, 0 if none
     none = j == 0
     outside = ~valid_side
-    first_out = np.where(outside.any(axis=0), np.argmax(outside, axis=0), side.shape[1])
-    left_frame = np.where(none, first_out[None, :] < side.shape[1], first_out[None, :] < j)
+    first_out = np.where(outside.any(axis=0), np.argmax(outside, axis=0), side.shape[0])
+    left_frame = np.where(none, first_out[:, None] < side.shape[0], first_out[:, None] < j)
     j = np.maximum(j, 1)
-    t_in = np.take_along_axis(side, (j - 1)[:, None, :], axis=1)[:, 0, :]
-    t_out = np.take_along_axis(side, j[:, None, :], axis=1)[:, 0, :]
+    t_in = np.take_along_axis(side, (j - 1)[None], axis=0)[0]
+    t_out = np.take_along_axis(side, j[None], axis=0)[0]
     rise = np.maximum(t_out - t_in, 1e-6)
     spacing = pos[j] - pos[j - 1]
     dist = pos[j - 1] + np.clip((level - t_in) / rise, 0.0, 1.0) * spacing
@@ -400,6 +402,9 @@ def neck_from_band(
     """
     trans = np.asarray(trans, dtype=np.float32)
     k, n_u, n_s = trans.shape
+    # Work on (U, S, K), frames innermost: how sample_band delivers them (a
+    # view then), and what makes the per-frame steps below contiguous.
+    t = np.ascontiguousarray(trans.transpose(1, 2, 0))
     c = n_u // 2
     pos = band.u[c:]
     status = np.full(k, OK, dtype=np.int8)
@@ -410,38 +415,38 @@ def neck_from_band(
 
     s_step = float(band.s[1] - band.s[0]) if n_s > 1 else 1.0
     if with_gap:
-        gap_width = gap_on_axis(trans[:, c, :], band.valid[c], s_step)
+        gap_width = gap_on_axis(t[c].T, band.valid[c], s_step)
     else:
         gap_width = np.full(k, np.nan)
-    on_axis_dark = trans[:, c, :] < level
-    gap_seen = ~on_axis_dark & band.valid[c][None, :]
-    before = gap_seen.any(axis=1)
+    on_axis_dark = t[c] < level
+    gap_seen = ~on_axis_dark & band.valid[c][:, None]
+    before = gap_seen.any(axis=0)
     # No drop in the band at all (every other sample is enough to tell).
-    nothing = ~((trans[:, ::2, ::2] < level) & band.valid[None, ::2, ::2]).any(axis=(1, 2))
+    nothing = ~((t[::2, ::2] < level) & band.valid[::2, ::2, None]).any(axis=(0, 1))
 
     up, slope_up, none_up, out_up, coarse_up, border_up = _edge_outward(
-        trans[:, c:, :], band.valid[c:], level, pos
+        t[c:], band.valid[c:], level, pos
     )
     down, slope_dn, none_dn, out_dn, coarse_dn, border_dn = _edge_outward(
-        trans[:, c::-1, :], band.valid[c::-1], level, pos
+        t[c::-1], band.valid[c::-1], level, pos
     )
     # Columns whose bridge reaches past the frame border: their width is
     # only known to exceed the distance to the border.
     left = (out_up | out_dn) & on_axis_dark
     reach = float(band.u[-1])  # a side without a crossing reaches at least this far
-    bound = np.where(out_up, border_up[None, :], np.where(none_up, reach, up)) + np.where(
-        out_dn, border_dn[None, :], np.where(none_dn, reach, down)
+    bound = np.where(out_up, border_up[:, None], np.where(none_up, reach, up)) + np.where(
+        out_dn, border_dn[:, None], np.where(none_dn, reach, down)
     )
-    bound = np.where(left, bound, np.inf).min(axis=1)
+    bound = np.where(left, bound, np.inf).min(axis=0)
     width = up + down
     bad_col = none_up | none_dn | ~on_axis_dark | left
     width = np.where(bad_col, np.inf, width)
-    m = np.argmin(width, axis=1)
+    m = np.argmin(width, axis=0)
     rows = np.arange(k)
-    w_min = width[rows, m]
+    w_min = width[m, rows]
     # Parabola through the narrowest column and its neighbours (sub-sample in s).
     ml, mr = np.clip(m - 1, 0, n_s - 1), np.clip(m + 1, 0, n_s - 1)
-    wl, wr = width[rows, ml], width[rows, mr]
+    wl, wr = width[ml, rows], width[mr, rows]
     interior = (m > 0) & (m < n_s - 1) & np.isfinite(wl) & np.isfinite(wr) & np.isfinite(w_min)
     wl, wr = np.where(interior, wl, 0.0), np.where(interior, wr, 0.0)
     w_fin = np.where(interior, w_min, 0.0)
@@ -450,16 +455,16 @@ def neck_from_band(
     offset = np.clip(offset, -0.5, 0.5)
     w_ref = w_min - 0.25 * curv * offset**2
     radius_all = 0.5 * w_ref
-    su = slope_up[rows, m]
-    sd = slope_dn[rows, m]
+    su = slope_up[m, rows]
+    sd = slope_dn[m, rows]
     err = 0.5 * np.hypot(noise / su, noise / sd)
     err_all = np.hypot(err, err_floor)
 
     r_px = np.asarray(radii, dtype=np.float64)
     gap = radius_all**2 * 0.5 * (1.0 / r_px[0] + 1.0 / r_px[1])
-    limit = (none_up | none_dn)[rows, m]
+    limit = none_up[m, rows] | none_dn[m, rows]
     if not allow_coarse:
-        limit |= (coarse_up | coarse_dn)[rows, m]
+        limit |= coarse_up[m, rows] | coarse_dn[m, rows]
     # At the edge: a column that leaves the frame might be narrower than
     # the narrowest column measured in full.
     at_edge = bound <= w_min
@@ -474,7 +479,7 @@ def neck_from_band(
     radius_err[measured] = err_all[measured]
     s_neck[measured] = band.s[m[measured]] + offset[measured] * s_step
     base = band.origin[None, :] + band.axis[None, :] * s_neck[:, None]
-    up_m, down_m = up[rows, m], down[rows, m]
+    up_m, down_m = up[m, rows], down[m, rows]
     edges[:, 0] = np.where(measured[:, None], base + band.normal * up_m[:, None], np.nan)
     edges[:, 1] = np.where(measured[:, None], base - band.normal * down_m[:, None], np.nan)
     return NeckResult(radius, radius_err, s_neck, edges, status, gap_width)
