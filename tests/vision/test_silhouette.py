@@ -4,7 +4,7 @@ import numpy as np
 from scipy import ndimage
 
 from dropkin.vision import fit_illumination, silhouette_mask, transmission
-from dropkin.vision._silhouette import dilate, holes_filled
+from dropkin.vision._silhouette import dilate, holes_filled, label_regions
 
 
 def test_hole_filling_and_dilation_equal_scipy_ndimage():
@@ -14,6 +14,18 @@ def test_hole_filling_and_dilation_equal_scipy_ndimage():
         assert np.array_equal(holes_filled(mask), ndimage.binary_fill_holes(mask))
         for n in (1, 3):
             assert np.array_equal(dilate(mask, n), ndimage.binary_dilation(mask, iterations=n))
+
+
+def test_region_labels_equal_scipy_ndimage():
+    # Same labels in the same order (find_drop_pair ranks regions by size,
+    # ties by label), for sparse to dense masks.
+    rng = np.random.default_rng(7)
+    for density in (0.2, 0.45, 0.6):
+        mask = rng.random((97, 83)) < density
+        labels, count = label_regions(mask)
+        ref, ref_count = ndimage.label(mask)
+        assert count == ref_count and count > 10
+        assert np.array_equal(labels, ref)
 
 
 def test_uneven_light_is_divided_out():

@@ -10,7 +10,7 @@ from skimage import measure as skmeasure
 
 from ..errors import MeasurementError
 from ._circle import CircleFit, fit_circle
-from ._silhouette import dilate, silhouette_mask
+from ._silhouette import dilate, label_regions, silhouette_mask
 
 __all__ = ["DropPair", "find_drop_pair", "substrate_rows"]
 
@@ -176,7 +176,7 @@ def find_drop_pair(trans, *, level: float = 0.5, min_area: int = 20) -> DropPair
     top, bottom = substrate_rows(mask)
     mask[:top] = False
     mask[bottom:] = False
-    labels, count = ndimage.label(mask)
+    labels, count = label_regions(mask)
     if count == 0:
         raise MeasurementError("no drops found (no dark region in the frame)")
     sizes = np.bincount(labels.ravel())[1:]
