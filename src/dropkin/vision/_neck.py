@@ -600,9 +600,12 @@ def measure_necks(
         else:
             r_first = probe.radius[0] if np.isfinite(probe.radius[0]) else 0.0
         r_last, s_last = float(probe.radius[-1]), float(probe.s_neck[-1])
-        s_half = min(0.15 * r_last + 6.0, full_s)
-        u_lo = min(r_first, r_last) - 6.0
-        u_hi = min(1.05 * max(r_first, r_last) + 6.0, full_u)
+        # Margins: the neck moves along the axis by a few px per chunk at most
+        # (unequal drops), and the rough look is within a px of the radius;
+        # a frame whose neck falls outside is measured again on the full band.
+        s_half = min(0.05 * r_last + 4.0, full_s)
+        u_lo = min(r_first, r_last) - 4.0
+        u_hi = min(1.03 * max(r_first, r_last) + 4.0, full_u)
         result, ends = run(frames, s_last, s_half, u_lo, u_hi, step)
     else:
         result, ends = run(frames, 0.0, full_s, 0.0, full_u, step)
