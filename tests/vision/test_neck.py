@@ -117,3 +117,16 @@ def test_necks_do_not_depend_on_the_hint_or_the_chunks(unequal_pair):
         assert np.array_equal(again.status, whole.status[10:])
     parts = [measure_necks(frames[a : a + 5], pair, **setup) for a in range(0, 48, 5)]
     assert np.array_equal(np.concatenate([p.radius for p in parts]), whole.radius, equal_nan=True)
+
+
+@pytest.mark.parametrize(
+    "dtype", [np.uint8, np.uint16, np.int16, np.int32, np.int64, np.float32, np.float64]
+)
+def test_transposed_copies_equal_numpy_transpose(dtype):
+    # Reference: numpy's .T (OpenCV's transpose is used for the types it takes).
+    from dropkin.vision._neck import _transposed
+
+    a = (np.arange(7 * 300) % 251).astype(dtype).reshape(7, 300)
+    for block in (a, a[:1]):
+        got = _transposed(block)
+        assert got.dtype == block.dtype and np.array_equal(got, block.T)

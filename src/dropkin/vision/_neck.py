@@ -197,6 +197,16 @@ def _distinct(index):
     return np.flatnonzero(mark) + low, rank[index - low]
 
 
+def _transposed(box):
+    """(B, K) copy of a (K, B) array: OpenCV's transpose for the types it
+    takes (several times numpy's on 8-bit images), numpy's otherwise."""
+    if box.dtype in (np.uint8, np.uint16, np.int16, np.int32, np.float32, np.float64):
+        import cv2
+
+        return cv2.transpose(box)
+    return np.ascontiguousarray(box.T)
+
+
 def _sample_block(frames, band: Band):
     """(U * S, K) float32 bilinear samples of a few frames: a row per point."""
     k = frames.shape[0]
@@ -209,7 +219,7 @@ def _sample_block(frames, band: Band):
     first = 0
     for (r0, r1, c0, c1), pixels in zip(band.boxes, band.pixels, strict=True):
         box = np.ascontiguousarray(frames[:, r0:r1, c0:c1]).reshape(k, -1)
-        values[first : first + len(pixels)] = np.take(box, pixels, axis=1).T
+        values[first : first + len(pixels)] = _transposed(box)[pixels]
         first += len(pixels)
     return band.matrix @ values
 
