@@ -602,7 +602,7 @@ def measure_necks(
     step = 0.5 if r_small < 80 else 1.0
     # A rough look (every 2 px) at the chunk's last frame, and at its first
     # unless the caller knows the neck there, bounds the neck in the chunk.
-    probe_frames = frames[[-1]] if hint is not None else frames[[0, -1]]
+    probe_frames = frames[-1:] if hint is not None else frames[[0, -1]]
     probe, _ = run(probe_frames, 0.0, full_s, full_u, full_u, 2.0, sparse=2.0, rough=True)
     if np.isfinite(probe.radius[-1]):
         if hint is not None:

@@ -220,19 +220,14 @@ def fit_illumination(frame, *, background=None, degree: int = 2, step: int = 4):
     coeffs, *_ = np.linalg.lstsq(
         np.einsum("ki,kj->ij", a, a), np.einsum("ki,k->i", a, y), rcond=None
     )
-    # Evaluate on the full grid by Horner's rule in the row, each power of
-    # the row weighting a polynomial in the column: sum_i r^i (sum_j a_ij c^j).
+    # Evaluate on the full grid in one pass, each power of the row weighting
+    # a polynomial in the column: sum_i r^i (sum_j a_ij c^j).
     r_axis = np.arange(frame.shape[0]) / scale_r
     c_axis = np.arange(frame.shape[1]) / scale_c
     in_col = np.zeros((degree + 1, frame.shape[1]))
     for (i, j), coeff in zip(powers, coeffs, strict=True):
         in_col[i] += coeff * c_axis**j
-    out = np.empty(frame.shape)
-    out[...] = in_col[degree]
-    for i in range(degree - 1, -1, -1):
-        out *= r_axis[:, None]
-        out += in_col[i]
-    return out
+    return np.einsum("ri,ic->rc", np.power.outer(r_axis, np.arange(degree + 1)), in_col)
 
 
 def dark_level(frame, *, percentile: float = 0.5) -> float:
