@@ -39,8 +39,10 @@ def holes_filled(mask):
     """Fill the holes of a binary mask (regions not connected to the border).
 
     The same result as :func:`scipy.ndimage.binary_fill_holes` (4-connected
-    background), computed with OpenCV's connected components, which is
-    several times faster on whole frames.
+    background): the background is flood-filled from a 1-px border around
+    the mask with OpenCV (one sequential pass, several times faster than
+    either library's labelling on whole frames); what it does not reach is
+    the mask and its holes.
 
     Examples
     --------
@@ -51,10 +53,10 @@ def holes_filled(mask):
     import cv2
 
     mask = np.asarray(mask, dtype=bool)
-    padded = np.pad(~mask, 1, constant_values=True).astype(np.uint8)
-    count, labels = cv2.connectedComponents(padded, connectivity=4)
-    outside = labels[0, 0]
-    return (labels[1:-1, 1:-1] != outside) | mask
+    image = np.zeros((mask.shape[0] + 2, mask.shape[1] + 2), dtype=np.uint8)
+    image[1:-1, 1:-1] = mask
+    cv2.floodFill(image, None, (0, 0), 2, flags=4)
+    return image[1:-1, 1:-1] != 2
 
 
 def label_regions(mask):
