@@ -188,12 +188,11 @@ def fit_illumination(frame, *, background=None, degree: int = 2, step: int = 4):
     >>> bool(np.allclose(model, light))
     True
     """
-    given = _check_frame(frame)
-    frame = given.astype(np.float64, copy=False)
+    frame = _check_frame(frame)  # any dtype: only the pixels fitted are made float
     if degree < 0:
         raise ValueError(f"degree must be >= 0, got {degree}")
     if background is None:
-        bright = frame > threshold_midpoint(given)
+        bright = frame > threshold_midpoint(frame)
         dark = holes_filled(~bright)
         background = ~dilate(dark, 3)
         if background.sum() < (degree + 1) * (degree + 2):
@@ -218,7 +217,7 @@ def fit_illumination(frame, *, background=None, degree: int = 2, step: int = 4):
     # machine), then a small solve; the columns, scaled to 0..1, are well
     # conditioned.
     a = design(rows[use], cols[use])
-    y = frame[::step, ::step][use]
+    y = frame[::step, ::step][use].astype(np.float64)
     coeffs, *_ = np.linalg.lstsq(
         np.einsum("ki,kj->ij", a, a), np.einsum("ki,k->i", a, y), rcond=None
     )
