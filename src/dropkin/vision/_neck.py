@@ -3,7 +3,8 @@
 Only a band around the contact point is looked at. The band is a grid of
 sample points ``origin + s * axis + u * normal``: ``s`` runs along the line of
 centres, ``u`` across it. Frames are sampled on the grid by bilinear
-interpolation (a whole chunk of frames at once), turned into transmission, and
+interpolation (a block of frames at once: one sparse product per block, on
+the few pixels the band needs), turned into transmission, and
 in every column ``s`` the two edges of the bridge are found going outward from
 the line of centres, at sub-pixel positions where the transmission crosses
 one half (linear interpolation between the two samples around the crossing).
@@ -513,10 +514,11 @@ def measure_necks(
     The chunk's first and last frames are looked at first, roughly (every
     2 px), on a band as wide as the smaller drop; the frames are then sampled
     on the line of centres and, across it, only between the two neck radii
-    found, with a margin, every pixel. Frames whose edge falls outside the dense
-    rows, whose bridge does not fit, or whose narrowest column is at the
-    band's end, are measured again on the full band. Chunks are independent of each other, so
-    they can be measured in parallel.
+    found, with a margin of 4 px, every pixel, over a few px of the axis
+    around the neck found. Frames whose edge falls outside the dense rows,
+    whose bridge does not fit, or whose narrowest column is at the band's
+    end, are measured again on the full band. Chunks are independent of each
+    other, so they can be measured in parallel.
 
     Parameters
     ----------
