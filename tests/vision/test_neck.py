@@ -40,7 +40,7 @@ def test_band_near_the_border_marks_samples_outside():
 
 def test_distinct_pixels_equal_numpy_unique():
     # Reference: numpy.unique(return_inverse=True).
-    from dropkin.vision._neck import _distinct
+    from dropkin.vision._band import _distinct
 
     rng = np.random.default_rng(9)
     index = rng.integers(1000, 5000, size=(4, 7, 11))
@@ -124,7 +124,7 @@ def test_necks_do_not_depend_on_the_hint_or_the_chunks(unequal_pair):
 )
 def test_transposed_copies_equal_numpy_transpose(dtype):
     # Reference: numpy's .T (OpenCV's transpose is used for the types it takes).
-    from dropkin.vision._neck import _transposed
+    from dropkin.vision._band import _transposed
 
     a = (np.arange(7 * 300) % 251).astype(dtype).reshape(7, 300)
     for block in (a, a[:1]):
