@@ -12,6 +12,7 @@ from __future__ import annotations
 import dataclasses
 import hashlib
 import math
+import pickle
 from collections.abc import Callable
 from concurrent.futures import ProcessPoolExecutor
 from pathlib import Path
@@ -121,10 +122,11 @@ def _noise(trans) -> float:
     """Noise of the transmission on the background, from neighbour differences."""
     diff = np.diff(trans, axis=1)
     bright = (trans[:, 1:] > 0.8) & (trans[:, :-1] > 0.8)
-    values = diff[bright]
+    values = diff[bright]  # a copy: the medians below may reorder it
     if values.size < 100:
         return 0.01
-    mad = float(np.median(np.abs(values - np.median(values))))
+    values -= np.median(values, overwrite_input=True)
+    mad = float(np.median(np.abs(values, out=values), overwrite_input=True))
     return max(1.4826 * mad / math.sqrt(2.0), 1e-4)
 
 
@@ -147,13 +149,14 @@ def prepare(
     for index in candidates:
         if index >= n:
             break
-        frame = _crop(recording[index], options.roi).astype(np.float64)
+        frame = _crop(recording[index], options.roi)
         if options.background is not None:
             illumination = _crop(np.asarray(options.background, dtype=np.float64), options.roi)
         else:
             illumination = vision.fit_illumination(frame)
         dark = vision.dark_level(frame)
-        if float(np.median(illumination)) - dark < 1e-3 * max(abs(dark), 1.0):
+        # (The backlight's median on every fourth row and column: a check.)
+        if float(np.median(illumination[::4, ::4])) - dark < 1e-3 * max(abs(dark), 1.0):
             reason = "the frame has no contrast"
             continue
         trans = vision.transmission(frame, illumination, dark)
@@ -184,10 +187,28 @@ def _prepare_spreading(frame, trans, illumination, dark, index, view, options):
     return Preparation(illumination, dark, _noise(trans), setup.blur, None, index, spreading=setup)
 
 
-def _measure_chunk(args):
-    """One chunk, in this process or a worker (module level: picklable)."""
-    recording, start, stop, prep, options = args
-    _, frames = next(recording[start:stop].chunks(stop - start))
+#: In a worker process: (recording, preparation, options), set once by
+#: :func:`_start_worker` so that each chunk's task carries two numbers only
+#: (opening a recording and pickling the preparation cost more than a chunk).
+_WORKER: tuple = ()
+
+
+def _start_worker(state: bytes):
+    """Unpickle the recording (so that the worker opens the file itself: a
+    forked worker must not share the parent's file position), the
+    preparation and the options."""
+    global _WORKER
+    _WORKER = pickle.loads(state)
+
+
+def _measure_chunk(bounds):
+    """One chunk in a worker (module level: picklable): memory-mapped when
+    the file allows (only the pages the bands touch are read)."""
+    recording, prep, options = _WORKER
+    start, stop = bounds
+    frames = recording.memmap(start, stop)
+    if frames is None:
+        _, frames = next(recording[start:stop].chunks(stop - start))
     return start, _neck_chunk(_crop(frames, options.roi), prep, options)
 
 
@@ -251,17 +272,17 @@ def _stream(recording, prep, options, progress):
             yield start, result
         return
     starts = list(range(0, n, size))
-    with ProcessPoolExecutor(max_workers=options.jobs) as pool:
+    with ProcessPoolExecutor(
+        max_workers=options.jobs,
+        initializer=_start_worker,
+        initargs=(pickle.dumps((recording, prep, options)),),
+    ) as pool:
         # Keep at most two chunks per worker in flight: memory stays bounded.
         window = 2 * options.jobs
         pending = []
         done = 0
         for start in starts:
-            pending.append(
-                pool.submit(
-                    _measure_chunk, (recording, start, min(start + size, n), prep, options)
-                )
-            )
+            pending.append(pool.submit(_measure_chunk, (start, min(start + size, n))))
             if len(pending) >= window:
                 first, result = pending.pop(0).result()
                 done += len(result.radius)

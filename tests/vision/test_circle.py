@@ -64,3 +64,38 @@ def test_drop_radius_agrees_with_skimage_circlemodel_on_a_rendered_drop():
 def test_bad_points_are_refused():
     with pytest.raises(ValueError, match="P >= 3"):
         fit_circle(np.zeros((2, 2)))
+
+
+def test_consensus_counts_equal_the_distance_rule():
+    # The RANSAC search counts points by squared distances; the rule it
+    # implements is |hypot(p - c) - r| <= tolerance, written out here with
+    # numpy for every candidate circle (same seed, same candidates).
+    from dropkin.vision._circle import _consensus
+
+    rng = np.random.default_rng(11)
+    for trial in range(20):
+        pts = _circle_points((120.0, 90.0), rng.uniform(10, 150), n=400, noise=0.4, seed=trial)
+        pts[:60] = rng.uniform(0, 300, (60, 2))  # clutter
+        got = _consensus(pts, 1.5, 300)
+        picks = np.random.default_rng(0).integers(0, len(pts), size=(300, 3))
+        best, best_count = None, -1
+        for i, j, k in picks:
+            if len({i, j, k}) < 3:
+                continue
+            (a, b), (c, d), (e, f) = pts[i], pts[j], pts[k]
+            det = 2.0 * (a * (d - f) + c * (f - b) + e * (b - d))
+            if abs(det) <= 1e-9:
+                continue
+            s1, s2, s3 = a * a + b * b, c * c + d * d, e * e + f * f
+            centre = np.array(
+                [
+                    (s1 * (d - f) + s2 * (f - b) + s3 * (b - d)) / det,
+                    (s1 * (e - c) + s2 * (a - e) + s3 * (c - a)) / det,
+                ]
+            )
+            radius = np.hypot(a - centre[0], b - centre[1])
+            count = int((np.abs(np.hypot(*(pts - centre).T) - radius) <= 1.5).sum())
+            if count > best_count:
+                best, best_count = (centre, radius), count
+        expected = np.abs(np.hypot(*(pts - best[0]).T) - best[1]) <= 1.5
+        assert np.array_equal(got, expected)

@@ -63,3 +63,36 @@ def test_an_empty_frame_has_no_drops():
     trans = np.ones((50, 60))
     with pytest.raises(MeasurementError, match="no drops"):
         find_drop_pair(trans)
+
+
+def test_outline_points_equal_find_contours_on_the_whole_frame():
+    # Tracing only the box around the drops gives scikit-image's contours of
+    # the whole frame (ones away from the drops), point for point.
+    from skimage import measure as skmeasure
+
+    from dropkin.vision._pair import _outline_points
+
+    frame = _render(factor=4)
+    trans = transmission(frame, fit_illumination(frame), dark_level(frame))
+    near = np.zeros(trans.shape, dtype=bool)
+    near[20:150, 40:170] = True
+    got = _outline_points(trans, near, 0.5)
+    expected = np.concatenate(skmeasure.find_contours(np.where(near, trans, 1.0), 0.5))
+    assert got.shape == expected.shape and len(got) > 100
+    assert np.allclose(got, expected, rtol=0, atol=1e-12)
+
+
+def test_largest_label_near_equals_a_grey_dilation():
+    # Reference: scipy.ndimage.grey_dilation of the kept labels, looked up at the points.
+    from scipy import ndimage
+
+    from dropkin.vision._pair import _largest_label_near
+
+    rng = np.random.default_rng(5)
+    labels, _ = ndimage.label(rng.random((40, 50)) < 0.35)
+    keep = np.array([2, 5])
+    rows = rng.integers(0, 40, 300)
+    cols = rng.integers(0, 50, 300)
+    grown = ndimage.grey_dilation(np.where(np.isin(labels, keep), labels, 0), size=(5, 5))
+    got = _largest_label_near(labels, keep, rows, cols, reach=2)
+    assert np.array_equal(got, grown[rows, cols])

@@ -4,6 +4,9 @@ Nothing here reads files or knows units; :mod:`dropkin.measure` streams the
 frames and turns pixels into metres.
 """
 
+from ._band import Band as Band
+from ._band import make_band as make_band
+from ._band import sample_band as sample_band
 from ._circle import CircleFit as CircleFit
 from ._circle import fit_circle as fit_circle
 from ._neck import AT_EDGE as AT_EDGE
@@ -12,12 +15,9 @@ from ._neck import NOT_FOUND as NOT_FOUND
 from ._neck import OK as OK
 from ._neck import STATUS_NAMES as STATUS_NAMES
 from ._neck import UNRESOLVED as UNRESOLVED
-from ._neck import Band as Band
 from ._neck import NeckResult as NeckResult
-from ._neck import make_band as make_band
 from ._neck import measure_necks as measure_necks
 from ._neck import neck_from_band as neck_from_band
-from ._neck import sample_band as sample_band
 from ._pair import DropPair as DropPair
 from ._pair import edge_blur as edge_blur
 from ._pair import find_drop_pair as find_drop_pair

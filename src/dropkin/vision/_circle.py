@@ -87,8 +87,27 @@ def _consensus(points, tolerance: float, trials: int):
     rows = (s1 * (d - f) + s2 * (f - b) + s3 * (b - d)) / det
     cols = (s1 * (e - c) + s2 * (a - e) + s3 * (c - a)) / det
     radius = np.hypot(a - rows, b - cols)
-    dist = np.hypot(sample[None, :, 0] - rows[:, None], sample[None, :, 1] - cols[:, None])
-    counts = np.where(good, (np.abs(dist - radius[:, None]) <= tolerance).sum(axis=1), -1)
+    # |d - radius| <= tolerance as a band of squared distances, with
+    # d^2 - |c|^2 = |p|^2 - 2 p.c: no square root per point and candidate;
+    # candidates in blocks whose arrays stay in the processor's cache.
+    centre_sq = rows**2 + cols**2
+    lower = np.where(radius > tolerance, (radius - tolerance) ** 2, -np.inf) - centre_sq
+    upper = (radius + tolerance) ** 2 - centre_sq
+    sample_sq = (sample**2).sum(axis=1)
+    counts = np.empty(len(rows), dtype=np.intp)
+    block = 64
+    partial = np.empty((block, len(sample)))
+    other = np.empty((block, len(sample)))
+    for first in range(0, len(rows), block):
+        part = slice(first, first + block)
+        size = len(rows[part])
+        np.multiply.outer(-2.0 * rows[part], sample[:, 0], out=partial[:size])
+        np.multiply.outer(2.0 * cols[part], sample[:, 1], out=other[:size])
+        inside = partial[:size]
+        inside -= other[:size]
+        inside += sample_sq
+        counts[part] = ((inside >= lower[part, None]) & (inside <= upper[part, None])).sum(axis=1)
+    counts = np.where(good, counts, -1)
     if not counts.size:
         return None
     best = int(np.argmax(counts))

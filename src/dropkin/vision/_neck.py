@@ -2,8 +2,9 @@
 
 Only a band around the contact point is looked at. The band is a grid of
 sample points ``origin + s * axis + u * normal``: ``s`` runs along the line of
-centres, ``u`` across it. Frames are sampled on the grid by bilinear
-interpolation (a whole chunk of frames at once), turned into transmission, and
+centres, ``u`` across it (see :mod:`dropkin.vision._band`). Frames are
+sampled on the grid by bilinear interpolation, a block of frames at a time,
+turned into transmission, and
 in every column ``s`` the two edges of the bridge are found going outward from
 the line of centres, at sub-pixel positions where the transmission crosses
 one half (linear interpolation between the two samples around the crossing).
@@ -17,7 +18,8 @@ import math
 from dataclasses import dataclass
 
 import numpy as np
-from scipy import sparse
+
+from ._band import Band, _band_transmission, _sample_block, make_band
 
 __all__ = [
     "STATUS_NAMES",
@@ -26,9 +28,6 @@ __all__ = [
     "UNRESOLVED",
     "NOT_FOUND",
     "AT_EDGE",
-    "Band",
-    "make_band",
-    "sample_band",
     "NeckResult",
     "neck_from_band",
 ]
@@ -38,156 +37,6 @@ STATUS_NAMES = ("ok", "before-contact", "unresolved", "not-found", "at-edge")
 OK, BEFORE_CONTACT, UNRESOLVED, NOT_FOUND, AT_EDGE = range(5)
 #: Internal: the bridge is wider than the band (the caller widens the band).
 BAND_LIMIT = 5
-
-
-@dataclass(frozen=True)
-class Band:
-    """A sampling grid across the line of centres.
-
-    Attributes
-    ----------
-    origin : (2,) ndarray
-        The point (row, col) where ``s = u = 0``.
-    axis, normal : (2,) ndarray
-        Unit vectors along and across the line of centres.
-    s : (S,) ndarray
-        Positions along the axis (px).
-    u : (U,) ndarray
-        Positions across, symmetric, ``u[U // 2] == 0`` (px).
-    pixels : (P,) ndarray of intp
-        The distinct pixels whose values the samples interpolate (the four
-        neighbours of each sample point), as flat indices into the bounding
-        box `box` (each pixel is read once).
-    box : tuple of int
-        (row_start, row_stop, col_start, col_stop) of the pixels the band
-        reads.
-    matrix : scipy.sparse.csr_matrix
-        (U * S, P) bilinear weights: samples = matrix @ pixel values.
-    valid : (U, S) ndarray of bool
-        Sample points whose four neighbours lie inside the frame.
-    """
-
-    origin: np.ndarray
-    axis: np.ndarray
-    normal: np.ndarray
-    s: np.ndarray
-    u: np.ndarray
-    valid: np.ndarray
-    pixels: np.ndarray
-    box: tuple
-    matrix: object
-
-    @property
-    def points(self) -> np.ndarray:
-        """(2, U, S) array of the sample points' (row, col)."""
-        return (
-            self.origin[:, None, None]
-            + self.axis[:, None, None] * self.s[None, None, :]
-            + self.normal[:, None, None] * self.u[None, :, None]
-        )
-
-
-def make_band(
-    shape,
-    origin,
-    axis,
-    *,
-    s_centre: float,
-    s_half: float,
-    u_half: float,
-    s_step: float = 0.5,
-    u_step: float = 1.0,
-    u_values=None,
-) -> Band:
-    """Build the sampling grid for frames of `shape`.
-
-    Parameters
-    ----------
-    shape : tuple of int
-        (M, N) of the frames.
-    origin : (2,) array_like
-        Contact point (row, col).
-    axis : (2,) array_like
-        Unit vector along the line of centres.
-    s_centre, s_half : float
-        Columns cover ``s_centre - s_half ... s_centre + s_half`` (px).
-    u_half : float
-        Rows cover ``-u_half ... u_half`` (px).
-    s_step, u_step : float, optional
-        Grid spacing (px).
-    u_values : (H,) array_like, optional
-        Distances from the axis to sample on each side, increasing from 0
-        (overrides `u_half` and `u_step`): dense only where an edge is
-        expected, sparse elsewhere.
-    """
-    origin = np.asarray(origin, dtype=np.float64)
-    axis = np.asarray(axis, dtype=np.float64)
-    axis = axis / np.hypot(*axis)
-    normal = np.array([-axis[1], axis[0]])
-    n_s = max(int(np.ceil(s_half / s_step)), 1)
-    if u_values is None:
-        n_u = max(int(np.ceil(u_half / u_step)), 2)
-        u_values = u_step * np.arange(n_u + 1)
-    u_values = np.asarray(u_values, dtype=np.float64)
-    if u_values[0] != 0 or np.any(np.diff(u_values) <= 0):
-        raise ValueError("u_values must increase from 0")
-    # Columns on one grid through the origin, whatever the centre: bands of
-    # different chunks then sample the same points (results do not depend on
-    # how the recording is cut into chunks).
-    s = s_step * (round(s_centre / s_step) + np.arange(-n_s, n_s + 1))
-    u = np.concatenate([-u_values[:0:-1], u_values])
-    rows = origin[0] + axis[0] * s[None, :] + normal[0] * u[:, None]
-    cols = origin[1] + axis[1] * s[None, :] + normal[1] * u[:, None]
-    r0 = np.floor(rows)
-    c0 = np.floor(cols)
-    fr = (rows - r0).astype(np.float32)
-    fc = (cols - c0).astype(np.float32)
-    m, n = shape
-    valid = (r0 >= 0) & (r0 <= m - 2) & (c0 >= 0) & (c0 <= n - 2)
-    r0 = np.clip(r0, 0, m - 2).astype(np.intp)
-    c0 = np.clip(c0, 0, n - 2).astype(np.intp)
-    base = r0 * n + c0
-    index = np.stack([base, base + 1, base + n, base + n + 1])
-    weight = np.stack([(1 - fr) * (1 - fc), (1 - fr) * fc, fr * (1 - fc), fr * fc])
-    pixels, inverse = np.unique(index, return_inverse=True)
-    rows_px, cols_px = np.divmod(pixels, n)
-    box = (int(rows_px.min()), int(rows_px.max()) + 1, int(cols_px.min()), int(cols_px.max()) + 1)
-    local = (rows_px - box[0]) * (box[3] - box[2]) + (cols_px - box[2])
-    inverse = inverse.reshape(index.shape)
-    weight = weight.astype(np.float32)
-    count = inverse[0].size
-    matrix = sparse.csr_matrix(
-        (
-            weight.reshape(4, -1).T.ravel(),
-            inverse.reshape(4, -1).T.ravel(),
-            np.arange(0, 4 * count + 1, 4),
-        ),
-        shape=(count, len(pixels)),
-    )
-    return Band(origin, axis, normal, s, u, valid, local, box, matrix)
-
-
-def sample_band(frames, band: Band):
-    """Bilinear samples of a chunk of frames on the band's grid.
-
-    Parameters
-    ----------
-    frames : (K, M, N) ndarray
-        Frames (any numeric dtype), or illumination as (1, M, N).
-
-    Returns
-    -------
-    samples : (K, U, S) ndarray of float32
-    """
-    frames = np.asarray(frames)
-    r0, r1, c0, c1 = band.box
-    # Copy the band's bounding box (on a memory map, only the pages holding
-    # it are read), pick each pixel the band needs once, then apply the
-    # bilinear weights to those few values.
-    box = np.ascontiguousarray(frames[:, r0:r1, c0:c1]).reshape(frames.shape[0], -1)
-    values = np.take(box, band.pixels, axis=1).astype(np.float32)
-    out = np.asarray(values @ band.matrix.T, dtype=np.float32)
-    return out.reshape(frames.shape[0], len(band.u), len(band.s))
 
 
 @dataclass(frozen=True)
@@ -225,25 +74,27 @@ class NeckResult:
 def _edge_outward(side, valid_side, level, pos):
     """First crossing of `level` going outward in each column.
 
-    `side` is (K, H, S) with row 0 on the axis, `valid_side` (H, S) marks
-    samples inside the frame and `pos` (H,) holds the rows' distances from
-    the axis. Returns the distance of the crossing (K, S), the local slope
-    |dT/du| there, masks "no crossing inside the band", "the search left the
-    frame before a crossing" and "the crossing lies between samples more
-    than a pixel apart", and the distance to the frame border along the
-    search (S,) (a lower bound of the edge's distance where the search left
-    the frame).
+    `side` is (H, S, K) with row 0 on the axis (K frames innermost),
+    `valid_side` (H, S) marks samples inside the frame and `pos` (H,) holds
+    the rows' distances from the axis. Returns the distance of the crossing
+    (S, K), the local slope |dT/du| there, masks "no crossing inside the
+    band", "the search left the frame before a crossing" and "the crossing
+    lies between samples more than a pixel apart", and the distance to the
+    frame border along the search (S,) (a lower bound of the edge's distance
+    where the search left the frame).
     """
-    bright = (side >= level) & valid_side[None]
-    bright[:, 0, :] = False
-    j = np.argmax(bright, axis=1)  # (K, S): first bright sample, 0 if none
+    bright = side >= level
+    if not valid_side.all():
+        bright &= valid_side[:, :, None]
+    bright[0] = False
+    j = np.argmax(bright, axis=0)  # (S, K): first bright sample, 0 if none
     none = j == 0
     outside = ~valid_side
-    first_out = np.where(outside.any(axis=0), np.argmax(outside, axis=0), side.shape[1])
-    left_frame = np.where(none, first_out[None, :] < side.shape[1], first_out[None, :] < j)
+    first_out = np.where(outside.any(axis=0), np.argmax(outside, axis=0), side.shape[0])
+    left_frame = np.where(none, first_out[:, None] < side.shape[0], first_out[:, None] < j)
     j = np.maximum(j, 1)
-    t_in = np.take_along_axis(side, (j - 1)[:, None, :], axis=1)[:, 0, :]
-    t_out = np.take_along_axis(side, j[:, None, :], axis=1)[:, 0, :]
+    t_in = np.take_along_axis(side, (j - 1)[None], axis=0)[0]
+    t_out = np.take_along_axis(side, j[None], axis=0)[0]
     rise = np.maximum(t_out - t_in, 1e-6)
     spacing = pos[j] - pos[j - 1]
     dist = pos[j - 1] + np.clip((level - t_in) / rise, 0.0, 1.0) * spacing
@@ -339,6 +190,9 @@ def neck_from_band(
     """
     trans = np.asarray(trans, dtype=np.float32)
     k, n_u, n_s = trans.shape
+    # Work on (U, S, K), frames innermost: how sample_band delivers them (a
+    # view then), and what makes the per-frame steps below contiguous.
+    t = np.ascontiguousarray(trans.transpose(1, 2, 0))
     c = n_u // 2
     pos = band.u[c:]
     status = np.full(k, OK, dtype=np.int8)
@@ -349,38 +203,38 @@ def neck_from_band(
 
     s_step = float(band.s[1] - band.s[0]) if n_s > 1 else 1.0
     if with_gap:
-        gap_width = gap_on_axis(trans[:, c, :], band.valid[c], s_step)
+        gap_width = gap_on_axis(t[c].T, band.valid[c], s_step)
     else:
         gap_width = np.full(k, np.nan)
-    on_axis_dark = trans[:, c, :] < level
-    gap_seen = ~on_axis_dark & band.valid[c][None, :]
-    before = gap_seen.any(axis=1)
+    on_axis_dark = t[c] < level
+    gap_seen = ~on_axis_dark & band.valid[c][:, None]
+    before = gap_seen.any(axis=0)
     # No drop in the band at all (every other sample is enough to tell).
-    nothing = ~((trans[:, ::2, ::2] < level) & band.valid[None, ::2, ::2]).any(axis=(1, 2))
+    nothing = ~((t[::2, ::2] < level) & band.valid[::2, ::2, None]).any(axis=(0, 1))
 
     up, slope_up, none_up, out_up, coarse_up, border_up = _edge_outward(
-        trans[:, c:, :], band.valid[c:], level, pos
+        t[c:], band.valid[c:], level, pos
     )
     down, slope_dn, none_dn, out_dn, coarse_dn, border_dn = _edge_outward(
-        trans[:, c::-1, :], band.valid[c::-1], level, pos
+        t[c::-1], band.valid[c::-1], level, pos
     )
     # Columns whose bridge reaches past the frame border: their width is
     # only known to exceed the distance to the border.
     left = (out_up | out_dn) & on_axis_dark
     reach = float(band.u[-1])  # a side without a crossing reaches at least this far
-    bound = np.where(out_up, border_up[None, :], np.where(none_up, reach, up)) + np.where(
-        out_dn, border_dn[None, :], np.where(none_dn, reach, down)
+    bound = np.where(out_up, border_up[:, None], np.where(none_up, reach, up)) + np.where(
+        out_dn, border_dn[:, None], np.where(none_dn, reach, down)
     )
-    bound = np.where(left, bound, np.inf).min(axis=1)
+    bound = np.where(left, bound, np.inf).min(axis=0)
     width = up + down
     bad_col = none_up | none_dn | ~on_axis_dark | left
     width = np.where(bad_col, np.inf, width)
-    m = np.argmin(width, axis=1)
+    m = np.argmin(width, axis=0)
     rows = np.arange(k)
-    w_min = width[rows, m]
+    w_min = width[m, rows]
     # Parabola through the narrowest column and its neighbours (sub-sample in s).
     ml, mr = np.clip(m - 1, 0, n_s - 1), np.clip(m + 1, 0, n_s - 1)
-    wl, wr = width[rows, ml], width[rows, mr]
+    wl, wr = width[ml, rows], width[mr, rows]
     interior = (m > 0) & (m < n_s - 1) & np.isfinite(wl) & np.isfinite(wr) & np.isfinite(w_min)
     wl, wr = np.where(interior, wl, 0.0), np.where(interior, wr, 0.0)
     w_fin = np.where(interior, w_min, 0.0)
@@ -389,16 +243,16 @@ def neck_from_band(
     offset = np.clip(offset, -0.5, 0.5)
     w_ref = w_min - 0.25 * curv * offset**2
     radius_all = 0.5 * w_ref
-    su = slope_up[rows, m]
-    sd = slope_dn[rows, m]
+    su = slope_up[m, rows]
+    sd = slope_dn[m, rows]
     err = 0.5 * np.hypot(noise / su, noise / sd)
     err_all = np.hypot(err, err_floor)
 
     r_px = np.asarray(radii, dtype=np.float64)
     gap = radius_all**2 * 0.5 * (1.0 / r_px[0] + 1.0 / r_px[1])
-    limit = (none_up | none_dn)[rows, m]
+    limit = none_up[m, rows] | none_dn[m, rows]
     if not allow_coarse:
-        limit |= (coarse_up | coarse_dn)[rows, m]
+        limit |= coarse_up[m, rows] | coarse_dn[m, rows]
     # At the edge: a column that leaves the frame might be narrower than
     # the narrowest column measured in full.
     at_edge = bound <= w_min
@@ -413,7 +267,7 @@ def neck_from_band(
     radius_err[measured] = err_all[measured]
     s_neck[measured] = band.s[m[measured]] + offset[measured] * s_step
     base = band.origin[None, :] + band.axis[None, :] * s_neck[:, None]
-    up_m, down_m = up[rows, m], down[rows, m]
+    up_m, down_m = up[m, rows], down[m, rows]
     edges[:, 0] = np.where(measured[:, None], base + band.normal * up_m[:, None], np.nan)
     edges[:, 1] = np.where(measured[:, None], base - band.normal * down_m[:, None], np.nan)
     return NeckResult(radius, radius_err, s_neck, edges, status, gap_width)
@@ -437,10 +291,11 @@ def measure_necks(
     The chunk's first and last frames are looked at first, roughly (every
     2 px), on a band as wide as the smaller drop; the frames are then sampled
     on the line of centres and, across it, only between the two neck radii
-    found, with a margin, every pixel. Frames whose edge falls outside the dense
-    rows, whose bridge does not fit, or whose narrowest column is at the
-    band's end, are measured again on the full band. Chunks are independent of each other, so
-    they can be measured in parallel.
+    found, with a margin of 4 px, every pixel, over a few px of the axis
+    around the neck found. Frames whose edge falls outside the dense rows,
+    whose bridge does not fit, or whose narrowest column is at the band's
+    end, are measured again on the full band. Chunks are independent of each
+    other, so they can be measured in parallel.
 
     Parameters
     ----------
@@ -487,12 +342,13 @@ def measure_necks(
 
     def band_for(s_centre, s_half, u_lo, u_hi, step, sparse=None):
         """A band (cached): the axis, and rows from u_lo to u_hi every pixel
-        (and every `sparse` px below u_lo, if given)."""
+        (and every `sparse` px below u_lo, if given); the axis alone if
+        `u_hi` is 0."""
         lo, hi = 4 * int(max(u_lo, 0.0) // 4), 4 * math.ceil(u_hi / 4.0)
         key = (shape, round(s_centre / 2.0), math.ceil(s_half / 4.0), lo, hi, step, sparse)
         if key not in cache:
             inner = np.arange(0.0, lo, sparse) if sparse else np.zeros(1)
-            u_values = np.concatenate([inner, np.arange(lo, hi + 1.0)])
+            u_values = np.concatenate([inner, np.arange(lo, hi + 1.0)]) if hi > 0 else inner
             band = make_band(
                 shape,
                 pair.contact_point,
@@ -503,15 +359,14 @@ def measure_necks(
                 s_step=step,
                 u_values=np.unique(u_values),
             )
-            span = np.maximum(sample_band(illum, band) - np.float32(dark), 1e-6)
+            span = np.maximum(_sample_block(illum, band) - np.float32(dark), 1e-6)
             cache[key] = (band, 1.0 / span)
         return cache[key]
 
     def run(sub, s_centre, s_half, u_lo, u_hi, step, *, sparse=None, rough=False):
         band, inv_span = band_for(s_centre, s_half, u_lo, u_hi, step, sparse)
-        trans = (sample_band(sub, band) - np.float32(dark)) * inv_span
         result = neck_from_band(
-            trans,
+            _band_transmission(sub, band, dark, inv_span),
             band,
             noise=noise,
             radii=pair.radii,
@@ -526,7 +381,7 @@ def measure_necks(
     step = 0.5 if r_small < 80 else 1.0
     # A rough look (every 2 px) at the chunk's last frame, and at its first
     # unless the caller knows the neck there, bounds the neck in the chunk.
-    probe_frames = frames[[-1]] if hint is not None else frames[[0, -1]]
+    probe_frames = frames[-1:] if hint is not None else frames[[0, -1]]
     probe, _ = run(probe_frames, 0.0, full_s, full_u, full_u, 2.0, sparse=2.0, rough=True)
     if np.isfinite(probe.radius[-1]):
         if hint is not None:
@@ -534,9 +389,12 @@ def measure_necks(
         else:
             r_first = probe.radius[0] if np.isfinite(probe.radius[0]) else 0.0
         r_last, s_last = float(probe.radius[-1]), float(probe.s_neck[-1])
-        s_half = min(0.15 * r_last + 6.0, full_s)
-        u_lo = min(r_first, r_last) - 6.0
-        u_hi = min(1.05 * max(r_first, r_last) + 6.0, full_u)
+        # Margins: the neck moves along the axis by a few px per chunk at most
+        # (unequal drops), and the rough look is within a px of the radius;
+        # a frame whose neck falls outside is measured again on the full band.
+        s_half = min(0.05 * r_last + 4.0, full_s)
+        u_lo = min(r_first, r_last) - 4.0
+        u_hi = min(1.03 * max(r_first, r_last) + 4.0, full_u)
         result, ends = run(frames, s_last, s_half, u_lo, u_hi, step)
     else:
         result, ends = run(frames, 0.0, full_s, 0.0, full_u, step)
@@ -547,12 +405,9 @@ def measure_necks(
         for name in ("radius", "radius_err", "s_neck", "edges", "status", "gap"):
             getattr(result, name)[redo] = getattr(again, name)
     # The gap on a fixed stretch of the axis, the same for every chunk.
-    axis_band, inv_span = band_for(0.0, full_s, 0.0, 1.0, step)
-    centre_row = len(axis_band.u) // 2
-    on_axis = (sample_band(frames, axis_band)[:, centre_row] - np.float32(dark)) * inv_span[
-        :, centre_row
-    ]
-    result.gap[:] = gap_on_axis(on_axis, axis_band.valid[centre_row], step)
+    axis_band, inv_span = band_for(0.0, full_s, 0.0, 0.0, step)
+    on_axis = _band_transmission(frames, axis_band, dark, inv_span)[:, 0]
+    result.gap[:] = gap_on_axis(on_axis, axis_band.valid[0], step)
     status = result.status
     status[status == BAND_LIMIT] = NOT_FOUND
     return result

@@ -10,7 +10,7 @@ from skimage import measure as skmeasure
 
 from ..errors import MeasurementError
 from ._circle import CircleFit, fit_circle
-from ._silhouette import dilate, silhouette_mask
+from ._silhouette import dilate, label_regions, silhouette_mask
 
 __all__ = ["DropPair", "find_drop_pair", "substrate_rows"]
 
@@ -92,6 +92,52 @@ def _fit_away_from(points, first: CircleFit, other_centre, *, exclude_deg: float
     return fit_circle(points[keep], consensus=None) if keep.sum() >= 8 else first
 
 
+def _bounding_box(mask, *, margin: int = 0):
+    """(row_start, row_stop, col_start, col_stop) of a mask's True pixels,
+    grown by `margin` and clipped to the mask; the whole mask if it is empty."""
+    rows = np.flatnonzero(mask.any(axis=1))
+    cols = np.flatnonzero(mask.any(axis=0))
+    if not rows.size:
+        return 0, mask.shape[0], 0, mask.shape[1]
+    return (
+        max(int(rows[0]) - margin, 0),
+        min(int(rows[-1]) + 1 + margin, mask.shape[0]),
+        max(int(cols[0]) - margin, 0),
+        min(int(cols[-1]) + 1 + margin, mask.shape[1]),
+    )
+
+
+def _outline_points(trans, near, level: float):
+    """Sub-pixel outline points (P, 2) at `level`, traced only where `near` is.
+
+    The same points, in the same order, as
+    ``skimage.measure.find_contours(np.where(near, trans, 1.0), level)``
+    concatenated: only the box around `near`, with a border of ones, is
+    traced, and outside it there is no crossing of `level` (< 1).
+    """
+    r0, r1, c0, c1 = _bounding_box(near, margin=1)
+    clean = np.where(near[r0:r1, c0:c1], trans[r0:r1, c0:c1], 1.0)
+    contours = skmeasure.find_contours(clean, level) if min(clean.shape) >= 2 else []
+    if not contours:
+        return np.empty((0, 2))
+    return np.concatenate(contours) + np.array([r0, c0], dtype=np.float64)
+
+
+def _largest_label_near(labels, keep, rows, cols, *, reach: int):
+    """At each (row, col), the largest label among `keep` within `reach` px
+    (a square window), 0 if none: what a grey dilation of the kept labels by
+    a (2 reach + 1)-square would give there, computed at those points only.
+    """
+    offsets = np.arange(-reach, reach + 1)
+    # Clipped to the frame: a window reaching past the border sees the
+    # border pixels, which it holds anyway (as the dilation's reflection).
+    window = labels[
+        np.clip(rows[:, None, None] + offsets[None, :, None], 0, labels.shape[0] - 1),
+        np.clip(cols[:, None, None] + offsets[None, None, :], 0, labels.shape[1] - 1),
+    ].reshape(len(rows), -1)
+    return np.where(np.isin(window, keep), window, 0).max(axis=1)
+
+
 def find_drop_pair(trans, *, level: float = 0.5, min_area: int = 20) -> DropPair:
     """Locate the two drops in a transmission frame and fit a circle to each.
 
@@ -121,14 +167,16 @@ def find_drop_pair(trans, *, level: float = 0.5, min_area: int = 20) -> DropPair
     sub-pixel. Points on the frame border, on a substrate band, and facing the
     other drop are left out; the fit itself trims outliers (a needle).
     """
-    trans = np.asarray(trans, dtype=np.float64)
+    trans = np.asarray(trans)
+    if trans.dtype not in (np.float32, np.float64):
+        trans = trans.astype(np.float64)
     if trans.ndim != 2:
         raise ValueError(f"trans must be 2-D, got shape {trans.shape}")
     mask = silhouette_mask(trans, level=level, min_area=min_area)
     top, bottom = substrate_rows(mask)
     mask[:top] = False
     mask[bottom:] = False
-    labels, count = ndimage.label(mask)
+    labels, count = label_regions(mask)
     if count == 0:
         raise MeasurementError("no drops found (no dark region in the frame)")
     sizes = np.bincount(labels.ravel())[1:]
@@ -136,13 +184,12 @@ def find_drop_pair(trans, *, level: float = 0.5, min_area: int = 20) -> DropPair
     big = sizes[order[0]]
     second = sizes[order[1]] if count > 1 else 0
     rows, cols = trans.shape
-    clean = np.where(dilate(labels > 0, 2), trans, 1.0)
-    clean[:top] = 1.0
-    clean[bottom:] = 1.0
-    contours = skmeasure.find_contours(clean, level)
-    if not contours:
+    near = dilate(labels > 0, 2)
+    near[:top] = False
+    near[bottom:] = False
+    points = _outline_points(trans, near, level)
+    if not len(points):
         raise MeasurementError("no drop outline found")
-    points = np.concatenate(contours)
     inside = (
         (points[:, 0] > 1.5)
         & (points[:, 0] < rows - 2.5)
@@ -155,14 +202,16 @@ def find_drop_pair(trans, *, level: float = 0.5, min_area: int = 20) -> DropPair
         inside &= points[:, 0] < bottom - 3.0
     points = points[inside]
     if second >= 0.02 * big:
-        # Two silhouettes: before contact. Assign outline points to the nearer one.
-        grown = ndimage.grey_dilation(
-            np.where(np.isin(labels, order[:2] + 1), labels, 0), size=(5, 5)
-        )
-        owner = grown[
+        # Two silhouettes: before contact. Assign outline points to the nearer
+        # one: the largest of the two labels within 2 px (a 5 x 5 grey
+        # dilation of the two silhouettes' labels, looked up at the points).
+        owner = _largest_label_near(
+            labels,
+            order[:2] + 1,
             np.clip(np.rint(points[:, 0]).astype(int), 0, rows - 1),
             np.clip(np.rint(points[:, 1]).astype(int), 0, cols - 1),
-        ]
+            reach=2,
+        )
         groups = [points[owner == order[0] + 1], points[owner == order[1] + 1]]
         in_contact = False
     else:
