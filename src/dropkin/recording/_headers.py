@@ -19,6 +19,7 @@ from ..errors import RecordingError
 from ._limits import check_frame_size
 from ._tiff import TIFF_SUFFIXES
 from ._tiffcheck import (
+    check_claims,
     check_data_apart,
     check_frame_page,
     check_tag_order,
@@ -229,6 +230,7 @@ def _tiff_header(path: Path, size: int) -> FrameHeader:
     with tifffile_reports(path):
         tif = open_tifffile(path)
         try:
+            check_claims(tif, path)
             if not tif.series:
                 raise RecordingError("holds no image", path=path)
             series = tif.series[0]

@@ -35,6 +35,7 @@ from ._base import FileTiming
 from ._gray import notes_for_channels, to_gray
 from ._libtiff import libtiff_errors
 from ._tiffcheck import (
+    check_claims,
     check_contiguous_frames,
     check_data_apart,
     check_frame_page,
@@ -67,6 +68,7 @@ class TiffStack:
         with tifffile_reports(path):
             tif = open_tifffile(path)
             try:
+                check_claims(tif, path)
                 self._inspect(tif, os.path.getsize(path))
             finally:
                 tif.close()

@@ -14,6 +14,7 @@ import logging
 import math
 import os
 import re
+import xml.etree.ElementTree as ElementTree
 from bisect import bisect_left
 from contextlib import contextmanager
 from pathlib import Path
@@ -38,6 +39,7 @@ __all__ = [
     "check_pages_alike",
     "check_data_apart",
     "check_tag_order",
+    "check_claims",
 ]
 
 _TIFFFILE_DIR = os.path.dirname(os.path.abspath(tifffile.__file__))
@@ -395,3 +397,64 @@ def check_tag_order(page, path, frame: int | None) -> None:
             path=path,
             frame=frame,
         )
+
+
+def check_claims(tif, path) -> None:
+    """Refuse ImageJ or OME metadata that claim far more frames than the file has pages.
+
+    Called before tifffile builds its image series: tifffile sizes its lists
+    of pages from these claims, and a tiny file whose description says
+    100 000 000 frames made it allocate 800 MB (ImageJ) or loop for minutes
+    (OME). Uncompressed ImageJ stacks may keep all frames after one tag
+    directory (ImageJ's form over 4 GB); tifffile checks those against the
+    file size itself.
+    """
+    pages = tif.pages
+    pages.useframes = True
+    count = len(pages)  # walks the chain of tag directories only
+    first = pages.first
+    if tif.is_imagej and not first.is_final:
+        meta = tif.imagej_metadata or {}
+        sizes = [meta.get(key, 1) for key in ("frames", "slices", "channels")]
+        if all(isinstance(v, int) for v in sizes):
+            claimed = max(
+                meta.get("images", 1) if isinstance(meta.get("images"), int) else 1,
+                math.prod(sizes),
+            )
+            if claimed > count:
+                raise RecordingError(
+                    f"is damaged: its ImageJ metadata claim {claimed} images, "
+                    f"the file holds {count} pages",
+                    path=path,
+                )
+    if tif.is_ome:
+        claimed = _ome_planes(tif.ome_metadata)
+        # Up to 4 samples of a plane may share one page (interleaved colour).
+        if claimed is not None and claimed > 4 * count:
+            raise RecordingError(
+                f"is damaged or one file of several: its OME metadata claim {claimed} "
+                f"planes, the file holds {count} pages",
+                path=path,
+            )
+
+
+def _ome_planes(xml: str | None) -> int | None:
+    """Planes (SizeZ x SizeC x SizeT, summed over images) an OME-XML text claims."""
+    if not xml:
+        return None
+    try:
+        root = ElementTree.fromstring(xml)
+    except ElementTree.ParseError:
+        return None  # tifffile will not use it either
+    total = 0
+    for element in root.iter():
+        if element.tag.rsplit("}", 1)[-1] != "Pixels":
+            continue
+        planes = 1
+        for axis in "ZCT":
+            try:
+                planes *= max(int(element.get(f"Size{axis}", "1")), 1)
+            except ValueError:
+                return None
+        total += planes
+    return total
