@@ -194,3 +194,16 @@ def test_a_png_header_with_a_bad_checksum_is_named_at_open(tmp_path):
     path.write_bytes(data)
     with pytest.raises(RecordingError, match=r"f\.png: frame 0: has a damaged PNG header"):
         open_recording(folder, frame_rate=1.0)
+
+
+def test_colour_samples_of_different_bit_depths_are_one_error(tmp_path):
+    # Found by fuzz/fuzz_readers.py: tifffile gives BitsPerSample as a tuple
+    # when the samples differ, and int() of it raised TypeError.
+    path = tmp_path / "rgb.tif"
+    tifffile.imwrite(path, np.zeros((1, 12, 10, 3), np.uint8), photometric="rgb")
+    data = bytearray(path.read_bytes())
+    _, value, order = tag_entry(path, 258)  # BitsPerSample: three SHORTs out of line
+    set_short(data, value, 7, order)  # (7, 8, 8)
+    path.write_bytes(data)
+    with pytest.raises(RecordingError, match=r"samples of different bit depths \(\(7, 8, 8\)\)"):
+        open_all(path)

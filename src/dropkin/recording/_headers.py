@@ -27,6 +27,7 @@ from ._tiffcheck import (
     frame_layout,
     ifd_offsets,
     open_tifffile,
+    sample_bits,
     tifffile_reports,
 )
 
@@ -247,7 +248,7 @@ def _tiff_header(path: Path, size: int) -> FrameHeader:
             check_data_apart([key], ifd_offsets(tif), size, path)
             if decoder == "opencv":
                 check_tag_order(key, path, None)
-            bits = int(key.bitspersample)
+            bits = sample_bits(key, path)
             return FrameHeader(
                 rows=frame_shape[0],
                 cols=frame_shape[1],

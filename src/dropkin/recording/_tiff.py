@@ -46,6 +46,7 @@ from ._tiffcheck import (
     frame_layout,
     ifd_offsets,
     open_tifffile,
+    sample_bits,
     tifffile_reports,
 )
 from ._tifftime import timing_from_imagej, timing_from_ome
@@ -95,7 +96,7 @@ class TiffStack:
         self.dtype = dtype
         self._order = "RGB"
         notes[:0] = notes_for_channels(frame_shape[2] if len(frame_shape) == 3 else 1)
-        bits = int(key.bitspersample)
+        bits = sample_bits(key, path)
         self.bit_depth = min(bits, 8 * dtype.itemsize) if bits > 0 else 8
         # MaxSampleValue (TIFF 6.0 tag 281) tells a 12-bit camera's 4095 in
         # 16-bit words; it describes the data, it is never used to rescale.
@@ -183,7 +184,7 @@ class TiffStack:
         if (
             series.dataoffset is not None
             and key.is_final
-            and int(key.bitspersample) == 8 * np.dtype(series.dtype).itemsize
+            and sample_bits(key, path) == 8 * np.dtype(series.dtype).itemsize
         ):
             self._mode = "raw"
             return None

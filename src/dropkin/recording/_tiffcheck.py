@@ -33,6 +33,7 @@ __all__ = [
     "code_name",
     "check_page_extent",
     "check_frame_page",
+    "sample_bits",
     "frame_layout",
     "ifd_offsets",
     "check_contiguous_frames",
@@ -195,6 +196,18 @@ def check_page_extent(page, size: int, path, frame: int | None) -> None:
             )
 
 
+def sample_bits(page, path, frame: int | None = None) -> int:
+    """BitsPerSample of `page` as one number; refused when the samples differ."""
+    bits = page.bitspersample
+    if not isinstance(bits, (int, np.integer)):  # tifffile gives a tuple when they differ
+        raise RecordingError(
+            f"has samples of different bit depths ({bits}); expected one depth for all",
+            path=path,
+            frame=frame,
+        )
+    return int(bits)
+
+
 def check_frame_page(page, dtype, frame_shape, path, frame: int | None, *, decoder: str) -> None:
     """Refuse, from its tags alone, a page dropkin cannot decode into brightness values.
 
@@ -210,7 +223,7 @@ def check_frame_page(page, dtype, frame_shape, path, frame: int | None, *, decod
     counts = page.databytecounts
     if isinstance(page, tifffile.TiffFrame):  # a lightweight page: its tags are the key's
         page = page.keyframe
-    bits = int(page.bitspersample)
+    bits = sample_bits(page, path, frame)
     if dtype.kind not in "uif":
         raise RecordingError(
             f"has {bits}-bit samples of type {dtype}; expected integer or floating-point samples",
