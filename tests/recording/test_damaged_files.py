@@ -207,3 +207,18 @@ def test_colour_samples_of_different_bit_depths_are_one_error(tmp_path):
     path.write_bytes(data)
     with pytest.raises(RecordingError, match=r"samples of different bit depths \(\(7, 8, 8\)\)"):
         open_all(path)
+
+
+def test_a_png_chunk_longer_than_the_file_is_refused_at_open(tmp_path):
+    # Found by fuzz/fuzz_readers.py: one flipped bit made a 200-byte PNG's IDAT
+    # length 2 GB; OpenCV 5 then allocated 2 GB and took seconds to give up.
+    folder = tmp_path / "frames"
+    folder.mkdir()
+    path = folder / "f.png"
+    assert cv2.imwrite(str(path), STACK[0].astype(np.uint8))
+    data = bytearray(path.read_bytes())
+    at = data.index(b"IDAT") - 4  # the chunk's length field (PNG specification 5.3)
+    data[at] |= 0x7A
+    path.write_bytes(data)
+    with pytest.raises(RecordingError, match=r"f\.png: frame 0: .*'IDAT' chunk .* past the end"):
+        open_recording(folder, frame_rate=1.0)

@@ -88,6 +88,7 @@ def read_header(path: Path) -> FrameHeader:
 _PNG_SIGNATURE = b"\x89PNG\r\n\x1a\n"
 _PNG_END = b"\x00\x00\x00\x00IEND\xaeB`\x82"  # the IEND chunk, with its CRC
 _PNG_CHANNELS = {0: 1, 2: 3, 3: 3, 4: 2, 6: 4}
+_PNG_MAX_CHUNK = 2**31 - 1  # longest chunk the PNG specification allows (5.3)
 # Bit depths allowed for each colour type (PNG specification, 11.2.2 IHDR).
 _PNG_DEPTHS = {0: (1, 2, 4, 8, 16), 2: (8, 16), 3: (1, 2, 4, 8), 4: (8, 16), 6: (8, 16)}
 
@@ -117,16 +118,25 @@ def _png_header(file, size: int, path) -> FrameHeader:
     check_frame_size((rows, cols, 1 if channels == 1 else 4), dtype.itemsize, path=path)
     significant = None
     position = 33
-    for _ in range(10_000):  # walk the chunks before the pixel data
+    # Walk every chunk to the end: a length that runs past the end of the file
+    # is damage, and OpenCV would allocate it (a 200-byte PNG whose IDAT length
+    # said 2 GB took 2 GB and 4 s to refuse). Each step moves 12 bytes at least.
+    while position < size:
         file.seek(position)
         chunk = file.read(8)
         if len(chunk) < 8:
             break
         length, name = struct.unpack(">I4s", chunk)
-        if name in (b"IDAT", b"IEND"):
-            break
-        if name == b"sBIT" and 1 <= length <= 4:
+        if length > _PNG_MAX_CHUNK or position + 12 + length > size:
+            raise RecordingError(
+                f"is truncated or damaged: its {name!r} chunk at byte {position} claims "
+                f"{length} bytes, past the end of the file ({size} bytes)",
+                path=path,
+            )
+        if name == b"sBIT" and 1 <= length <= 4 and significant is None:
             significant = max(file.read(length))
+        if name == b"IEND":
+            break
         position += 12 + length
     file.seek(max(0, size - len(_PNG_END)))
     if file.read() != _PNG_END:
