@@ -14,10 +14,13 @@ Three ways to read, chosen at open time:
 - "opencv": tifffile cannot decode the compression without the optional
   imagecodecs package (LZW, JPEG): OpenCV's libtiff reads the page instead.
 
-The whole file is never read into memory. tifffile reports damaged files
-through its logger rather than by raising; those reports are turned into a
-:class:`~dropkin.errors.RecordingError` at open time, as is pixel data that
-lies beyond the end of the file (a truncated file).
+The whole file is never read into memory. At open time the structure is
+checked from the tags alone (:mod:`._tiffcheck`): what tifffile logs or raises
+about a damaged file, pixel data beyond the end of the file or over a tag
+directory, byte counts that do not match the frame, pages that differ from the
+first, frames too large to decode (:mod:`._limits`). Any of these is one
+:class:`~dropkin.errors.RecordingError` naming the file (and frame); decoding
+then uses exactly the offsets that were checked.
 """
 
 from __future__ import annotations
