@@ -10,6 +10,7 @@ the property tests in ``tests/hardening/test_reader_properties.py`` found them.
 from __future__ import annotations
 
 import struct
+from pathlib import Path
 
 import cv2
 import numpy as np
@@ -222,3 +223,20 @@ def test_a_png_chunk_longer_than_the_file_is_refused_at_open(tmp_path):
     path.write_bytes(data)
     with pytest.raises(RecordingError, match=r"f\.png: frame 0: .*'IDAT' chunk .* past the end"):
         open_recording(folder, frame_rate=1.0)
+
+
+def test_an_avi_chunk_opencv_asserts_on_is_one_error(tmp_path):
+    # Found by fuzz/fuzz_readers.py (the input is kept in data/, 5.5 kB): FFmpeg
+    # refuses this damaged MJPG AVI, OpenCV falls back to its own AVI reader,
+    # which raised cv2.error (an assertion: chunk size <= 64 MiB). The outcome
+    # must be one RecordingError, or frames if a later OpenCV reads it; never
+    # cv2.error.
+    path = tmp_path / "clip.avi"
+    path.write_bytes((Path(__file__).parent / "data" / "avi_chunk_assertion.avi").read_bytes())
+    try:
+        with open_recording(path, frame_rate=1.0) as rec:
+            frames = np.stack(list(rec))
+    except RecordingError as exc:
+        assert "clip.avi" in str(exc) and "\n" not in str(exc)
+    else:
+        assert frames.ndim == 3 and len(frames) >= 1

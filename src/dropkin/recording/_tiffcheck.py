@@ -428,13 +428,17 @@ def check_claims(tif, path) -> None:
     first = pages.first
     if tif.is_imagej and not first.is_final:
         meta = tif.imagej_metadata or {}
-        sizes = [meta.get(key, 1) for key in ("frames", "slices", "channels")]
-        if all(isinstance(v, int) for v in sizes):
-            claimed = max(
-                meta.get("images", 1) if isinstance(meta.get("images"), int) else 1,
-                math.prod(sizes),
-            )
-            if claimed > count:
+        frames, slices, channels, images = (
+            meta.get(key, 1) for key in ("frames", "slices", "channels", "images")
+        )
+        if all(isinstance(v, int) for v in (frames, slices, channels, images)):
+            # The count tifffile takes: channels are pages unless they are the
+            # samples of colour pages (then images == frames x slices).
+            claimed = frames * slices
+            if channels != 1 and images != claimed:
+                claimed *= channels
+            # Up to 4 samples of a plane may share one page (interleaved colour).
+            if claimed > 4 * count:
                 raise RecordingError(
                     f"is damaged: its ImageJ metadata claim {claimed} images, "
                     f"the file holds {count} pages",
