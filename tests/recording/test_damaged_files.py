@@ -240,3 +240,16 @@ def test_an_avi_chunk_opencv_asserts_on_is_one_error(tmp_path):
         assert "clip.avi" in str(exc) and "\n" not in str(exc)
     else:
         assert frames.ndim == 3 and len(frames) >= 1
+
+
+def test_a_video_frame_count_larger_than_the_file_is_not_believed(tmp_path):
+    # Found by fuzz/fuzz_readers.py (the input is kept in data/, 5 kB): a damaged
+    # AVI whose stream header claims 2**32 - 5 frames, and FFmpeg's seek to that
+    # frame lands on a frame, so the count was believed and the times alone
+    # asked for 32 GiB. A count above the file's size is now re-counted.
+    path = tmp_path / "clip.avi"
+    path.write_bytes((Path(__file__).parent / "data" / "avi_frame_count.avi").read_bytes())
+    assert cv2.VideoCapture(str(path)).get(cv2.CAP_PROP_FRAME_COUNT) == 2**32 - 5
+    with open_recording(path, frame_rate=1.0) as rec:
+        assert len(rec) <= path.stat().st_size
+        assert any("the container says 4294967291 frames" in note for note in rec.notes)

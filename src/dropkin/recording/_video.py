@@ -17,6 +17,7 @@ as the frame rate; it is only reported in the notes.
 from __future__ import annotations
 
 import math
+import os
 from contextlib import contextmanager
 from pathlib import Path
 
@@ -82,8 +83,14 @@ class Video:
         self.container_fps = fps if math.isfinite(fps) and fps > 0 else None
         if self.container_fps is not None:
             notes.append(f"container frame rate {fps:g} fps is a playback rate and was not used")
-        claimed = int(capture.get(cv2.CAP_PROP_FRAME_COUNT))
-        if claimed >= 1 and self._last_frame_is(claimed - 1):
+        count = capture.get(cv2.CAP_PROP_FRAME_COUNT)
+        claimed = int(count) if math.isfinite(count) else 0
+        # Every frame takes at least a byte of the file: a count above the size
+        # is a damaged header, which FFmpeg's seek (clamped to the last frame)
+        # would not reveal; 4294967291 frames claimed by a 5 kB AVI became a
+        # recording of that length. Such a file is counted by decoding.
+        plausible = 1 <= claimed <= os.path.getsize(path)
+        if plausible and self._last_frame_is(claimed - 1):
             self._n = claimed
         else:
             self._n = decoded = self._count_by_decoding()
