@@ -236,18 +236,16 @@ def run_random(campaign: Campaign, corpus: Path, timeout: int, seed: int) -> Non
 def child(args) -> int:
     import resource
 
-    work = Path(tempfile.mkdtemp(prefix=f"dropkin-fuzz-{args.child}-"))
-    try:
-        campaign = Campaign(args.child, work, args.crashes, args.inputs, args.summary)
-        campaign.write_summary()
-        if args.engine == "random":  # the limit libFuzzer's -rss_limit_mb gives atheris
-            limit = args.memory * 2**20 + _vm_bytes()
-            resource.setrlimit(resource.RLIMIT_AS, (limit, limit))
-            run_random(campaign, args.corpus, args.timeout, args.seed)
-        else:
-            run_atheris(campaign, args.corpus, args.timeout, args.memory)
-    finally:
-        shutil.rmtree(work, ignore_errors=True)
+    # The work folder is the parent's (inside its temporary folder): a child
+    # ends with os._exit or is killed by libFuzzer, and cleans up nothing.
+    campaign = Campaign(args.child, args.work, args.crashes, args.inputs, args.summary)
+    campaign.write_summary()
+    if args.engine == "random":  # the limit libFuzzer's -rss_limit_mb gives atheris
+        limit = args.memory * 2**20 + _vm_bytes()
+        resource.setrlimit(resource.RLIMIT_AS, (limit, limit))
+        run_random(campaign, args.corpus, args.timeout, args.seed)
+    else:
+        run_atheris(campaign, args.corpus, args.timeout, args.memory)
     return 0
 
 
@@ -274,6 +272,7 @@ def main(argv=None) -> int:
     parser.add_argument("--child", help=argparse.SUPPRESS)
     parser.add_argument("--corpus", type=Path, help=argparse.SUPPRESS)
     parser.add_argument("--summary", type=Path, help=argparse.SUPPRESS)
+    parser.add_argument("--work", type=Path, help=argparse.SUPPRESS)
     args = parser.parse_args(argv)
     args.crashes = args.crashes.resolve()
     if args.child:
@@ -303,7 +302,7 @@ def main(argv=None) -> int:
             command += ["--summary", str(summary), "--inputs", str(args.inputs)]
             command += ["--crashes", str(args.crashes), "--timeout", str(args.timeout)]
             command += ["--memory", str(args.memory), "--engine", engine]
-            command += ["--seed", str(args.seed)]
+            command += ["--seed", str(args.seed), "--work", str(Path(scratch) / reader / "work")]
             done = subprocess.run(
                 command, capture_output=True, text=True, errors="replace", check=False
             )
