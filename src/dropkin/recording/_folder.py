@@ -16,6 +16,7 @@ as stored (12-bit camera data in 16-bit words are not rescaled).
 from __future__ import annotations
 
 import re
+from contextlib import nullcontext
 from pathlib import Path
 
 import cv2
@@ -25,6 +26,8 @@ import tifffile
 from ..errors import RecordingError
 from ._gray import notes_for_channels, to_gray
 from ._headers import IMAGE_SUFFIXES, FrameHeader, read_header
+from ._libtiff import libtiff_errors
+from ._tiffcheck import tifffile_reports
 
 __all__ = ["FRAME_SUFFIXES", "ImageFolder", "open_image_folder", "natural_key"]
 
@@ -135,15 +138,35 @@ def _decode(file: Path, decoder: str, *, frame: int | None = None) -> np.ndarray
     """One image file as a 2-D grayscale array, its dtype as stored."""
     if decoder == "tifffile":
         try:
-            image = tifffile.imread(file)
+            with tifffile_reports(file, frame=frame):
+                image = tifffile.imread(file)
+        except RecordingError:
+            raise
         except Exception as exc:  # any decoder failure names the file and frame
             raise RecordingError(
                 f"cannot be decoded ({type(exc).__name__}: {exc})",
                 path=file,
                 frame=frame,
             ) from None
+        if image.ndim not in (2, 3) or (image.ndim == 3 and not 1 <= image.shape[2] <= 4):
+            raise RecordingError(
+                f"decodes to an array of shape {image.shape}, not one frame",
+                path=file,
+                frame=frame,
+            )
         return to_gray(image, order="RGB")
-    image = cv2.imread(str(file), cv2.IMREAD_UNCHANGED)
+    checked = (
+        libtiff_errors(file, frame) if file.suffix.lower() in (".tif", ".tiff") else nullcontext()
+    )
+    try:
+        with checked:
+            image = cv2.imread(str(file), cv2.IMREAD_UNCHANGED)
+    except cv2.error as exc:
+        raise RecordingError(
+            f"cannot be decoded by OpenCV ({' '.join(str(exc).split())[-160:]})",
+            path=file,
+            frame=frame,
+        ) from None
     if image is None:
         raise RecordingError(
             "cannot be decoded by OpenCV (damaged, truncated or missing)",

@@ -9,18 +9,25 @@ pages are described by tifffile without decoding pixels. Nothing is decoded.
 from __future__ import annotations
 
 import struct
+import zlib
 from dataclasses import dataclass
 from pathlib import Path
 
 import numpy as np
 
 from ..errors import RecordingError
-from ._tiff import (
-    TIFF_SUFFIXES,
-    check_page_extent,
+from ._limits import check_frame_size
+from ._tiff import TIFF_SUFFIXES
+from ._tiffcheck import (
+    check_claims,
+    check_data_apart,
+    check_frame_page,
+    check_tag_order,
+    decoder_for,
     frame_layout,
+    ifd_offsets,
     open_tifffile,
-    tifffile_decodes,
+    sample_bits,
     tifffile_reports,
 )
 
@@ -81,28 +88,55 @@ def read_header(path: Path) -> FrameHeader:
 _PNG_SIGNATURE = b"\x89PNG\r\n\x1a\n"
 _PNG_END = b"\x00\x00\x00\x00IEND\xaeB`\x82"  # the IEND chunk, with its CRC
 _PNG_CHANNELS = {0: 1, 2: 3, 3: 3, 4: 2, 6: 4}
+_PNG_MAX_CHUNK = 2**31 - 1  # longest chunk the PNG specification allows (5.3)
+# Bit depths allowed for each colour type (PNG specification, 11.2.2 IHDR).
+_PNG_DEPTHS = {0: (1, 2, 4, 8, 16), 2: (8, 16), 3: (1, 2, 4, 8), 4: (8, 16), 6: (8, 16)}
 
 
 def _png_header(file, size: int, path) -> FrameHeader:
     head = file.read(33)
     if len(head) < 33 or head[:8] != _PNG_SIGNATURE or head[12:16] != b"IHDR":
         raise RecordingError("is not a PNG file (no PNG signature and header)", path=path)
-    cols, rows, depth, colour = struct.unpack(">IIBB", head[16:26])
+    length, crc = struct.unpack(">I", head[8:12])[0], struct.unpack(">I", head[29:33])[0]
+    if length != 13 or zlib.crc32(head[12:29]) != crc:
+        raise RecordingError("has a damaged PNG header (IHDR checksum)", path=path)
+    cols, rows, depth, colour, method, filtering, interlace = struct.unpack(
+        ">IIBBBBB", head[16:29]
+    )
     channels = _PNG_CHANNELS.get(colour)
-    if channels is None or rows == 0 or cols == 0:
+    if (
+        channels is None
+        or depth not in _PNG_DEPTHS[colour]
+        or rows == 0
+        or cols == 0
+        or (method, filtering) != (0, 0)
+        or interlace not in (0, 1)
+    ):
         raise RecordingError("has a damaged PNG header", path=path)
+    dtype = np.dtype(np.uint16 if depth == 16 else np.uint8)
+    # OpenCV decodes palette images to colour and may add an alpha channel.
+    check_frame_size((rows, cols, 1 if channels == 1 else 4), dtype.itemsize, path=path)
     significant = None
     position = 33
-    for _ in range(10_000):  # walk the chunks before the pixel data
+    # Walk every chunk to the end: a length that runs past the end of the file
+    # is damage, and OpenCV would allocate it (a 200-byte PNG whose IDAT length
+    # said 2 GB took 2 GB and 4 s to refuse). Each step moves 12 bytes at least.
+    while position < size:
         file.seek(position)
         chunk = file.read(8)
         if len(chunk) < 8:
             break
         length, name = struct.unpack(">I4s", chunk)
-        if name in (b"IDAT", b"IEND"):
-            break
-        if name == b"sBIT" and 1 <= length <= 4:
+        if length > _PNG_MAX_CHUNK or position + 12 + length > size:
+            raise RecordingError(
+                f"is truncated or damaged: its {name!r} chunk at byte {position} claims "
+                f"{length} bytes, past the end of the file ({size} bytes)",
+                path=path,
+            )
+        if name == b"sBIT" and 1 <= length <= 4 and significant is None:
             significant = max(file.read(length))
+        if name == b"IEND":
+            break
         position += 12 + length
     file.seek(max(0, size - len(_PNG_END)))
     if file.read() != _PNG_END:
@@ -110,7 +144,6 @@ def _png_header(file, size: int, path) -> FrameHeader:
             "is truncated or damaged: it does not end with the PNG end chunk",
             path=path,
         )
-    dtype = np.dtype(np.uint16 if depth == 16 else np.uint8)
     if significant is not None and not 1 <= significant < 8 * dtype.itemsize:
         significant = None
     return FrameHeader(rows, cols, dtype, channels, significant)
@@ -133,6 +166,12 @@ def _bmp_header(file, size: int, path) -> FrameHeader:
     rows = abs(rows)  # negative: stored top row first
     if rows == 0 or cols <= 0 or bits not in (1, 4, 8, 16, 24, 32):
         raise RecordingError("has a damaged BMP header", path=path)
+    if bits <= 8 and n_colours > 2**bits:
+        raise RecordingError(
+            f"has a damaged BMP header ({n_colours} palette colours for {bits}-bit pixels)",
+            path=path,
+        )
+    check_frame_size((rows, cols, 4), 1, path=path)  # OpenCV may decode to 4 channels
     if compression in (0, 3):  # uncompressed rows, each padded to 4 bytes
         stride = (bits * cols + 31) // 32 * 4
         if data_offset + stride * rows > size:
@@ -188,12 +227,13 @@ def _jpeg_header(file, size: int, path) -> FrameHeader:
         position += 2 + struct.unpack(">H", segment[:2])[0]
     if rows == 0 or cols == 0:
         raise RecordingError("has a JPEG header without a frame size", path=path)
+    dtype = np.dtype(np.uint8 if precision <= 8 else np.uint16)
+    check_frame_size((rows, cols, 1 if components == 1 else 3), dtype.itemsize, path=path)
     # A truncated JPEG still decodes (the rest filled with gray), so look for the
     # end-of-image marker near the end; FF D9 cannot occur inside coded data.
     file.seek(max(0, size - 1024))
     if b"\xff\xd9" not in file.read():
         raise RecordingError("is truncated: no JPEG end-of-image marker at the end", path=path)
-    dtype = np.dtype(np.uint8 if precision <= 8 else np.uint16)
     return FrameHeader(rows, cols, dtype, 1 if components == 1 else 3)
 
 
@@ -201,6 +241,7 @@ def _tiff_header(path: Path, size: int) -> FrameHeader:
     with tifffile_reports(path):
         tif = open_tifffile(path)
         try:
+            check_claims(tif, path)
             if not tif.series:
                 raise RecordingError("holds no image", path=path)
             series = tif.series[0]
@@ -211,16 +252,20 @@ def _tiff_header(path: Path, size: int) -> FrameHeader:
                     path=path,
                 )
             key = series.keyframe
-            check_page_extent(key, size, path, None)
             dtype = np.dtype(series.dtype)
-            bits = int(key.bitspersample)
+            decoder = decoder_for(key, path)
+            check_frame_page(key, dtype, frame_shape, path, None, decoder=decoder)
+            check_data_apart([key], ifd_offsets(tif), size, path)
+            if decoder == "opencv":
+                check_tag_order(key, path, None)
+            bits = sample_bits(key, path)
             return FrameHeader(
                 rows=frame_shape[0],
                 cols=frame_shape[1],
                 dtype=dtype,
                 channels=frame_shape[2] if len(frame_shape) == 3 else 1,
                 bit_depth=bits if 0 < bits < 8 * dtype.itemsize else None,
-                decoder="tifffile" if tifffile_decodes(key) else "opencv",
+                decoder=decoder,
             )
         finally:
             tif.close()

@@ -209,6 +209,13 @@ def _select(frames, path, rate, origin, pixel_size, first_frame, last_frame):
         origin = timing.origin
         if timing.times is not None:
             times = timing.times[first : last + 1] - timing.times[first]
+            if np.any(np.diff(times) <= 0):  # rounding of times far from zero
+                raise RecordingError(
+                    f"the file's frame times do not increase from frame {first} on "
+                    "(rounding of times far from zero); give the frame rate instead",
+                    path=path,
+                    key="recording.frame_rate",
+                )
             rate = _regular_rate(times)
             if rate is None and len(times) > 1:
                 notes.append("the file's frame times are irregular: no single frame rate")

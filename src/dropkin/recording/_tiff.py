@@ -14,19 +14,19 @@ Three ways to read, chosen at open time:
 - "opencv": tifffile cannot decode the compression without the optional
   imagecodecs package (LZW, JPEG): OpenCV's libtiff reads the page instead.
 
-The whole file is never read into memory. tifffile reports damaged files
-through its logger rather than by raising; those reports are turned into a
-:class:`~dropkin.errors.RecordingError` at open time, as is pixel data that
-lies beyond the end of the file (a truncated file).
+The whole file is never read into memory. At open time the structure is
+checked from the tags alone (:mod:`._tiffcheck`): what tifffile logs or raises
+about a damaged file, pixel data beyond the end of the file or over a tag
+directory, byte counts that do not match the frame, pages that differ from the
+first, frames too large to decode (:mod:`._limits`). Any of these is one
+:class:`~dropkin.errors.RecordingError` naming the file (and frame); decoding
+then uses exactly the offsets that were checked.
 """
 
 from __future__ import annotations
 
-import logging
 import math
 import os
-import re
-from contextlib import contextmanager
 from pathlib import Path
 
 import cv2
@@ -36,83 +36,27 @@ import tifffile
 from ..errors import RecordingError
 from ._base import FileTiming
 from ._gray import notes_for_channels, to_gray
+from ._libtiff import libtiff_errors
+from ._tiffcheck import (
+    check_claims,
+    check_contiguous_frames,
+    check_data_apart,
+    check_frame_page,
+    check_pages_alike,
+    check_tag_order,
+    code_name,
+    decoder_for,
+    frame_layout,
+    ifd_offsets,
+    open_tifffile,
+    sample_bits,
+    tifffile_reports,
+)
 from ._tifftime import timing_from_imagej, timing_from_ome
 
-__all__ = ["TIFF_SUFFIXES", "TiffStack", "open_tiff_stack", "tifffile_reports"]
+__all__ = ["TIFF_SUFFIXES", "TiffStack", "open_tiff_stack"]
 
 TIFF_SUFFIXES = (".tif", ".tiff")
-
-
-class _Collect(logging.Handler):
-    def __init__(self) -> None:
-        super().__init__(logging.ERROR)
-        self.messages: list[str] = []
-
-    def emit(self, record: logging.LogRecord) -> None:
-        # Drop tifffile's leading object repr, "<tifffile.TiffPages @8> ...".
-        self.messages.append(re.sub(r"^<[^>]*>\s*", "", record.getMessage()))
-
-
-@contextmanager
-def tifffile_reports(path):
-    """Turn errors that tifffile logs inside the block into a RecordingError."""
-    handler = _Collect()
-    logger = logging.getLogger("tifffile")
-    logger.addHandler(handler)
-    try:
-        yield
-    finally:
-        logger.removeHandler(handler)
-    if handler.messages:
-        raise RecordingError(
-            f"is damaged or truncated (tifffile: {handler.messages[0]})", path=path
-        )
-
-
-def open_tifffile(path: Path) -> tifffile.TiffFile:
-    """Open with tifffile, any failure becoming a RecordingError."""
-    try:
-        return tifffile.TiffFile(path)
-    except Exception as exc:  # tifffile raises TiffFileError, ValueError, OSError...
-        raise RecordingError(f"cannot be read as a TIFF file ({exc})", path=path) from None
-
-
-def tifffile_decodes(page) -> bool:
-    """Whether tifffile can decode `page` without optional packages."""
-    return (
-        page.compression in tifffile.TIFF.DECOMPRESSORS
-        and page.predictor in tifffile.TIFF.PREDICTORS
-    )
-
-
-def check_page_extent(page, size: int, path, frame: int) -> None:
-    """Raise if the pixel data of `page` run past `size` bytes (a truncated file)."""
-    for offset, count in zip(page.dataoffsets, page.databytecounts, strict=True):
-        if offset + count > size:
-            raise RecordingError(
-                f"is truncated: the pixel data of this frame end beyond the end "
-                f"of the file ({size} bytes)",
-                path=path,
-                frame=frame,
-            )
-
-
-def frame_layout(series, path) -> tuple[str, tuple[int, ...], int]:
-    """Split a series into frames: (frame axes, frame shape, number of frames)."""
-    axes, shape = series.axes, tuple(series.shape)
-    if axes.endswith("YXS"):
-        tail = 3
-    elif axes.endswith("YX"):
-        tail = 2
-    else:
-        raise RecordingError(
-            f"has image axes {axes!r}; expected frames of rows and columns "
-            "(axes ending in YX or YXS)",
-            path=path,
-        )
-    if tail == 3 and not 1 <= shape[-1] <= 4:
-        raise RecordingError(f"has {shape[-1]} samples per pixel; expected 1 to 4", path=path)
-    return axes[:-tail], shape[-tail:], math.prod(shape[:-tail])
 
 
 class TiffStack:
@@ -128,6 +72,7 @@ class TiffStack:
         with tifffile_reports(path):
             tif = open_tifffile(path)
             try:
+                check_claims(tif, path)
                 self._inspect(tif, os.path.getsize(path))
             finally:
                 tif.close()
@@ -139,45 +84,32 @@ class TiffStack:
         series = tif.series[0]
         frame_axes, frame_shape, n = frame_layout(series, path)
         key = series.keyframe
-        same = [
-            s
-            for s in tif.series
-            if s.axes == series.axes and s.shape == series.shape and len(s) == 1
-        ]
-        if not frame_axes and len(tif.series) > 1 and len(same) == len(tif.series):
-            pages, n = [s[0] for s in tif.series], len(tif.series)
-            self._mode = "pages"
-        elif series.dataoffset is not None and key.is_final:
-            pages, self._mode = None, "raw"
-        elif len(series) == n:
-            pages, self._mode = list(series), "pages"
-        else:
-            raise RecordingError(
-                f"stores {n} frames in {len(series)} compressed pages; "
-                "only one frame per page can be streamed",
-                path=path,
-            )
+        dtype = np.dtype(series.dtype)
+        notes: list[str] = []
+        pages = self._choose_mode(tif, series, frame_axes, frame_shape, n, notes)
+        if pages is not None:
+            n = len(pages)
         if n == 0:
             raise RecordingError("holds no frame", path=path)
+        decoder = decoder_for(key, path)
+        check_frame_page(key, dtype, frame_shape, path, None, decoder=decoder)
         self._n = n
         self._frame_shape = frame_shape
         self.shape = frame_shape[:2]
-        self.dtype = np.dtype(series.dtype)
+        self.dtype = dtype
         self._order = "RGB"
-        notes = list(notes_for_channels(frame_shape[2] if len(frame_shape) == 3 else 1))
-        bits = int(key.bitspersample)
-        self.bit_depth = min(bits, 8 * self.dtype.itemsize) if bits > 0 else 8
+        notes[:0] = notes_for_channels(frame_shape[2] if len(frame_shape) == 3 else 1)
+        bits = sample_bits(key, path)
+        self.bit_depth = min(bits, 8 * dtype.itemsize) if bits > 0 else 8
         # MaxSampleValue (TIFF 6.0 tag 281) tells a 12-bit camera's 4095 in
         # 16-bit words; it describes the data, it is never used to rescale.
-        max_tag = key.tags.get(281)
-        if max_tag is not None and self.dtype.kind == "u":
-            top = int(np.max(np.ravel(max_tag.value)))
-            if 0 < top < (1 << self.bit_depth) - 1:
-                self.bit_depth = max(int(top).bit_length(), 1)
+        top = _max_sample_value(key)
+        if top is not None and dtype.kind == "u" and 0 < top < (1 << self.bit_depth) - 1:
+            self.bit_depth = max(top.bit_length(), 1)
         if self._mode == "raw":
             self._offset = int(series.dataoffset)
-            self._file_dtype = self.dtype.newbyteorder(tif.byteorder)
-            self._frame_bytes = math.prod(frame_shape) * self.dtype.itemsize
+            self._file_dtype = dtype.newbyteorder(tif.byteorder)
+            self._frame_bytes = math.prod(frame_shape) * dtype.itemsize
             if self._offset + n * self._frame_bytes > size:
                 frame = max(0, (size - self._offset) // self._frame_bytes)
                 raise RecordingError(
@@ -186,16 +118,28 @@ class TiffStack:
                     path=path,
                     frame=frame,
                 )
+            check_contiguous_frames(tif, series, n, self._offset, self._frame_bytes, path)
         else:
-            for i, page in enumerate(pages):
-                if page is None:
-                    raise RecordingError("page is missing", path=path, frame=i)
-                check_page_extent(page, size, path, i)
+            if decoder == "opencv":  # libtiff reads every page's own tags: check them all
+                pages = [_full_page(tif, page) for page in pages]
+                for k, page in enumerate(pages):
+                    check_tag_order(page, path, k)
+            check_pages_alike(pages, key, path)
+            for k, page in enumerate(pages):
+                check_frame_page(page, dtype, frame_shape, path, k, decoder=decoder)
+            check_data_apart(pages, ifd_offsets(tif), size, path)
             self._pages = [int(np.ravel(page.index)[0]) for page in pages]
-            if not tifffile_decodes(key):
+            self._key_page = int(np.ravel(key.index)[0])
+            # Where each frame's data are, as checked: decoding uses these, not
+            # a second parse of the tags (which could read them differently).
+            self._segments = [
+                (tuple(map(int, page.dataoffsets)), tuple(map(int, page.databytecounts)))
+                for page in pages
+            ]
+            if decoder == "opencv":
                 self._mode, self._order = "opencv", "BGR"
                 notes.append(
-                    f"TIFF compression {key.compression.name} decoded by OpenCV "
+                    f"TIFF compression {code_name(key.compression)} decoded by OpenCV "
                     "(tifffile would need the optional imagecodecs package)"
                 )
         timing, timing_notes = timing_from_ome(tif.ome_metadata, n)
@@ -205,6 +149,56 @@ class TiffStack:
         self.timing: FileTiming | None = timing
         self.timing_notes = timing_notes  # timing found but not trusted, and why
         self.notes = (*notes, *timing_notes)
+
+    def _choose_mode(self, tif, series, frame_axes, frame_shape, n: int, notes: list[str]):
+        """Set ``self._mode``; return the pages that are the frames (None for "raw")."""
+        path = self.path
+        everything = tif.series
+        same = [
+            s
+            for s in everything
+            if s.axes == series.axes and s.shape == series.shape and len(s) == 1
+        ]
+        if not frame_axes and len(everything) > 1 and len(same) == len(everything):
+            self._mode = "pages"  # pages written one by one: each its own series
+            return [s[0] for s in everything]
+        alike = [s for s in everything if _frames_of(s, path) == _frames_of(series, path)]
+        if len(alike) > 1:
+            counts = ", ".join(str(math.prod(s.shape[: -len(frame_shape)])) for s in alike)
+            rows, cols = frame_shape[:2]
+            raise RecordingError(
+                f"holds {len(alike)} image series of {rows} x {cols} {series.dtype} frames "
+                f"({counts} frames); cannot tell which one is the recording",
+                path=path,
+            )
+        others = everything[1:]
+        if any(not _is_preview(s) for s in others):
+            sizes = ", ".join(
+                " x ".join(map(str, s.shape)) + f" {s.dtype}" for s in everything[:4]
+            )
+            raise RecordingError(
+                f"holds {len(everything)} images of different sizes ({sizes}); "
+                "expected one stack of frames",
+                path=path,
+            )
+        if others:
+            notes.append(f"{len(others)} reduced-resolution preview image(s) were not read")
+        key = series.keyframe
+        if (
+            series.dataoffset is not None
+            and key.is_final
+            and sample_bits(key, path) == 8 * np.dtype(series.dtype).itemsize
+        ):
+            self._mode = "raw"
+            return None
+        if len(series) == n:
+            self._mode = "pages"
+            return list(series)
+        raise RecordingError(
+            f"stores {n} frames in {len(series)} compressed pages; "
+            "only one frame per page can be streamed",
+            path=path,
+        )
 
     def __len__(self) -> int:
         return self._n
@@ -283,28 +277,78 @@ class TiffStack:
     def _read_pages(self, start: int, stop: int) -> np.ndarray:
         if self._tif is None:
             with tifffile_reports(self.path):
-                self._tif = open_tifffile(self.path)
+                tif = open_tifffile(self.path)
+                tif.pages.set_keyframe(self._key_page)
+                self._tif = tif
+        key = self._tif.pages.keyframe
         block = np.empty((stop - start, *self._frame_shape), dtype=self.dtype)
         for k in range(start, stop):
+            offsets, counts = self._segments[k]
             try:
-                block[k - start] = self._tif.pages[self._pages[k]].asarray()
+                with tifffile_reports(self.path, frame=k):
+                    # Every page decodes with the first page's tags and the data
+                    # found at open time (checked to be the same for all pages).
+                    page = tifffile.TiffFrame(
+                        self._tif,
+                        index=self._pages[k],
+                        keyframe=key,
+                        dataoffsets=offsets,
+                        databytecounts=counts,
+                    )
+                    image = page.asarray()
+            except RecordingError:
+                raise
             except Exception as exc:  # any decoder failure names the frame
                 raise RecordingError(
                     f"cannot be decoded ({type(exc).__name__}: {exc})",
                     path=self.path,
                     frame=k,
                 ) from None
+            if image.shape != block.shape[1:]:
+                raise RecordingError(
+                    f"decodes to an array of shape {image.shape}, "
+                    f"the stack's frames are {block.shape[1:]}",
+                    path=self.path,
+                    frame=k,
+                )
+            block[k - start] = image
         return block
 
     def _read_opencv(self, start: int, stop: int) -> np.ndarray:
         first, count = self._pages[start], stop - start
         if self._pages[stop - 1] - first != count - 1:  # not consecutive pages
             return np.concatenate([self._read_opencv(k, k + 1) for k in range(start, stop)])
-        ok, images = cv2.imreadmulti(
-            str(self.path), start=first, count=count, flags=cv2.IMREAD_UNCHANGED
-        )
+        try:
+            with libtiff_errors(self.path, frame=start):
+                ok, images = cv2.imreadmulti(
+                    str(self.path), start=first, count=count, flags=cv2.IMREAD_UNCHANGED
+                )
+        except RecordingError:
+            if count == 1:
+                raise
+            # Decode page by page to name the frame libtiff complained about.
+            return np.concatenate([self._read_opencv(k, k + 1) for k in range(start, stop)])
+        except cv2.error as exc:
+            raise RecordingError(
+                f"cannot be decoded by OpenCV ({' '.join(str(exc).split())[-160:]})",
+                path=self.path,
+                frame=start,
+            ) from None
         if not ok or len(images) != count:
             raise RecordingError("cannot be decoded by OpenCV", path=self.path, frame=start)
+        for k, image in enumerate(images):
+            if image.shape[:2] != self.shape or image.dtype != self.dtype:
+                raise RecordingError(
+                    f"decodes to {' x '.join(map(str, image.shape))} {image.dtype}, "
+                    f"the stack's frames are {' x '.join(map(str, self._frame_shape))} "
+                    f"{self.dtype}",
+                    path=self.path,
+                    frame=start + k,
+                )
+        if len({image.shape for image in images}) > 1:
+            raise RecordingError(
+                "decodes to frames of different sample counts", path=self.path, frame=start
+            )
         return np.stack(images)
 
     # -- resources -----------------------------------------------------------
@@ -324,6 +368,41 @@ class TiffStack:
         state = dict(self.__dict__)
         state["_file"] = state["_tif"] = None
         return state
+
+
+def _frames_of(series, path):
+    """(frame shape, dtype) of a series, or None when it is not made of frames."""
+    try:
+        return frame_layout(series, path)[1], np.dtype(series.dtype)
+    except RecordingError:
+        return None
+
+
+def _is_preview(series) -> bool:
+    """Whether a series is a reduced-resolution image (NewSubfileType bit 0, TIFF 6.0)."""
+    try:
+        return bool(series.keyframe.is_reduced)
+    except AttributeError:
+        return False
+
+
+def _full_page(tif, page):
+    """`page` with all its tags parsed (a TiffPage), also when tifffile gave a TiffFrame."""
+    if not isinstance(page, tifffile.TiffFrame):
+        return page
+    tif.filehandle.seek(page.offset)
+    return tifffile.TiffPage(tif, index=page.index)
+
+
+def _max_sample_value(page) -> int | None:
+    """The MaxSampleValue tag (281) as an int, or None when absent or not a number."""
+    tag = page.tags.get(281)
+    if tag is None:
+        return None
+    values = np.ravel(np.asarray(tag.value, dtype=object))
+    if not len(values) or not all(isinstance(v, (int, np.integer)) for v in values):
+        return None
+    return int(max(values))
 
 
 def open_tiff_stack(path: Path) -> TiffStack:

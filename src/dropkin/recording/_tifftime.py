@@ -48,10 +48,34 @@ def _seconds(value, unit) -> float | None:
     """`value` in `unit` as seconds, or None when either cannot be read."""
     try:
         number = float(value)
-    except (TypeError, ValueError):
+    except (TypeError, ValueError, OverflowError):
         return None
     factor = _SECONDS.get(str(unit).strip().lower())
     return None if factor is None else number * factor
+
+
+# Longest frame interval taken from a file: 10^6 s (11.6 days). A longer one
+# is no recording of drops, and with it the times of a long stack would leave
+# the range of floating point.
+_LONGEST_INTERVAL = 1e6
+
+
+def _usable(interval: float | None) -> bool:
+    """Whether `interval` is a positive time, at most 10^6 s, whose rate is finite."""
+    return (
+        interval is not None
+        and math.isfinite(interval)
+        and 0 < interval <= _LONGEST_INTERVAL
+        and math.isfinite(1.0 / interval)
+    )
+
+
+def _count(text, default: int) -> int | None:
+    """An OME integer attribute, or None when it is not one."""
+    try:
+        return int(text if text is not None else default)
+    except (TypeError, ValueError):
+        return None
 
 
 def timing_from_imagej(
@@ -76,7 +100,7 @@ def timing_from_imagej(
         return None, ()
     unit = metadata.get("tunit", "s")
     interval = _seconds(metadata["finterval"], unit)
-    if interval is None or not math.isfinite(interval) or interval <= 0:
+    if not _usable(interval):
         value = metadata["finterval"]
         return None, (f"ImageJ finterval = {value!r} {unit} is not a positive time; not used",)
     if len(frame_axes) > 1 or not set(frame_axes) <= _TIME_AXES:
@@ -118,18 +142,26 @@ def timing_from_ome(xml: str | None, n_frames: int) -> tuple[FileTiming | None, 
     pixels = next((e for e in root.iter() if _local(e.tag) == "Pixels"), None)
     if pixels is None:
         return None, ()
-    sizes = [int(pixels.get(f"Size{a}", "1")) for a in "ZC"]
+    sizes = [_count(pixels.get(f"Size{a}"), 1) for a in "ZC"]
     if sizes != [1, 1]:
         return None, ("OME timing not used: the stack has several Z planes or channels",)
     notes: list[str] = []
     planes = [e for e in pixels if _local(e.tag) == "Plane" and "DeltaT" in e.attrib]
+    if planes and any(_count(e.get("TheT"), 0) is None for e in planes):
+        notes.append("OME DeltaT not used: a plane's TheT is not an integer")
+        planes = []
     if planes:
-        order = sorted(planes, key=lambda e: int(e.get("TheT", "0")))
+        order = sorted(planes, key=lambda e: _count(e.get("TheT"), 0))
         times = np.array(
             [_seconds(e.get("DeltaT"), e.get("DeltaTUnit", "s")) for e in order],
             dtype=float,
         )
-        good = len(times) == n_frames and np.all(np.isfinite(times)) and np.all(np.diff(times) > 0)
+        good = len(times) == n_frames and bool(np.all(np.isfinite(times)))
+        if good and len(times) > 1:
+            with np.errstate(over="ignore"):  # finite times whose steps overflow
+                times = times - times[0]  # the increase must survive this, too
+                steps = np.diff(times)
+                good = bool(np.all(steps > 0)) and _usable(float(np.mean(steps)))
         if good:
             return FileTiming("file timestamps (OME DeltaT)", times=times), ()
         notes.append(
@@ -138,7 +170,7 @@ def timing_from_ome(xml: str | None, n_frames: int) -> tuple[FileTiming | None, 
         )
     if "TimeIncrement" in pixels.attrib:
         interval = _seconds(pixels.get("TimeIncrement"), pixels.get("TimeIncrementUnit", "s"))
-        if interval is not None and math.isfinite(interval) and interval > 0:
+        if _usable(interval):
             origin = "file metadata (OME TimeIncrement)"
             return FileTiming(origin, interval=interval), tuple(notes)
         notes.append("OME TimeIncrement is not a positive time; not used")

@@ -17,6 +17,8 @@ as the frame rate; it is only reported in the notes.
 from __future__ import annotations
 
 import math
+import os
+from contextlib import contextmanager
 from pathlib import Path
 
 import cv2
@@ -32,6 +34,22 @@ __all__ = ["VIDEO_SUFFIXES", "Video", "open_video"]
 VIDEO_SUFFIXES = (".avi", ".mp4", ".mov", ".mkv", ".m4v", ".wmv", ".mpg", ".mpeg")
 
 
+@contextmanager
+def opencv_errors(path, frame: int | None = None):
+    """Turn an exception OpenCV raises on a damaged file into a RecordingError.
+
+    OpenCV's own AVI reader asserts on damaged chunks (``cv2.error``) where
+    FFmpeg would return no frame; both are the file's fault.
+    """
+    try:
+        yield
+    except cv2.error as exc:
+        said = " ".join(str(exc).split())[-160:]
+        raise RecordingError(
+            f"cannot be decoded by OpenCV ({said})", path=path, frame=frame
+        ) from None
+
+
 class Video:
     """The frames of a video file; made by :func:`open_video`."""
 
@@ -43,6 +61,15 @@ class Video:
         self.path = path
         self._capture = None
         self._next: int | None = None
+        try:
+            with opencv_errors(path):
+                self._inspect()
+        except BaseException:
+            self.close()
+            raise
+
+    def _inspect(self) -> None:
+        path = self.path
         capture = self._open()
         ok, image = capture.read()
         if not ok:
@@ -56,8 +83,14 @@ class Video:
         self.container_fps = fps if math.isfinite(fps) and fps > 0 else None
         if self.container_fps is not None:
             notes.append(f"container frame rate {fps:g} fps is a playback rate and was not used")
-        claimed = int(capture.get(cv2.CAP_PROP_FRAME_COUNT))
-        if claimed >= 1 and self._last_frame_is(claimed - 1):
+        count = capture.get(cv2.CAP_PROP_FRAME_COUNT)
+        claimed = int(count) if math.isfinite(count) else 0
+        # Every frame takes at least a byte of the file: a count above the size
+        # is a damaged header, which FFmpeg's seek (clamped to the last frame)
+        # would not reveal; 4294967291 frames claimed by a 5 kB AVI became a
+        # recording of that length. Such a file is counted by decoding.
+        plausible = 1 <= claimed <= os.path.getsize(path)
+        if plausible and self._last_frame_is(claimed - 1):
             self._n = claimed
         else:
             self._n = decoded = self._count_by_decoding()
@@ -113,10 +146,15 @@ class Video:
         return self._n
 
     def _read(self, i: int) -> np.ndarray:
-        capture = self._open()
-        if i != self._next:
-            capture.set(cv2.CAP_PROP_POS_FRAMES, i)
-        ok, image = capture.read()
+        try:
+            with opencv_errors(self.path, frame=i):
+                capture = self._open()
+                if i != self._next:
+                    capture.set(cv2.CAP_PROP_POS_FRAMES, i)
+                ok, image = capture.read()
+        except RecordingError:
+            self._next = None
+            raise
         if not ok:
             self._next = None
             raise RecordingError(
