@@ -454,10 +454,6 @@ def recording_cases():
         words=["f_1.png", "frame 1"],
         commands=["info"],
         about="16-bit frames whose sBIT chunks say 12 and 10 significant bits",
-        xfail=(
-            "reader bug: frames of one folder whose significant bits differ (sBIT 12 and 10) "
-            "are accepted silently as a 16-bit recording (src/dropkin/recording/_folder.py)"
-        ),
     )
     folder(
         "zero_byte_png",

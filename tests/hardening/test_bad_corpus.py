@@ -407,11 +407,6 @@ def test_known_bugs(case, command, goods, tmp_path, complete):
     assert not problems, problems
 
 
-@pytest.mark.xfail(
-    strict=True,
-    reason="reader bug: OpenCV's libpng writes 'libpng error: ...' straight to the process's "
-    "stderr before dropkin's one line (src/dropkin/recording/_folder.py decodes with cv2.imread)",
-)
 def test_a_damaged_png_gives_one_line_in_a_real_subprocess(goods, tmp_path, complete):
     (case,) = [c for c in CASES if c.name == "damaged_png_data"]
     problems = _run_case(case, "measure", goods, tmp_path, complete, runner=_subprocess)

@@ -26,7 +26,7 @@ import tifffile
 from ..errors import RecordingError
 from ._gray import notes_for_channels, to_gray
 from ._headers import IMAGE_SUFFIXES, FrameHeader, read_header
-from ._libtiff import libtiff_errors
+from ._libtiff import libpng_errors, libtiff_errors
 from ._tiffcheck import tifffile_reports
 
 __all__ = ["FRAME_SUFFIXES", "ImageFolder", "open_image_folder", "natural_key"]
@@ -82,6 +82,7 @@ class ImageFolder:
             )
         first = self._header(files[0], 0)
         headers = [first]
+        declared = (0, first) if first.bit_depth is not None else None
         for i, file in enumerate(files[1:], start=1):
             header = self._header(file, i)
             if header.describe() != first.describe():
@@ -91,6 +92,18 @@ class ImageFolder:
                     path=file,
                     frame=i,
                 )
+            if header.bit_depth is not None:
+                # One camera, one depth: frames that declare different
+                # significant bits do not belong to one recording.
+                if declared is not None and header.bit_depth != declared[1].bit_depth:
+                    j, other = declared
+                    raise RecordingError(
+                        f"declares {header.bit_depth} significant bits, frame {j} "
+                        f"({files[j].name}) {other.bit_depth}",
+                        path=file,
+                        frame=i,
+                    )
+                declared = declared or (i, header)
             headers.append(header)
         self.files = tuple(files)
         self.shape = (first.rows, first.cols)
@@ -155,9 +168,13 @@ def _decode(file: Path, decoder: str, *, frame: int | None = None) -> np.ndarray
                 frame=frame,
             )
         return to_gray(image, order="RGB")
-    checked = (
-        libtiff_errors(file, frame) if file.suffix.lower() in (".tif", ".tiff") else nullcontext()
-    )
+    suffix = file.suffix.lower()
+    if suffix in (".tif", ".tiff"):
+        checked = libtiff_errors(file, frame)
+    elif suffix == ".png":
+        checked = libpng_errors(file, frame)
+    else:
+        checked = nullcontext()
     try:
         with checked:
             image = cv2.imread(str(file), cv2.IMREAD_UNCHANGED)

@@ -27,7 +27,7 @@ import cv2
 
 from ..errors import RecordingError
 
-__all__ = ["libtiff_errors"]
+__all__ = ["libtiff_errors", "libpng_errors"]
 
 _LOG = cv2.utils.logging
 
@@ -57,3 +57,32 @@ def libtiff_errors(path, frame: int | None = None):
     if errors:
         said = " ".join(errors[0].split("TIFF_Error", 1)[1].split())[:160]
         raise RecordingError(f"cannot be decoded (libtiff: {said})", path=path, frame=frame)
+
+
+@contextmanager
+def libpng_errors(path, frame: int | None = None):
+    """Keep libpng's complaints off standard error while OpenCV decodes a PNG.
+
+    On a damaged PNG, libpng writes ``libpng error: ...`` straight to the
+    process's standard error and OpenCV returns no image; the caller then
+    raises its own one-line error. The block's output is captured, and a
+    libpng error in it becomes that RecordingError here, with libpng's words.
+    """
+    try:
+        saved = os.dup(2)
+    except OSError:  # no standard error to redirect
+        yield
+        return
+    with tempfile.TemporaryFile() as log:
+        try:
+            os.dup2(log.fileno(), 2)
+            yield
+        finally:
+            os.dup2(saved, 2)
+            os.close(saved)
+            log.seek(0)
+            text = log.read().decode("utf-8", errors="replace")
+    errors = [line for line in text.splitlines() if "libpng error" in line]
+    if errors:
+        said = " ".join(errors[0].split("libpng error", 1)[1].lstrip(": ").split())[:160]
+        raise RecordingError(f"cannot be decoded (libpng: {said})", path=path, frame=frame)
