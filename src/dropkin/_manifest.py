@@ -157,13 +157,12 @@ def _analysis(table: dict, base: dict, path, where: str, resolve) -> dict:
 
 
 def _roi(value, path, key):
-    try:
-        rows, cols = str(value).split(",")
-        r0, r1 = (int(v) for v in rows.split(":"))
-        c0, c1 = (int(v) for v in cols.split(":"))
-    except ValueError:
+    from .pipeline import parse_roi
+
+    if not isinstance(value, str):
         _fail("is not a region", path, key, value=value, expected="'ROW0:ROW1,COL0:COL1'")
-    if not isinstance(value, str) or r0 < 0 or c0 < 0 or r1 <= r0 or c1 <= c0:
+    r0, r1, c0, c1 = parse_roi(value, key=key, path=path)
+    if r0 < 0 or c0 < 0 or r1 <= r0 or c1 <= c0:
         _fail("is not a region", path, key, value=value, expected="'ROW0:ROW1,COL0:COL1'")
     return (r0, r1, c0, c1)
 

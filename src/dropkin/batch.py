@@ -122,7 +122,7 @@ def _ci(values, index):
     return values[index]
 
 
-def _verdict_columns(verdict, numbers) -> dict:
+def _verdict_columns(verdict) -> dict:
     from .scaling import verdict_to_dict
 
     data = verdict_to_dict(verdict)
@@ -185,6 +185,15 @@ def _sample_columns(exp) -> dict:
     }
 
 
+def _measured_sha256(folder: Path) -> str | None:
+    """The input hash a measurement wrote before its analysis failed, if any."""
+    try:
+        info = json.loads((folder / "measure.json").read_text(encoding="utf-8"))
+        return info["provenance"]["sha256"]
+    except (OSError, ValueError, KeyError, TypeError):
+        return None
+
+
 def run_task(task: Task, out_dir) -> dict:
     """Analyse one recording of a campaign into ``OUT/<label>``; its catalogue row.
 
@@ -207,7 +216,7 @@ def run_task(task: Task, out_dir) -> dict:
     work = Path(tempfile.mkdtemp(prefix=f"{_WORK_PREFIX}{task.label}-", dir=out_dir))
     try:
         row["input_stat"] = input_fingerprint(task.source)
-        exp, rec = open_source(
+        exp, _ = open_source(
             task.source,
             experiment=task.experiment_file,
             overrides=task.overrides,
@@ -215,9 +224,6 @@ def run_task(task: Task, out_dir) -> dict:
         )
         row["settings_sha256"] = settings_sha256(exp, task.settings)
         row["settings"] = task.settings.result_settings()
-        from .measure import recording_sha256
-
-        row["input_sha256"] = recording_sha256(rec)
         row.update(_sample_columns(exp))
         result = analyze_into(
             task.source,
@@ -232,18 +238,20 @@ def run_task(task: Task, out_dir) -> dict:
         row.update(_sample_columns(result.experiment))
         series = result.series
         row.update(
+            input_sha256=series.provenance["sha256"],  # measure_into hashed the frames
             frames=len(series),
             frames_ok=series.status.count("ok"),
             contact_time_s=series.contact_time,
             contact_time_err_s=series.contact_time_err,
         )
-        row.update(_verdict_columns(result.verdict, result.numbers))
+        row.update(_verdict_columns(result.verdict))
         if result.verdict:
             row["status"] = "complete"
         else:
             row["status"], row["error"] = "failed", f"no verdict: {result.verdict.reason}"
     except DropkinError as exc:
         row["status"], row["error"] = "failed", str(exc)
+        row["input_sha256"] = _measured_sha256(work)
     except Exception as exc:  # noqa: BLE001 - one recording must not stop a campaign
         row["status"] = "failed"
         row["error"] = f"internal error, please report it: {type(exc).__name__}: {exc}"

@@ -117,12 +117,9 @@ def _open(source, *, experiment, frame_rate, pixel_size, geometry, view):
     """Experiment (file + options) and the recording it describes."""
     from .pipeline import open_source
 
-    overrides = {
-        "recording.frame_rate": frame_rate,
-        "recording.pixel_size": pixel_size,
-        "setup.geometry": geometry,
-        "setup.view": view,
-    }
+    overrides = _overrides(
+        frame_rate=frame_rate, pixel_size=pixel_size, geometry=geometry, view=view
+    )
     return open_source(source, experiment=experiment, overrides=overrides)
 
 
@@ -168,26 +165,6 @@ def progress_callback(ctx: click.Context, label: str, total: int):
     with Progress(console=Console(stderr=True), transient=True) as bar:
         task = bar.add_task(label, total=total)
         yield lambda done, total: bar.update(task, completed=done, total=total)
-
-
-def _parse_roi(text):
-    """'ROW0:ROW1,COL0:COL1' -> (row0, row1, col0, col1)."""
-    from .errors import ExperimentError
-
-    if text is None:
-        return None
-    try:
-        rows, cols = text.split(",")
-        r0, r1 = (int(v) for v in rows.split(":"))
-        c0, c1 = (int(v) for v in cols.split(":"))
-    except ValueError:
-        raise ExperimentError(
-            "is not a region",
-            key="--roi",
-            value=text,
-            expected="ROW0:ROW1,COL0:COL1 in pixels, e.g. 100:300,50:450",
-        ) from None
-    return (r0, r1, c0, c1)
 
 
 def _measure_options(command):
@@ -238,10 +215,10 @@ def _measure_options(command):
 
 
 def _settings(*, background, roi, threshold, jobs, chunk_size, overlay_count, **fit):
-    from .pipeline import AnalysisSettings
+    from .pipeline import AnalysisSettings, parse_roi
 
     return AnalysisSettings(
-        roi=_parse_roi(roi),
+        roi=parse_roi(roi),
         threshold=threshold,
         background=background,
         jobs=jobs,

@@ -17,6 +17,7 @@ from pathlib import Path
 from .errors import MeasurementError
 
 __all__ = [
+    "parse_roi",
     "AnalysisSettings",
     "Analysis",
     "open_source",
@@ -95,6 +96,39 @@ class Analysis:
     numbers: object | None
     experiment: object
     report: Path | None
+
+
+def parse_roi(text, *, key: str = "--roi", path=None):
+    """``'ROW0:ROW1,COL0:COL1'`` -> (row0, row1, col0, col1); None stays None.
+
+    Raises
+    ------
+    ExperimentError
+        Naming `key` (and `path`) when the text is not four whole numbers in
+        that form. Whether the region fits the frame is checked on measuring.
+
+    Examples
+    --------
+    >>> parse_roi("100:300,50:450")
+    (100, 300, 50, 450)
+    """
+    from .errors import ExperimentError
+
+    if text is None:
+        return None
+    try:
+        rows, cols = text.split(",")
+        r0, r1 = (int(v) for v in rows.split(":"))
+        c0, c1 = (int(v) for v in cols.split(":"))
+    except (ValueError, AttributeError):
+        raise ExperimentError(
+            "is not a region",
+            key=key,
+            value=text,
+            path=path,
+            expected="ROW0:ROW1,COL0:COL1 in pixels, e.g. 100:300,50:450",
+        ) from None
+    return (r0, r1, c0, c1)
 
 
 def open_source(source, *, experiment=None, overrides=None, origin: str = "command line"):
