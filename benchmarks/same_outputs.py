@@ -26,8 +26,18 @@ ROOT = Path(__file__).resolve().parents[1]
 SAMPLES = ("fast_pair.tif", "viscous_pair", "spreading_drop")
 COMPARED = ("radius.csv", "measure.json", "fit.json")
 # Keys whose values differ between two runs of the same code.
-VOLATILE = {"version", "input", "experiment_file", "output", "created", "created_utc",
-            "timestamp", "elapsed_s", "seconds", "source"}
+VOLATILE = {
+    "version",
+    "input",
+    "experiment_file",
+    "output",
+    "created",
+    "created_utc",
+    "timestamp",
+    "elapsed_s",
+    "seconds",
+    "source",
+}
 
 
 def _scrub(value):
@@ -73,8 +83,11 @@ def main(argv: list[str] | None = None) -> int:
     scratch.mkdir(parents=True, exist_ok=True)
     base_tree = scratch / "base-tree"
     if not base_tree.exists():
-        subprocess.run(["git", "-C", str(ROOT), "worktree", "add", "--detach",
-                        str(base_tree), args.base], check=True, capture_output=True)
+        subprocess.run(
+            ["git", "-C", str(ROOT), "worktree", "add", "--detach", str(base_tree), args.base],
+            check=True,
+            capture_output=True,
+        )
     stack = scratch / "stack.tif"
     if not stack.exists():
         sys.path.insert(0, str(ROOT / "benchmarks"))
@@ -96,8 +109,10 @@ def main(argv: list[str] | None = None) -> int:
                 all_same &= _compare(name, base_out / name, new_out / name)
     finally:
         if not args.keep:
-            subprocess.run(["git", "-C", str(ROOT), "worktree", "remove", "--force",
-                            str(base_tree)], capture_output=True)
+            subprocess.run(
+                ["git", "-C", str(ROOT), "worktree", "remove", "--force", str(base_tree)],
+                capture_output=True,
+            )
     print("all outputs the same" if all_same else "outputs DIFFER")
     return 0 if all_same else 1
 

@@ -7,7 +7,7 @@ Run from anywhere with the project installed::
 
 Every scenario is invented; the truth of each recording (true radius per frame,
 contact instant) is written beside it by dropkin.synth. Material values and
-their status labels (C computed, M from memory) are those of shared/physics.md.
+their status labels (C computed, M from memory) are those of docs/physics.md.
 """
 
 from __future__ import annotations
@@ -26,7 +26,7 @@ def viscous_pair() -> synth.SyntheticRecording:
     """(a) Two glycerol-water drops (85 wt %, 21 degC) merging in air; zoomed on the neck.
 
     The neck opens at a constant speed set by the capillary velocity gamma/eta
-    (the inertially limited viscous regime, physics.md A2, r = C (gamma/eta) t,
+    (the inertially limited viscous regime, docs/physics.md A2, r = C (gamma/eta) t,
     with C = 1 assumed), up to about a third of the drop radius. Zoomed so
     that the drop radius is 400 px: a neck beside a gap of less than three
     blur widths cannot be resolved, which in side view hides r below
@@ -57,7 +57,7 @@ def viscous_pair() -> synth.SyntheticRecording:
 
 def fast_pair() -> synth.SyntheticRecording:
     """(b) Two water drops (20 degC) merging fast, one above the other, on a needle."""
-    liquid = synth.Liquid()  # water at 20 degC, physics.md 5.1 (C)
+    liquid = synth.Liquid()  # water at 20 degC, docs/physics.md 5.1 (C)
     law = synth.inertial_law(
         surface_tension=liquid.surface_tension, density=liquid.density, drop_radius=1e-3
     )  # D0 = 1.0, an assumed value

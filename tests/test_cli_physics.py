@@ -59,7 +59,7 @@ def test_liquids_lists_the_library():
 
 
 def test_liquids_shows_one_liquid_in_si_json():
-    # Source: physics.md §5.1 at 25 °C: 997.048 kg/m^3, 0.8900 mPa s (IAPWS via
+    # Source: docs/physics.md §5.1 at 25 °C: 997.048 kg/m^3, 0.8900 mPa s (IAPWS via
     # CoolProp, C) and 71.97 mN/m (IAPWS R1-76, C); 0.05 % / 0.2 % / 0.01 mN/m.
     result = _run("liquids", "water", "--temperature", "25 degC", "--json")
     assert result.exit_code == 0, result.output
@@ -72,7 +72,7 @@ def test_liquids_shows_one_liquid_in_si_json():
 
 
 def test_liquids_mixture_text():
-    # Source: physics.md §5.5 (C): Cheng gives 156.3 mPa s for 90 wt % at 25 °C.
+    # Source: docs/physics.md §5.5 (C): Cheng gives 156.3 mPa s for 90 wt % at 25 °C.
     result = _run(
         "liquids", "glycerol-water", "--temperature", "25 degC", "--glycerol-mass-fraction", "0.9"
     )
@@ -102,7 +102,7 @@ def test_predict_from_a_folder(folder):
 
 def test_predict_json_from_options():
     # The same invented sample from options only; numbers checked against the
-    # library and physics.md §3's crossover formula (D).
+    # library and docs/physics.md §3's crossover formula (D).
     result = _run(
         "predict",
         "--liquid", "glycerol-water",

@@ -8,7 +8,8 @@ import pytest
 import tifffile
 from click.testing import CliRunner
 
-from dropkin.cli import _SYNTH_LAWS, main
+from dropkin.cli import main
+from dropkin.cli._commands import _SYNTH_LAWS
 from dropkin.synth import REGIME_NAMES
 from dropkin.units import parse_si
 

@@ -1,6 +1,6 @@
 """The experiment file: discovery, validation, SI conversion, overrides.
 
-The file format is the contract in shared/design.md; the conversions are SI
+The file format is the contract in docs/architecture.md; the conversions are SI
 prefix definitions (BIPM SI Brochure, 9th ed.) and 0 degC = 273.15 K.
 """
 

@@ -1,9 +1,9 @@
 """The liquid library against sources outside the project.
 
 Oracles: CoolProp 8.0.0 (IAPWS-95 density, IAPWS 2008 viscosity, Mulero 2012
-surface tension) for water, ethanol and air; the check values of physics.md
+surface tension) for water, ethanol and air; the check values of docs/physics.md
 §5 with their own sources and status labels; tabulated glycerol data (Dow,
-via physics.md §5.5, V) and measured viscosities from memory (Segur &
+via docs/physics.md §5.5, V) and measured viscosities from memory (Segur &
 Oberstar 1951, M: wide tolerance).
 """
 
@@ -67,14 +67,14 @@ def test_water_against_coolprop_over_its_range(celsius):
     ("celsius", "sigma_mn_per_m"), [(0.0, 75.65), (20.0, 72.74), (25.0, 71.97), (30.0, 71.19)]
 )
 def test_water_surface_tension_is_the_iapws_release(celsius, sigma_mn_per_m):
-    # Source: physics.md §5.1, IAPWS R1-76(2014) values (C, coefficients V);
+    # Source: docs/physics.md §5.1, IAPWS R1-76(2014) values (C, coefficients V);
     # printed to 0.01 mN/m, so half of that is the tolerance.
     sigma = liquid_properties("water", kelvin(celsius)).surface_tension
     assert sigma * 1e3 == pytest.approx(sigma_mn_per_m, abs=0.005)
 
 
 def test_water_against_handbook_table():
-    # Source: LSBU water table via physics.md §5.1 (V): 998.2 kg/m^3 and
+    # Source: LSBU water table via docs/physics.md §5.1 (V): 998.2 kg/m^3 and
     # 1.002 mPa s at 20 °C, printed to the last digit shown.
     water = liquid_properties("water", kelvin(20.0))
     assert water.density == pytest.approx(998.2, abs=0.05)
@@ -84,7 +84,7 @@ def test_water_against_handbook_table():
 
 # --- glycerol–water -----------------------------------------------------------
 
-CHENG_TABLE = [  # physics.md §5.5: exact outputs of Cheng's formula (C), mPa s
+CHENG_TABLE = [  # docs/physics.md §5.5: exact outputs of Cheng's formula (C), mPa s
     (0.0, 20.0, 1.005),
     (0.5, 20.0, 6.002),
     (0.6, 20.0, 10.91),
@@ -104,7 +104,7 @@ CHENG_TABLE = [  # physics.md §5.5: exact outputs of Cheng's formula (C), mPa s
 
 @pytest.mark.parametrize(("fraction", "celsius", "mpa_s"), CHENG_TABLE)
 def test_cheng_viscosity_against_physics_table(fraction, celsius, mpa_s):
-    # Source: physics.md §5.5 regression values of Cheng (2008); 1e-3 relative
+    # Source: docs/physics.md §5.5 regression values of Cheng (2008); 1e-3 relative
     # as the table asks (values printed to four digits).
     mix = liquid_properties("glycerol-water", kelvin(celsius), glycerol_mass_fraction=fraction)
     assert mix.viscosity * 1e3 == pytest.approx(mpa_s, rel=1e-3)
@@ -115,7 +115,7 @@ def test_cheng_viscosity_against_physics_table(fraction, celsius, mpa_s):
 )
 def test_cheng_viscosity_against_measured_values(fraction, mpa_s):
     # Source: Segur & Oberstar (1951) at 20 °C, quoted FROM MEMORY in
-    # physics.md §5.5 (status M); Cheng's formula is said to be within ~2 %,
+    # docs/physics.md §5.5 (status M); Cheng's formula is said to be within ~2 %,
     # the tolerance is the brief's 5 % because the reference is unverified.
     mix = liquid_properties("glycerol-water", kelvin(20.0), glycerol_mass_fraction=fraction)
     assert mix.viscosity * 1e3 == pytest.approx(mpa_s, rel=0.05)
@@ -135,7 +135,7 @@ def test_cheng_viscosity_against_measured_values(fraction, mpa_s):
     ],
 )
 def test_volk_kahler_density_against_dow_tables(fraction, celsius, kg_per_m3):
-    # Source: Dow glycerine density tables as quoted in physics.md §5.2 and
+    # Source: Dow glycerine density tables as quoted in docs/physics.md §5.2 and
     # §5.5 (V); Volk & Kähler (2018) agree within 0.04 %, tolerance 0.05 %.
     mix = liquid_properties("glycerol-water", kelvin(celsius), glycerol_mass_fraction=fraction)
     assert mix.density == pytest.approx(kg_per_m3, rel=5e-4)
@@ -150,7 +150,7 @@ def test_pure_glycerol_entry_is_the_mixture_at_fraction_one():
 
 
 def test_glycerol_surface_tension_from_memory():
-    # Source: CRC value 63.4 mN/m at 20 °C, FROM MEMORY (physics.md §5.2, M),
+    # Source: CRC value 63.4 mN/m at 20 °C, FROM MEMORY (docs/physics.md §5.2, M),
     # and water's IAPWS value at the other end; the mixture's values are
     # memory-based (±1.5 mN/m), so this checks only the ends (tolerance 3 %)
     # and that they lie between them.
@@ -165,7 +165,7 @@ def test_glycerol_surface_tension_from_memory():
 
 
 def test_glycerol_is_hygroscopic_sensitive():
-    # Source: physics.md §5.2 (C): 1 wt % water lowers glycerol's viscosity
+    # Source: docs/physics.md §5.2 (C): 1 wt % water lowers glycerol's viscosity
     # from 1414 to 1137 mPa s at 20 °C (Cheng's formula); 0.5 % tolerance.
     wet = liquid_properties("glycerol-water", kelvin(20.0), glycerol_mass_fraction=0.99)
     assert wet.viscosity * 1e3 == pytest.approx(1137.0, rel=5e-3)
@@ -175,7 +175,7 @@ def test_glycerol_is_hygroscopic_sensitive():
 
 
 def test_ethanol_against_physics_table():
-    # Source: physics.md §5.3: 789.4 / 785.1 kg/m^3 and 1.194 / 1.082 mPa s
+    # Source: docs/physics.md §5.3: 789.4 / 785.1 kg/m^3 and 1.194 / 1.082 mPa s
     # (CoolProp, C) and 22.39 mN/m at 20 °C (Adamson & Gast, V).
     e20 = liquid_properties("ethanol", kelvin(20.0))
     e25 = liquid_properties("ethanol", kelvin(25.0))
@@ -204,7 +204,7 @@ def test_ethanol_against_coolprop_away_from_the_fit_points(celsius):
     [("10cSt", 9.35, 935.0, 20.1), ("100cSt", 96.5, 964.5, 20.9), ("1000cSt", 970.0, 970.5, 21.2)],
 )
 def test_silicone_oils_nominal_values(grade, eta_mpa_s, rho, sigma_mn_per_m):
-    # Source: physics.md §5.4, typical vendor data at 25 °C (mostly M). The
+    # Source: docs/physics.md §5.4, typical vendor data at 25 °C (mostly M). The
     # grades are nominal (±5–10 %); tolerance 2 % (§5 asks ≥ 2 % for oils).
     oil = liquid_properties(f"silicone-oil-{grade}", kelvin(25.0))
     assert oil.viscosity * 1e3 == pytest.approx(eta_mpa_s, rel=0.02)

@@ -322,7 +322,7 @@ SPREAD_CASES = {
 
 @pytest.mark.parametrize("name", list(SPREAD_CASES))
 def test_spreading_contact_radius_against_synthetic_truth(tmp_path, name):
-    # A silicone-oil-like drop (values of physics.md 5.4, from memory there)
+    # A silicone-oil-like drop (values of docs/physics.md 5.4, from memory there)
     # spreading inertially, C = 1.2 (an assumed value; only the truth matters).
     case = SPREAD_CASES[name]
     pixel, rate = 14e-6, 25e3
@@ -396,7 +396,7 @@ def test_noise_estimate_is_the_scaled_mad_of_neighbour_differences():
     # Reference: the robust noise of the background (1.4826 x the median
     # absolute deviation, over sqrt 2 for a difference of two pixels; common
     # practice) written directly with numpy; the helper computes it in place.
-    from dropkin.measure import _noise
+    from dropkin.measure._stream import _noise
 
     rng = np.random.default_rng(6)
     trans = (1.0 + rng.normal(0, 0.02, (120, 150))).astype(np.float32)

@@ -2,7 +2,7 @@
 
 Invented scenario: glycerol-water-like drops of R = 1 mm whose viscosity goes
 from 50 to 250 mPa s, filmed so that the neck grows about 2.5 px per frame in
-each. Every neck follows the inertially limited viscous law of physics.md A2,
+each. Every neck follows the inertially limited viscous law of docs/physics.md A2,
 r = C (gamma / eta) t with C = 1 (the value the recordings are made with), so
 on the regime's own scales (r / R against t / tau_v, tau_v = eta R / gamma)
 all five fall on the line r / R = t / tau_v.

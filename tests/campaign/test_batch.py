@@ -16,8 +16,8 @@ import pytest
 from click.testing import CliRunner
 
 from dropkin import __version__
-from dropkin._results import TIMING_COLUMNS, read_rows
-from dropkin.batch import run_batch
+from dropkin.campaign._catalogue import TIMING_COLUMNS, read_rows
+from dropkin.campaign._runner import run_batch
 from dropkin.cli import main
 
 # The campaign's constants, as conftest.py makes it (invented scenario).
@@ -105,7 +105,7 @@ def test_the_master_curve_recovers_the_prefactor_the_recordings_were_made_with(p
     assert curve["flagged"] == []
     assert [m["label"] for m in curve["left_out"]] == ["cut"]
     # On its own scales every series falls on r/R = C t/tau: the time scales
-    # are eta R / gamma (physics.md A2), in proportion to the viscosities.
+    # are eta R / gamma (docs/physics.md A2), in proportion to the viscosities.
     taus = {m["label"]: m["tau_s"] for m in curve["members"]}
     for label, viscosity in zip(GOOD, VISCOSITIES, strict=True):
         assert taus[label] == pytest.approx(viscosity * 1e-3 / 65e-3, rel=1e-12)
@@ -143,7 +143,7 @@ def test_on_the_wrong_regimes_scales_the_series_do_not_collapse(pool_run, tmp_pa
     )
     assert result.exit_code == 0, result.output
     (curve,) = json.loads((dest / "collapse.json").read_text())["curves"]
-    # tau = sqrt(rho R^3 / gamma) for every member (physics.md A3): the same
+    # tau = sqrt(rho R^3 / gamma) for every member (docs/physics.md A3): the same
     # for all five, since only the viscosity changes.
     tau_i = (1221.0 * 1e-3**3 / 65e-3) ** 0.5
     assert all(m["tau_s"] == pytest.approx(tau_i, rel=1e-12) for m in curve["members"])

@@ -6,7 +6,7 @@ import os
 
 import pytest
 
-from dropkin._manifest import read_manifest
+from dropkin.campaign._manifest import read_manifest
 from dropkin.errors import DropkinError
 
 

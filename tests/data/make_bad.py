@@ -152,7 +152,7 @@ def good_series_rows() -> list[list[str]]:
     """Rows of a radius series that ``dropkin fit`` accepts: the inertial law of water.
 
     r = 1.1 (γR/ρ)^(1/4) τ^(1/2) for 1 mm water drops (γ = 72.74 mN/m,
-    ρ = 998.2 kg/m^3; physics.md §1), with a fixed ±0.5 % ripple instead of
+    ρ = 998.2 kg/m^3; docs/physics.md §1), with a fixed ±0.5 % ripple instead of
     random noise so that the text is the same on every machine.
     """
     scale = 1.1 * (0.07274 * 1e-3 / 998.2) ** 0.25

@@ -15,7 +15,8 @@ import pytest
 
 # PNG: ISO/IEC 15948 (the signature, then length-type-data-CRC chunks ending in IEND).
 PNG_SIGNATURE = b"\x89PNG\r\n\x1a\n"
-RADIUS_COLUMNS = "frame,time_s,since_contact_s,radius_m,radius_err_m,status"  # design.md
+# The columns of radius.csv, as docs/architecture.md fixes them.
+RADIUS_COLUMNS = "frame,time_s,since_contact_s,radius_m,radius_err_m,status"
 
 
 def png_problem(data: bytes) -> str:

@@ -1,6 +1,6 @@
 """The corpus of bad inputs (``tests/data/bad/``) through every command it applies to.
 
-The rule checked is the project's (design.md, "Exit codes"; CLI docstring):
+The rule checked is the project's (docs/architecture.md, "Exit codes"; CLI docstring):
 bad input gives exit code 1 and ONE line on stderr that names the file, the
 key or the frame, never a traceback, and no output file left behind. Click's
 usage errors (a bad option value caught while parsing) are exit code 2 and

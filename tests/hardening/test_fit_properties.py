@@ -1,7 +1,7 @@
 """Property tests (hypothesis): the fits and the verdict on any series.
 
 Random series go into :mod:`dropkin.scaling` the way ``dropkin fit`` sends
-them (see ``dropkin.analysis.fit_measurement``): lengths from 0 up, NaN and
+them (see ``dropkin.pipeline._fit.fit_measurement``): lengths from 0 up, NaN and
 infinite values, constant, decreasing, negative and zero radii, magnitudes
 from 1e-12 to 1e6 s and m (and single values down to 1e-292 and up to 1e300;
 subnormal floats, below 2.2e-308, are left out: no clock or ruler gives them),
@@ -34,21 +34,18 @@ from hypothesis import HealthCheck, event, given, settings
 from hypothesis import strategies as st
 
 from dropkin.errors import DropkinError
-from dropkin.scaling import (
+from dropkin.fitting import (
     MIN_DECADES,
     MIN_POINTS,
-    analyze_series,
     fit_broken_power_law,
     fit_log_law,
     fit_power_law,
-    format_verdict,
     guess_power_law,
     local_exponent,
-    sample_numbers,
-    verdict_to_dict,
 )
+from dropkin.scaling import analyze_series, format_verdict, sample_numbers, verdict_to_dict
 
-# Water drops of 1 mm in air (physics.md §5.1, 20 °C; air from memory: 0.0181 mPa s,
+# Water drops of 1 mm in air (docs/physics.md §5.1, 20 °C; air from memory: 0.0181 mPa s,
 # 1.204 kg/m^3); the numbers only choose the candidates, any sample would do.
 WATER = sample_numbers(
     surface_tension=0.07274,

@@ -45,7 +45,7 @@ DANGEROUS = {
 }
 #: (file relative to src/dropkin, pattern name) -> why it is safe.
 ALLOWED: dict[tuple[str, str], str] = {
-    ("measure.py", "pickle load"): "a --jobs worker unpickles the bytes its own parent "
+    ("measure/_stream.py", "pickle load"): "a --jobs worker unpickles the bytes its own parent "
     "process pickled for it (recording handle, preparation, options); nothing read from "
     "a user's file is ever unpickled",
 }

@@ -1,4 +1,4 @@
-"""The regime catalogue against physics.md §2 and against pint's dimensional algebra."""
+"""The regime catalogue against docs/physics.md §2 and against pint's dimensional algebra."""
 
 import math
 
@@ -6,19 +6,11 @@ import numpy as np
 import pytest
 
 from dropkin.errors import ExperimentError
-from dropkin.scaling import (
-    REGIMES,
-    candidates,
-    harmonic_blend,
-    power_law,
-    regime,
-    regime_keys,
-    sample_numbers,
-    viscous_log_law,
-)
+from dropkin.fitting import harmonic_blend, power_law, viscous_log_law
+from dropkin.scaling import REGIMES, candidates, regime, regime_keys, sample_numbers
 from dropkin.units import ureg
 
-WATER = sample_numbers(  # physics.md §5.1 at 20 °C (C); air from CoolProp (C)
+WATER = sample_numbers(  # docs/physics.md §5.1 at 20 °C (C); air from CoolProp (C)
     surface_tension=0.07274,
     viscosity=1.0016e-3,
     density=998.207,
@@ -26,7 +18,7 @@ WATER = sample_numbers(  # physics.md §5.1 at 20 °C (C); air from CoolProp (C)
     outer_viscosity=1.81e-5,
     outer_density=1.204,
 )
-GLYCEROL = sample_numbers(  # physics.md §5.2 at 20 °C
+GLYCEROL = sample_numbers(  # docs/physics.md §5.2 at 20 °C
     surface_tension=0.0634,
     viscosity=1.414,
     density=1261.1,
@@ -37,8 +29,8 @@ GLYCEROL = sample_numbers(  # physics.md §5.2 at 20 °C
 
 
 def test_every_regime_of_the_physics_reference_is_there():
-    # Source: physics.md §2 summary table (A1–A4, B1–B3, C1–C6) and the keys
-    # design.md fixes for fit.json.
+    # Source: docs/physics.md §2 summary table (A1–A4, B1–B3, C1–C6) and the keys
+    # docs/architecture.md fixes for fit.json.
     codes = {r.code for r in REGIMES}
     assert codes >= {"A1", "A2", "A3", "A4v", "A4i", "B1", "B2", "B3"} | {
         f"C{i}" for i in range(1, 7)
@@ -74,7 +66,7 @@ def test_each_group_times_t_to_the_n_is_a_length(entry):
 
 
 def test_published_prefactors():
-    # Sources (physics.md §2): ELS 1/π and 1/(4π) (V); Nat. Commun. 2014 1.2
+    # Sources (docs/physics.md §2): ELS 1/π and 1/(4π) (V); Nat. Commun. 2014 1.2
     # and 1.4 (V), consistent with the fitted time ratios (1/0.72)^1/2 = 1.18
     # and (1/0.51)^1/2 = 1.40; Milner (3π/32)^1/3 = 0.665 (V); Huppert
     # 0.894·3^(-1/8) = 0.779 (D); Tanner [(10/9Λ)(4/π)³]^(1/10) for Λ = 20–10 (D).
@@ -93,7 +85,7 @@ def test_published_prefactors():
 
 
 def test_inertial_water_numbers():
-    # Source: physics.md §2 A3 for water, R = 1 mm, D0 = 1 (C): group 0.0164
+    # Source: docs/physics.md §2 A3 for water, R = 1 mm, D0 = 1 (C): group 0.0164
     # m s^-1/2; r = 16, 52, 164, 520 µm at 1, 10, 100, 1000 µs; neck speed
     # 8.2 m/s at 1 µs and 0.26 m/s at 1 ms. Printed to 2–3 digits: 1 %.
     entry = regime("inertial")
@@ -106,7 +98,7 @@ def test_inertial_water_numbers():
 
 
 def test_els_local_slope():
-    # Source: physics.md §2 A1 (C): d ln r / d ln t = 1 + 1/ln(γt/(ηR)) =
+    # Source: docs/physics.md §2 A1 (C): d ln r / d ln t = 1 + 1/ln(γt/(ηR)) =
     # 0.89, 0.86, 0.78, 0.57 at γt/(ηR) = 1e-4 ... 1e-1. The slope is taken
     # here by finite differences of the log law itself.
     law = regime("viscous").law(WATER)
@@ -124,7 +116,7 @@ def test_log_law_outside_its_domain_is_nan():
 
 
 def test_harmonic_blend_tends_to_each_law():
-    # Source: physics.md §3: r⁻¹ = r_v⁻¹ + r_i⁻¹ follows the viscous law well
+    # Source: docs/physics.md §3: r⁻¹ = r_v⁻¹ + r_i⁻¹ follows the viscous law well
     # before the crossover and the inertial law well after it.
     t = np.array([1e-14, 1e-2])
     viscous = regime("inertially-limited-viscous").law(WATER)(t)
@@ -142,7 +134,7 @@ def test_free_exponent():
 
 
 def test_candidates_for_water_and_glycerol():
-    # Source: physics.md §3: water (Oh = 0.0037) goes ILV → inertial; glycerol
+    # Source: docs/physics.md §3: water (Oh = 0.0037) goes ILV → inertial; glycerol
     # (Oh = 5, Oh R ≈ 5 mm > R) never reaches inertia and is viscous.
     water = {c.regime.key: c.plausible for c in candidates(WATER, "coalescence")}
     assert water["inertial"] and water["inertially-limited-viscous"] and not water["viscous"]
@@ -156,7 +148,7 @@ def test_candidates_for_water_and_glycerol():
 
 
 def test_candidates_with_an_outer_fluid():
-    # Source: Nat. Commun. 5, 3182 (2014) via physics.md §2 A4–A5 (V): air
+    # Source: Nat. Commun. 5, 3182 (2014) via docs/physics.md §2 A4–A5 (V): air
     # bubbles in a viscous oil are outer-viscous (Oh_out ≥ 0.77), in a thin oil
     # outer-inertial. Values: air 1.8e-5 Pa s, 1.2 kg/m^3; oils from §5.4.
     def bubble(eta_oil):
@@ -176,7 +168,7 @@ def test_candidates_with_an_outer_fluid():
 
 
 def test_sessile_laws_need_the_contact_angle():
-    # Source: physics.md §2 B1–B2: h0 ∝ (γθ⁴/η) t; t^2/3 only for θ < 90°.
+    # Source: docs/physics.md §2 B1–B2: h0 ∝ (γθ⁴/η) t; t^2/3 only for θ < 90°.
     assert regime("viscous-sessile").group(WATER) is None
     with pytest.raises(ExperimentError, match="contact angle"):
         regime("viscous-sessile").law(WATER)
@@ -200,8 +192,9 @@ def test_bad_choices():
 
 def test_blended_law_is_half_of_each_at_the_crossover():
     # Derived (D): at the matched crossover both laws give r_c, so the harmonic
-    # blend gives r_c / 2 there (physics.md §3's r⁻¹ = r_v⁻¹ + r_i⁻¹).
-    from dropkin.scaling import blended_law, crossovers
+    # blend gives r_c / 2 there (docs/physics.md §3's r⁻¹ = r_v⁻¹ + r_i⁻¹).
+    from dropkin.fitting import blended_law
+    from dropkin.scaling import crossovers
 
     (c,) = [c for c in crossovers(WATER, "coalescence") if c.late == "inertial"]
     blend = blended_law(

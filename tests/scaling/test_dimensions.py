@@ -23,7 +23,7 @@ UNITS = {
 
 @pytest.mark.parametrize("entry", [r for r in REGIMES if r.group_powers], ids=lambda r: r.key)
 def test_reproduces_every_catalogue_power_law_from_its_parameters(entry):
-    # The catalogue's exponent and group (physics.md §2) must come out of the
+    # The catalogue's exponent and group (docs/physics.md §2) must come out of the
     # dimension matrix of the group's own parameters alone, and be labelled
     # with the regime's key. Values are arbitrary: only dimensions matter.
     quantities = {name: ureg.Quantity(2.0, UNITS[name]) for name in entry.group_powers}
@@ -60,7 +60,7 @@ def test_viscosity_and_density_give_momentum_diffusion():
 
 def test_gravitational_constant_and_a_mass_give_kepler():
     # G M gives a length growing as t^(2/3) (Kepler's third law). Check with
-    # physics.md §6: (G M_sun)^(1/3) / (4π²)^(1/3) against the Earth's
+    # docs/physics.md §6: (G M_sun)^(1/3) / (4π²)^(1/3) against the Earth's
     # a / T^(2/3) from the NASA fact-sheet values (a = 149.6e9 m, T = 365.2 d),
     # within 0.5 %. GM_sun = 1.32712440018e20 m³/s² and G = 6.67430e-11 are
     # FROM MEMORY (M); only their product enters.

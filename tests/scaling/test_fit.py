@@ -6,7 +6,7 @@ import numpy as np
 import pytest
 
 from dropkin.errors import FitError
-from dropkin.scaling import (
+from dropkin.fitting import (
     MIN_POINTS,
     LawShape,
     fit_log_law,
@@ -17,7 +17,7 @@ from dropkin.scaling import (
 
 # Eight planets: semi-major axis (10^6 km, the "older" column) and orbital
 # period (days). Source: NASA Planetary Fact Sheet, via the two third-party copies
-# named in physics.md §6 (status V there).
+# named in docs/physics.md §6 (status V there).
 PLANETS = {
     "Mercury": (57.9, 88.0),
     "Venus": (108.2, 224.7),
@@ -28,7 +28,7 @@ PLANETS = {
     "Uranus": (2872.5, 30589.0),
     "Neptune": (4495.1, 59800.0),
 }
-# The newer distance column of the same fact sheet (physics.md §6).
+# The newer distance column of the same fact sheet (docs/physics.md §6).
 NEWER_A = {"Mars": 228.0, "Jupiter": 778.5, "Saturn": 1432.0, "Uranus": 2867.0, "Neptune": 4515.0}
 
 
@@ -39,7 +39,7 @@ def orbits(newer=False):
 
 
 def test_kepler_third_law_from_the_planets():
-    # Source: physics.md §6 — suggested assertions |n - 2/3| < 0.002 and, at
+    # Source: docs/physics.md §6 — suggested assertions |n - 2/3| < 0.002 and, at
     # fixed n = 2/3, K within 0.5 % of 1.50e6 m s^-2/3 (the 0.2–0.3 % spread
     # is the table's rounding). t0 is fixed at 0 (periods count from zero).
     for newer in (False, True):
@@ -49,7 +49,7 @@ def test_kepler_third_law_from_the_planets():
         assert abs(free.exponent - 2.0 / 3.0) < 0.002
         fixed = fit_power_law(period, a, t0=0.0, exponent=2.0 / 3.0)
         assert fixed.prefactor == pytest.approx(1.50e6, rel=0.005)
-        # The free-fit prefactor moves with the exponent (physics.md §4.8):
+        # The free-fit prefactor moves with the exponent (docs/physics.md §4.8):
         # within 3 % of 1.50e6 as §6 suggests, and strongly correlated.
         assert free.prefactor == pytest.approx(1.50e6, rel=0.03)
         assert abs(free.correlation_raw) > 0.9
@@ -60,7 +60,7 @@ def test_kepler_third_law_from_the_planets():
 
 
 def test_planets_least_squares_is_numpys_log_log_polyfit():
-    # Reference: numpy.polyfit of ln a on ln T; physics.md §6 computed
+    # Reference: numpy.polyfit of ln a on ln T; docs/physics.md §6 computed
     # n = 0.66746 (older column) this way (C, printed to 5 digits: 5e-6).
     period, a = orbits()
     fit = fit_power_law(period, a, t0=0.0, loss="linear")
@@ -139,7 +139,7 @@ def test_origin_inside_its_bracket_is_recovered_from_an_exact_law():
 
 
 def test_pivot_decorrelates_prefactor_and_exponent():
-    # physics.md §4.8: at t_p = exp(weighted mean ln τ) the errors of ln r_p
+    # docs/physics.md §4.8: at t_p = exp(weighted mean ln τ) the errors of ln r_p
     # and n are uncorrelated by construction (t0 fixed: exact, 1e-9), while
     # ln A and n are correlated (0.7 here: the times sit far from t = 1 s).
     rng = np.random.default_rng(3)
@@ -201,7 +201,7 @@ def test_bootstrap_redraws_the_origin_and_widens_the_interval():
 
 def test_log_law_recovers_its_prefactor_and_reports_the_apparent_exponent():
     # Analytic: ELS law r = -(1/π) u τ ln(uτ/R) (Eggers, Lister & Stone 1999;
-    # physics.md §2 A1) with glycerol-like u = 0.045 m/s, R = 1 mm. C to 1e-6;
+    # docs/physics.md §2 A1) with glycerol-like u = 0.045 m/s, R = 1 mm. C to 1e-6;
     # the reported exponent is the slope numpy.polyfit finds for the same
     # exact law (1e-9), inside the range of the law's local exponent.
     t = np.geomspace(1e-4, 5e-3, 80)
@@ -216,7 +216,7 @@ def test_log_law_recovers_its_prefactor_and_reports_the_apparent_exponent():
 
 
 def test_log_law_shape_local_exponent_is_the_analytic_one():
-    # physics.md §2 A1: d ln r / d ln t = 1 + 1/ln(γt/(ηR)); 0.89, 0.86,
+    # docs/physics.md §2 A1: d ln r / d ln t = 1 + 1/ln(γt/(ηR)); 0.89, 0.86,
     # 0.78 at γt/(ηR) = 1e-4, 1e-3, 1e-2 (C, printed to 2 digits: 0.005).
     shape = LawShape(1.0, True, capillary_speed=1.0, drop_radius=1.0)
     got = shape.slope(np.array([1e-4, 1e-3, 1e-2]))
@@ -224,7 +224,7 @@ def test_log_law_shape_local_exponent_is_the_analytic_one():
 
 
 def test_first_guess_is_the_unweighted_log_log_polyfit():
-    # Reference: numpy.polyfit on ln r vs ln(t - t0) (style.md §5: the first
+    # Reference: numpy.polyfit on ln r vs ln(t - t0) (the project's style: the first
     # guess is separate from the fit).
     rng = np.random.default_rng(4)
     t = np.geomspace(1.0, 100.0, 30)

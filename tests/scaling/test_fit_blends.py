@@ -6,19 +6,21 @@ import numpy as np
 import pytest
 
 from dropkin.errors import FitError
-from dropkin.scaling import (
-    DEFAULT_MATERIAL_UNCERTAINTY,
+from dropkin.fitting import (
     LawShape,
     consistent_window,
     exponent_plateaus,
     fit_blend,
     fit_broken_power_law,
-    group_relative_uncertainty,
     harmonic_blend,
     local_exponent,
+    viscous_log_law,
+)
+from dropkin.scaling import (
+    DEFAULT_MATERIAL_UNCERTAINTY,
+    group_relative_uncertainty,
     regime,
     resolve_material_uncertainty,
-    viscous_log_law,
 )
 
 
@@ -33,7 +35,7 @@ def test_local_exponent_of_an_exact_power_law_is_flat():
 
 
 def test_local_exponent_follows_the_log_law():
-    # Analytic: ELS local exponent 1 + 1/ln(uτ/R) (physics.md §2 A1), here for
+    # Analytic: ELS local exponent 1 + 1/ln(uτ/R) (docs/physics.md §2 A1), here for
     # uτ/R from 4.5e-4 to 0.045, where it falls by 0.15 per decade: a quadratic
     # Savitzky–Golay over half a decade follows it to within 0.002 inside; in
     # the last half window (and one point) scipy's "interp" edge mode
@@ -52,7 +54,7 @@ def test_band_covers_the_truth_when_the_origin_is_only_bracketed():
     # Seeded synthetic: contact inside a one-frame bracket, t0 taken at the
     # bracket's middle (wrong by up to half a frame), noise 1 % of r. The band
     # (t0 at the bracket ends ± 2 s.e.) must hold the true apparent exponent
-    # n τ/(τ + δ) (physics.md §4.2) at ≥ 95 % of the grid points.
+    # n τ/(τ + δ) (docs/physics.md §4.2) at ≥ 95 % of the grid points.
     rng = np.random.default_rng(9)
     frame = 1e-6
     t = np.arange(2, 2000) * frame
@@ -78,7 +80,7 @@ def test_window_of_the_right_law_spans_the_data_and_a_wrong_law_has_none():
 
 
 def test_harmonic_blend_locates_its_crossover():
-    # Analytic: 1/r = 1/(a1 t) + 1/(a2 t^½) (physics.md §3) meets at
+    # Analytic: 1/r = 1/(a1 t) + 1/(a2 t^½) (docs/physics.md §3) meets at
     # t_c = (a2/a1)². Exact data: t_c to 1e-6, exponents fixed.
     a1, a2 = 6.1, 0.0188
     t = np.geomspace(1e-7, 1e-3, 200)
@@ -106,7 +108,7 @@ def test_free_sharpness_and_free_exponents_come_back():
 
 
 def test_rising_exponent_uses_the_larger_law():
-    # Tanner t^1/10 → gravity t^1/8 (physics.md §3): the late law is the
+    # Tanner t^1/10 → gravity t^1/8 (docs/physics.md §3): the late law is the
     # larger radius; blend (r1^s + r2^s)^(1/s), here s = 2; t_c = 1 s.
     t = np.geomspace(1e-2, 1e2, 200)
     r = np.sqrt((t**0.1) ** 2 + (t**0.125) ** 2)

@@ -1,4 +1,4 @@
-"""Dimensionless numbers and scales against physics.md §1 and §3.
+"""Dimensionless numbers and scales against docs/physics.md §1 and §3.
 
 The §1 table gives water (R = 1 mm, 20 °C) and glycerol (20 °C) values
 computed from the library's property sources (status C), printed to two or
@@ -45,7 +45,8 @@ def numbers_for(name, celsius, radius=1e-3):
     )
 
 
-WATER_TABLE = [  # physics.md §1, water, R = 1 mm, 20 °C (C); (field, SI value, last-digit unit)
+# docs/physics.md §1, water, R = 1 mm, 20 °C (C); (field, SI value, last-digit unit)
+WATER_TABLE = [
     ("capillary_speed", 72.6, 0.1),
     ("viscous_time", 13.8e-6, 0.1e-6),
     ("inertial_time", 3.70e-3, 0.01e-3),
@@ -54,7 +55,7 @@ WATER_TABLE = [  # physics.md §1, water, R = 1 mm, 20 °C (C); (field, SI value
     ("capillary_length", 2.73e-3, 0.01e-3),
     ("bond", 0.135, 0.001),
 ]
-GLYCEROL_TABLE = [  # physics.md §1, glycerol, 20 °C (C)
+GLYCEROL_TABLE = [  # docs/physics.md §1, glycerol, 20 °C (C)
     ("capillary_speed", 4.5e-2, 0.1e-2),
     ("viscous_time", 22e-3, 1e-3),
     ("inertial_time", 4.46e-3, 0.01e-3),
@@ -82,7 +83,7 @@ def test_glycerol_scales(field, printed, unit):
     [("10cSt", 0.068, 2.15), ("100cSt", 0.68, 0.217), ("1000cSt", 6.8, 0.022)],
 )
 def test_silicone_oil_scales(grade, oh, speed):
-    # Source: physics.md §1, silicone oils at 25 °C from the nominal data of
+    # Source: docs/physics.md §1, silicone oils at 25 °C from the nominal data of
     # §5.4 (C): Oh, u_v, and l_c ≈ 1.49 mm for all three; 2 % (nominal data).
     n = numbers_for(f"silicone-oil-{grade}", 25.0)
     assert n.ohnesorge == pytest.approx(oh, rel=0.02)
@@ -91,7 +92,7 @@ def test_silicone_oil_scales(grade, oh, speed):
 
 
 def test_diffusion_length_of_water():
-    # Source: physics.md §1: (nu t)^1/2 = 10 µm at t = 100 µs for water (C).
+    # Source: docs/physics.md §1: (nu t)^1/2 = 10 µm at t = 100 µs for water (C).
     n = numbers_for("water", 20.0)
     assert diffusion_length(kinematic_viscosity=n.kinematic_viscosity, time=100e-6) == (
         pytest.approx(10e-6, rel=0.01)
@@ -99,7 +100,7 @@ def test_diffusion_length_of_water():
 
 
 def test_thoroddsen_threshold_in_terms_of_oh():
-    # Source: physics.md §3 (V, Thoroddsen et al. 2005): Re_v = Oh^-2; viscosity
+    # Source: docs/physics.md §3 (V, Thoroddsen et al. 2005): Re_v = Oh^-2; viscosity
     # slows coalescence below Re_v = 5000, i.e. Oh = 0.014, and halves the rate
     # at Re_v ≈ 50, i.e. Oh ≈ 0.14; for water the latter is a ~2 µm diameter.
     assert 5000**-0.5 == pytest.approx(0.014, rel=0.02)
@@ -116,7 +117,7 @@ def test_thoroddsen_threshold_in_terms_of_oh():
 
 
 def test_outer_ohnesorge_at_the_published_crossover():
-    # Source: Nat. Commun. 5, 3182 (2014) via physics.md §2 A4 (V): air bubbles
+    # Source: Nat. Commun. 5, 3182 (2014) via docs/physics.md §2 A4 (V): air bubbles
     # (A = 0.94 mm) in silicone oils with γ = 15.9–21.5 mN/m switch from
     # outer-inertial to outer-viscous at η_o ≈ 99 mPa s, Oh_out ≈ 0.77. With
     # the oil's density (~965 kg/m^3, §5.4) the γ range must bracket 0.77.
@@ -134,7 +135,7 @@ positive = st.floats(min_value=1e-6, max_value=1e4, allow_nan=False)
 
 @given(eta=positive, rho=positive, gamma=st.floats(1e-3, 1.0), radius=st.floats(1e-5, 1e-1))
 def test_identities_between_the_scales(eta, rho, gamma, radius):
-    # Identities of physics.md §1 (D): Oh = τ_v/τ_i, l_ν = Oh² R, Bo = (R/ℓ_c)².
+    # Identities of docs/physics.md §1 (D): Oh = τ_v/τ_i, l_ν = Oh² R, Bo = (R/ℓ_c)².
     n = sample_numbers(surface_tension=gamma, viscosity=eta, density=rho, radius=radius)
     assert n.ohnesorge == pytest.approx(n.viscous_time / n.inertial_time, rel=1e-9)
     assert n.viscous_length == pytest.approx(n.ohnesorge**2 * radius, rel=1e-9)
@@ -164,6 +165,6 @@ def test_from_experiment_needs_the_drop_radius():
         experiment_from_toml('[liquid]\nname = "water"\n[drops]\nradius = "1 mm"')
     )
     n = sample_numbers_from_experiment(exp)
-    # Water's 1.0016 mPa s (physics.md §5.1) over air's 0.018 mPa s (design.md's
+    # Water's 1.0016 mPa s (docs/physics.md §5.1) over air's 0.018 mPa s (docs/architecture.md's
     # experiment example): about 55.
     assert n.viscosity_ratio == pytest.approx(1.0016 / 0.018, rel=0.02)

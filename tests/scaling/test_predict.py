@@ -1,4 +1,4 @@
-"""Crossovers and recording plans against the worked values of physics.md §3 and §4."""
+"""Crossovers and recording plans against the worked values of docs/physics.md §3 and §4."""
 
 import json
 import math
@@ -39,7 +39,7 @@ GLYCEROL = sample("glycerol")
 
 
 def test_water_viscous_inertial_crossover():
-    # Source: physics.md §3 (C, O(1) factors omitted): Oh R ≈ 3.7 µm and
+    # Source: docs/physics.md §3 (C, O(1) factors omitted): Oh R ≈ 3.7 µm and
     # Oh τ_v ≈ 51 ns for water, R = 1 mm; printed to two digits: 2 %.
     t, r = viscous_inertial_crossover(
         viscosity=WATER.viscosity,
@@ -58,7 +58,7 @@ def test_water_viscous_inertial_crossover():
 
 
 def test_glycerol_never_reaches_inertia():
-    # Source: physics.md §3: glycerol Oh R ≈ 5 mm > R, so the inertial regime
+    # Source: docs/physics.md §3: glycerol Oh R ≈ 5 mm > R, so the inertial regime
     # is never reached.
     _, r = viscous_inertial_crossover(
         viscosity=GLYCEROL.viscosity,
@@ -95,7 +95,7 @@ def test_outer_viscosity_takes_over_only_above_the_drops():
 
 
 def test_tanner_gives_way_to_gravity_near_the_capillary_length():
-    # Source: physics.md §3 (M): once R_c ≳ ℓ_c the 1/10 law gives way to 1/8.
+    # Source: docs/physics.md §3 (M): once R_c ≳ ℓ_c the 1/10 law gives way to 1/8.
     # The crossing of the two catalogue laws lies within 20 % of ℓ_c, and both
     # laws give the same radius there (D).
     t, r = tanner_gravity_crossover(
@@ -111,7 +111,7 @@ def test_tanner_gives_way_to_gravity_near_the_capillary_length():
 
 
 def test_water_plan_matches_the_frame_rate_rules_of_thumb():
-    # Source: physics.md §4.5 (C/M): one decade of inertial data inside the
+    # Source: docs/physics.md §4.5 (C/M): one decade of inertial data inside the
     # first 100 µs needs ≥ 1e5 frames/s; ultra-high-speed cameras run at ~1e6
     # frames/s, so the ILV stage of water (r < 4 µm, t < 0.1 µs) is out of reach.
     r_100us = regime("inertial").law(WATER)([100e-6])[0]
@@ -124,7 +124,7 @@ def test_water_plan_matches_the_frame_rate_rules_of_thumb():
 
 
 def test_glycerol_plan_needs_only_a_modest_camera():
-    # Source: physics.md §4.5 (M): viscous liquids need only 1e2–1e4 frames/s.
+    # Source: docs/physics.md §4.5 (M): viscous liquids need only 1e2–1e4 frames/s.
     p = predict(GLYCEROL, "coalescence")
     assert 1e2 <= p.plan.frame_rate <= 1e4
 
@@ -166,7 +166,7 @@ def test_prediction_is_strict_json(geometry):
 
 
 def test_spreading_sequence_for_a_small_viscous_drop():
-    # Source: physics.md §3 (M): viscous log law (high Oh) → Tanner → gravity.
+    # Source: docs/physics.md §3 (M): viscous log law (high Oh) → Tanner → gravity.
     p = predict(GLYCEROL, "spreading")
     expected = [w.key for w in p.windows if w.expected]
     assert expected[:1] == ["viscous-spreading"] and "gravity-spreading" in expected

@@ -7,18 +7,18 @@ import numpy as np
 import pytest
 
 from dropkin.errors import FitError
+from dropkin.fitting import harmonic_blend
 from dropkin.scaling import (
     RegimeVerdict,
     analyze_series,
     format_verdict,
-    harmonic_blend,
     regime,
     sample_numbers,
     verdict_to_dict,
 )
 
-AIR = {"outer_viscosity": 1.8e-5, "outer_density": 1.2}  # design.md's example medium
-# physics.md §5.1 (water, 20 °C), §5.2 (glycerol, 20 °C; γ from CRC, M), §5.5
+AIR = {"outer_viscosity": 1.8e-5, "outer_density": 1.2}  # docs/architecture.md's example medium
+# docs/physics.md §5.1 (water, 20 °C), §5.2 (glycerol, 20 °C; γ from CRC, M), §5.5
 # (50 wt % glycerol–water: Cheng viscosity, Volk density; γ from memory, M),
 # §5.4 (100 cSt silicone oil, nominal).
 WATER = sample_numbers(
@@ -157,7 +157,7 @@ def test_terminal_table_lists_every_candidate():
 
 
 def test_viscous_log_law_verdict_on_glycerol():
-    # ELS law with C = 1/π (physics.md §2 A1), glycerol: u = γ/η ≈ 4.5 cm/s.
+    # ELS law with C = 1/π (docs/physics.md §2 A1), glycerol: u = γ/η ≈ 4.5 cm/s.
     u, big_r = GLYCEROL.capillary_speed, GLYCEROL.radius
     law = regime("viscous").law(GLYCEROL)
     tau_b = 0.3 * big_r / u
@@ -166,7 +166,7 @@ def test_viscous_log_law_verdict_on_glycerol():
     assert v.decidable and v.regimes == ("viscous",)
     assert "the log law's" in v.sentence
     assert v.dominant.coefficient_fit == pytest.approx(1 / math.pi, rel=0.02)
-    # A pure power-law fit of this law reads well below 1 (physics.md §2 A1:
+    # A pure power-law fit of this law reads well below 1 (docs/physics.md §2 A1:
     # its local exponent is 1 + 1/ln(uτ/R), 0.86 to 0.17 here), and agrees with
     # the law's own apparent exponent over the window (0.02, check (a)); the
     # linear ILV law (n = 1) fails check (a).
@@ -179,7 +179,7 @@ def test_viscous_log_law_verdict_on_glycerol():
 def test_two_regimes_with_their_crossover():
     # Harmonic blend of ILV (C_v = 1) and inertial (D0 = 1.2) for 50 wt %
     # glycerol–water; the laws meet at t_c = (a2/a1)² (analytic), and the
-    # catalogue predicts t_c = (D0/C_v)² Oh² τ_i (physics.md §3): the same.
+    # catalogue predicts t_c = (D0/C_v)² Oh² τ_i (docs/physics.md §3): the same.
     a1 = GW50.capillary_speed
     a2 = 1.2 * regime("inertial").group(GW50)
     tc = (a2 / a1) ** 2

@@ -2,26 +2,26 @@
 
 Every series is made analytically in this file from a catalogue law
 (``regime(key).law(numbers)``) or from the harmonic blend of two of them
-(``harmonic_blend``, physics.md §3), for a sample whose dimensionless numbers
+(``harmonic_blend``, docs/physics.md §3), for a sample whose dimensionless numbers
 allow that regime. The camera is simulated plainly: uniform frames; the
 contact instant uniform inside its frame, bracketed by the last frame before
 it and the first after it; frames before ``τ_a`` are ``unresolved``; the
 pixel size makes the first ``ok`` radius at least 8 px and the last at least
-100 px (physics.md §4.4: r ≥ 5–10 px); Gaussian noise of 0.2–2 px (uniform)
+100 px (docs/physics.md §4.4: r ≥ 5–10 px); Gaussian noise of 0.2–2 px (uniform)
 is added and given as ``radius_err``.
 
 Samples (20 °C unless stated; with air, η_o = 1.8e-5 Pa s and ρ_o = 1.2 kg/m³,
-the values of design.md's example file):
+the values of docs/architecture.md's example file):
 
-- water: γ = 72.74 mN/m, η = 1.0016 mPa s, ρ = 998.207 kg/m³ (physics.md §5.1);
+- water: γ = 72.74 mN/m, η = 1.0016 mPa s, ρ = 998.207 kg/m³ (docs/physics.md §5.1);
 - glycerol: γ = 63.4 mN/m (CRC, M), η = 1.414 Pa s (Cheng), ρ = 1261.1 kg/m³ (§5.2);
 - glycerol–water 50/80/90 wt %: η = 6.002/60.86/223.7 mPa s (Cheng, §5.5),
   ρ = 1126.23/1208.12/1235.13 kg/m³ (Volk & Kähler, §5.5); γ = 68/65/64 mN/m
-  (not in physics.md: from memory, M — the verdict only needs them consistent);
+  (not in docs/physics.md: from memory, M — the verdict only needs them consistent);
 - silicone oils 100 and 1000 cSt at 25 °C: γ = 20.9, 21.2 mN/m; ρ = 964.5, 970.5
-  kg/m³; η = 96.5, 970 mPa s (physics.md §5.4, nominal grades);
+  kg/m³; η = 96.5, 970 mPa s (docs/physics.md §5.4, nominal grades);
 - air bubbles in water and in 1000 cSt oil (A = 0.94 mm, as the Nat. Commun.
-  2014 data of physics.md §2 A4).
+  2014 data of docs/physics.md §2 A4).
 
 Prefactors are the catalogue's (D0 = 1.2, C1 = 1.2, D1 = 1.4, 1/π, 0.665,
 0.83, 0.779, C_v = 1); the sessile laws have no published C, so the synthetic
@@ -34,7 +34,8 @@ from collections import Counter, defaultdict
 import numpy as np
 import pytest
 
-from dropkin.scaling import analyze_series, harmonic_blend, regime, sample_numbers
+from dropkin.fitting import harmonic_blend
+from dropkin.scaling import analyze_series, regime, sample_numbers
 
 AIR = {"outer_viscosity": 1.8e-5, "outer_density": 1.2}
 WATER = {"surface_tension": 0.07274, "viscosity": 1.0016e-3, "density": 998.207}
@@ -240,7 +241,7 @@ def test_bank_exponents_are_within_two_hundredths(bank):
     # Single regimes span 1 to 3 decades. Truth: for a power law its n; for
     # the log law, the slope numpy.polyfit finds for the exact law on the same
     # points with the same weights (r/σ), since a power-law fit of the ELS law
-    # drifts with the window (physics.md §2 A1). Bound 0.02 (the issue's).
+    # drifts with the window (docs/physics.md §2 A1). Bound 0.02 (the issue's).
     errors = []
     for row in bank:
         if len(row["truth"]) != 1:

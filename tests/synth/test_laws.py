@@ -1,4 +1,4 @@
-"""Radius laws against the formulas and computed values of shared/physics.md section 2."""
+"""Radius laws against the formulas and computed values of docs/physics.md section 2."""
 
 import math
 
@@ -26,7 +26,7 @@ WATER = {"surface_tension": 72.74e-3, "density": 998.2}
 
 
 def test_inertial_law_matches_the_water_numbers_of_physics_md():
-    # physics.md A3 (status C, D0 = 1): (gamma R / rho)^(1/4) = 0.0164 m s^-1/2 for
+    # docs/physics.md A3 (status C, D0 = 1): (gamma R / rho)^(1/4) = 0.0164 m s^-1/2 for
     # water, R = 1 mm; r = 16, 52, 164, 520 um at 1 us, 10 us, 100 us, 1 ms. The notes
     # give each to its last digit, so the tolerance is half a unit of that digit.
     law = inertial_law(drop_radius=1e-3, **WATER)
@@ -47,7 +47,7 @@ def test_inertial_prefactor_scales_the_radius():
 
 
 def test_viscous_law_has_the_local_slopes_of_physics_md():
-    # physics.md A1 (status C): d ln r / d ln t = 1 + 1/ln(gamma t/(eta R)) is 0.89,
+    # docs/physics.md A1 (status C): d ln r / d ln t = 1 + 1/ln(gamma t/(eta R)) is 0.89,
     # 0.86, 0.78, 0.57 at gamma t/(eta R) = 1e-4 ... 1e-1 (two digits: +-0.01).
     gamma, eta, radius = 0.063, 1.4, 1e-3
     law = viscous_law(surface_tension=gamma, viscosity=eta, drop_radius=radius)
@@ -56,7 +56,7 @@ def test_viscous_law_has_the_local_slopes_of_physics_md():
         t1, t2 = x * tau * (1 - 1e-6), x * tau * (1 + 1e-6)
         local = math.log(law(t2) / law(t1)) / math.log(t2 / t1)
         assert local == pytest.approx(slope, abs=0.01)
-    # The formula as written in physics.md A1, at one time.
+    # The formula as written in docs/physics.md A1, at one time.
     t = 1e-3 * tau
     assert law(t) == pytest.approx(
         -(gamma * t / (math.pi * eta)) * math.log(gamma * t / (eta * radius))
@@ -66,7 +66,7 @@ def test_viscous_law_has_the_local_slopes_of_physics_md():
 
 
 def test_viscous_spreading_uses_the_same_log_form():
-    # physics.md C2: the A1 form with the contact radius in place of r.
+    # docs/physics.md C2: the A1 form with the contact radius in place of r.
     kwargs = {"surface_tension": 0.02, "viscosity": 0.1, "drop_radius": 1e-3}
     t = np.geomspace(1e-6, 1e-3, 5)
     np.testing.assert_allclose(viscous_spreading_law(**kwargs)(t), viscous_law(**kwargs)(t))
@@ -74,13 +74,13 @@ def test_viscous_spreading_uses_the_same_log_form():
 
 
 def test_viscous_outer_law_formula():
-    # physics.md A4v: r = C1 (gamma A t / eta_o)^(1/2), C1 = 1.2 (V).
+    # docs/physics.md A4v: r = C1 (gamma A t / eta_o)^(1/2), C1 = 1.2 (V).
     law = viscous_outer_law(surface_tension=0.02, outer_viscosity=0.1, drop_radius=1e-3)
     assert law(1e-2) == pytest.approx(1.2 * math.sqrt(0.02 * 1e-3 * 1e-2 / 0.1), rel=1e-12)
 
 
 def test_inertial_spreading_default_prefactor():
-    # physics.md C1: R_c = C (gamma R / rho)^(1/4) t^(1/2), C ~ 1.2 (M, assumed).
+    # docs/physics.md C1: R_c = C (gamma R / rho)^(1/4) t^(1/2), C ~ 1.2 (M, assumed).
     law = inertial_spreading_law(drop_radius=1e-3, **WATER)
     group = (WATER["surface_tension"] * 1e-3 / WATER["density"]) ** 0.25
     assert law(1e-4) == pytest.approx(1.2 * group * 1e-2, rel=1e-12)
@@ -88,7 +88,7 @@ def test_inertial_spreading_default_prefactor():
 
 @pytest.mark.parametrize(("log_ratio", "prefactor"), [(10, 0.86), (15, 0.83), (20, 0.81)])
 def test_tanner_prefactor_matches_physics_md(log_ratio, prefactor):
-    # physics.md C4 (status C): C = [(10/(9 L))(4/pi)^3]^(1/10) on (gamma V^3/eta)^(1/10),
+    # docs/physics.md C4 (status C): C = [(10/(9 L))(4/pi)^3]^(1/10) on (gamma V^3/eta)^(1/10),
     # given to two digits (+-0.005).
     gamma, eta, volume, t = 0.02, 0.1, 4e-9, 3.0
     law = tanner_law(surface_tension=gamma, viscosity=eta, drop_volume=volume, log_ratio=log_ratio)
@@ -97,7 +97,7 @@ def test_tanner_prefactor_matches_physics_md(log_ratio, prefactor):
 
 
 def test_gravity_spreading_prefactor_matches_physics_md():
-    # physics.md C5 (D): 0.894 = (1024/(81 pi^3))^(1/8) on (rho g V^3 t/(3 eta))^(1/8),
+    # docs/physics.md C5 (D): 0.894 = (1024/(81 pi^3))^(1/8) on (rho g V^3 t/(3 eta))^(1/8),
     # i.e. 0.779 on (rho g V^3 t/eta)^(1/8) (summary table, 3 digits).
     assert (1024 / (81 * math.pi**3)) ** 0.125 == pytest.approx(0.894, abs=5e-4)
     rho, eta, volume, g = 970.0, 0.97, 1e-8, 9.80665
@@ -113,7 +113,7 @@ def test_radius_is_zero_before_and_at_contact():
 
 
 def test_harmonic_blend_is_the_harmonic_sum():
-    # physics.md section 3: 1/r = 1/r1 + 1/r2.
+    # docs/physics.md section 3: 1/r = 1/r1 + 1/r2.
     fast = power_law(prefactor=1.0, exponent=1.0)
     slow = power_law(prefactor=0.1, exponent=0.5)
     blend = harmonic_blend(fast, slow)

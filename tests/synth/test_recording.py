@@ -21,7 +21,7 @@ GAMMA, RHO, R = 72.74e-3, 998.2, 1e-3
 
 
 def test_truth_follows_the_law_with_a_sub_frame_contact():
-    # physics.md A3 written out here: r = D0 (gamma R / rho)^(1/4) t^(1/2), D0 = 1.
+    # docs/physics.md A3 written out here: r = D0 (gamma R / rho)^(1/4) t^(1/2), D0 = 1.
     rate, contact = 2e4, 3.4
     law = inertial_law(surface_tension=GAMMA, density=RHO, drop_radius=R)
     rec = synthesize(

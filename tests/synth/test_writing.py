@@ -170,7 +170,7 @@ def test_truth_json_matches_the_law_at_the_frame_times(tmp_path):
     assert truth["frame_time_s"] == pytest.approx(times.tolist(), abs=1e-15)
     assert truth["contact_time_s"] == pytest.approx(2.3 / rate)
     assert truth["contact_frame"] == 2.3
-    # physics.md A3 with D0 = 1, written out: r = (gamma R / rho)^(1/4) t^(1/2).
+    # docs/physics.md A3 with D0 = 1, written out: r = (gamma R / rho)^(1/4) t^(1/2).
     since = times - 2.3 / rate
     expected = np.where(since > 0, (0.0727 * 0.3e-3 / 998.0) ** 0.25 * np.sqrt(np.abs(since)), 0)
     np.testing.assert_allclose(truth["radius_m"], expected, rtol=1e-12)

@@ -6,7 +6,7 @@ parameters written to ``truth.json``, and the time after contact up to which
 the formula is meaningful (``valid_until``).
 
 The regime laws implement the formulas of the project's physics notes
-(``shared/physics.md``, section 2); each docstring gives the formula, its
+(``docs/physics.md``, section 2); each docstring gives the formula, its
 source and the status label of the notes (V checked, C computed, D derived,
 M from memory).
 
@@ -121,7 +121,7 @@ def power_law(*, prefactor: float, exponent: float, name: str = "power") -> Radi
 
 
 def harmonic_blend(first: RadiusLaw, second: RadiusLaw) -> RadiusLaw:
-    """Crossover by the harmonic blend 1/r = 1/r1 + 1/r2 (physics.md section 3).
+    """Crossover by the harmonic blend 1/r = 1/r1 + 1/r2 (docs/physics.md section 3).
 
     The smaller of the two laws dominates at each time, so a fast early law
     hands over to a slow late one (e.g. inertial spreading to Tanner), and a
@@ -185,7 +185,7 @@ def _log_law(name, *, surface_tension, viscosity, drop_radius, radius_key):
 
 
 def viscous_law(*, surface_tension: float, viscosity: float, drop_radius: float) -> RadiusLaw:
-    """Viscous (Stokes) coalescence, physics.md A1 (the ELS law).
+    """Viscous (Stokes) coalescence, docs/physics.md A1 (the ELS law).
 
     r = -(gamma t / (pi eta)) ln(gamma t / (eta R)), from Eggers, Lister & Stone,
     J. Fluid Mech. 401, 293 (1999) (V for the magnitude form; the minus sign is
@@ -204,7 +204,7 @@ def viscous_law(*, surface_tension: float, viscosity: float, drop_radius: float)
 def viscous_spreading_law(
     *, surface_tension: float, viscosity: float, drop_radius: float
 ) -> RadiusLaw:
-    """Early viscous spreading, physics.md C2: the A1 log law with a in place of r.
+    """Early viscous spreading, docs/physics.md C2: the A1 log law with a in place of r.
 
     a = -(gamma t / (pi eta)) ln(gamma t / (eta R)); Eddi, Winkels & Snoeijer,
     Phys. Fluids 25, 013102 (2013) report that early viscous spreading follows
@@ -222,7 +222,7 @@ def viscous_spreading_law(
 def inertial_law(
     *, surface_tension: float, density: float, drop_radius: float, prefactor: float = 1.0
 ) -> RadiusLaw:
-    """Inertial coalescence, physics.md A3: r = D0 (gamma R / rho)^(1/4) t^(1/2).
+    """Inertial coalescence, docs/physics.md A3: r = D0 (gamma R / rho)^(1/4) t^(1/2).
 
     The scaling is from the capillary-inertial balance at the neck (D; also in
     Eggers, Lister & Stone 1999, M). The prefactor D0 defaults to 1.0, an
@@ -251,7 +251,7 @@ def viscous_outer_law(
     drop_radius: float,
     prefactor: float = 1.2,
 ) -> RadiusLaw:
-    """Coalescence in a viscous outer fluid, physics.md A4v.
+    """Coalescence in a viscous outer fluid, docs/physics.md A4v.
 
     r = C1 (gamma A t / eta_o)^(1/2) with C1 = 1.2 (Nature Commun. 5, 3182
     (2014), V for C1; the explicit form is reconstructed from the fitted time
@@ -281,7 +281,7 @@ def viscous_outer_law(
 def inertial_spreading_law(
     *, surface_tension: float, density: float, drop_radius: float, prefactor: float = 1.2
 ) -> RadiusLaw:
-    """Inertial spreading, physics.md C1: a = C (gamma R / rho)^(1/4) t^(1/2).
+    """Inertial spreading, docs/physics.md C1: a = C (gamma R / rho)^(1/4) t^(1/2).
 
     Biance, Clanet & Quere, PRE 69, 016301 (2004) (V for the inertial regime;
     the standard form is M). C defaults to 1.2, an assumed value (M).
@@ -298,7 +298,7 @@ def inertial_spreading_law(
 def tanner_law(
     *, surface_tension: float, viscosity: float, drop_volume: float, log_ratio: float = 15.0
 ) -> RadiusLaw:
-    """Tanner's law, physics.md C4: a = [(10/(9 L)) (4V/pi)^3 gamma t / eta]^(1/10).
+    """Tanner's law, docs/physics.md C4: a = [(10/(9 L)) (4V/pi)^3 gamma t / eta]^(1/10).
 
     Tanner, J. Phys. D 12, 1473 (1979) (V, citation); the explicit form is
     derived in the notes from the Cox-Voinov relation and a thin cap (D). L is
@@ -336,7 +336,7 @@ def gravity_spreading_law(
     gravity: float = STANDARD_GRAVITY,
     prefactor: float = 0.894,
 ) -> RadiusLaw:
-    """Gravity-viscous spreading, physics.md C5: a = 0.894 (rho g V^3 t / (3 eta))^(1/8).
+    """Gravity-viscous spreading, docs/physics.md C5: a = 0.894 (rho g V^3 t / (3 eta))^(1/8).
 
     Huppert, J. Fluid Mech. 121, 43 (1982) (V for the similarity solution);
     0.894 = (1024 / (81 pi^3))^(1/8) is derived in the notes (D). For an outer

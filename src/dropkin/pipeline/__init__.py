@@ -1,0 +1,19 @@
+"""One recording from frames to report: open, check, measure, fit, report."""
+
+from ._steps import Analysis as Analysis
+from ._steps import AnalysisSettings as AnalysisSettings
+from ._steps import analyze_into as analyze_into
+from ._steps import fit_into as fit_into
+from ._steps import measure_into as measure_into
+from ._steps import open_source as open_source
+from ._steps import parse_roi as parse_roi
+
+__all__ = [
+    "AnalysisSettings",
+    "Analysis",
+    "parse_roi",
+    "open_source",
+    "measure_into",
+    "fit_into",
+    "analyze_into",
+]

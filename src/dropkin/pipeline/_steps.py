@@ -1,0 +1,313 @@
+"""One recording from frames to report: the steps ``analyze`` and ``batch`` share.
+
+:func:`open_source` reads the experiment and opens the recording it
+describes; :func:`measure_into` measures it and writes ``radius.csv``,
+``measure.json`` and ``overlays/``; :func:`fit_into` writes ``fit.json``;
+:func:`analyze_into` does all of it and adds ``plots/`` and ``report.html``.
+Nothing here prints: the command line and the batch runner report progress
+their own way.
+"""
+
+from __future__ import annotations
+
+from collections.abc import Callable
+from dataclasses import dataclass
+from pathlib import Path
+
+from ..errors import MeasurementError
+
+__all__ = [
+    "parse_roi",
+    "AnalysisSettings",
+    "Analysis",
+    "open_source",
+    "measure_into",
+    "fit_into",
+    "analyze_into",
+]
+
+
+@dataclass(frozen=True)
+class AnalysisSettings:
+    """Everything but the sample that decides an analysis' result.
+
+    Attributes
+    ----------
+    roi : tuple of int or None
+        Region of interest (row_start, row_stop, col_start, col_stop), pixels.
+    threshold : float
+        Edge level (see :class:`dropkin.measure.MeasureOptions`, ``level``).
+    background : str or None
+        Path of an image of the empty field of view.
+    jobs, chunk_size : int
+        Worker processes and frames per chunk of the measurement (they do not
+        change the result).
+    overlays : int
+        Annotated frames to write.
+    t0 : float or None
+        Contact instant fixed by hand (s from the first frame).
+    seed, bootstrap : int
+        Bootstrap seed and resamples of the fit's intervals.
+    """
+
+    roi: tuple[int, int, int, int] | None = None
+    threshold: float = 0.5
+    background: str | None = None
+    jobs: int = 1
+    chunk_size: int = 64
+    overlays: int = 6
+    t0: float | None = None
+    seed: int = 0
+    bootstrap: int = 200
+
+    def result_settings(self) -> dict:
+        """The settings that can change the outputs (for a settings hash)."""
+        return {
+            "roi": None if self.roi is None else list(self.roi),
+            "threshold": self.threshold,
+            "background": self.background,
+            "overlays": self.overlays,
+            "t0": self.t0,
+            "seed": self.seed,
+            "bootstrap": self.bootstrap,
+        }
+
+
+@dataclass(frozen=True)
+class Analysis:
+    """What one analysis wrote and found.
+
+    Attributes
+    ----------
+    series : RadiusSeries
+    contact_method : str
+        How the contact instant was found (or why it was not).
+    verdict : RegimeVerdict or None
+        None when there was no contact to fit from.
+    numbers : SampleNumbers or None
+    experiment : Experiment
+        As used, with the library's values filled in.
+    report : pathlib.Path or None
+    """
+
+    series: object
+    contact_method: str
+    verdict: object | None
+    numbers: object | None
+    experiment: object
+    report: Path | None
+
+
+def parse_roi(text, *, key: str = "--roi", path=None):
+    """``'ROW0:ROW1,COL0:COL1'`` -> (row0, row1, col0, col1); None stays None.
+
+    Raises
+    ------
+    ExperimentError
+        Naming `key` (and `path`) when the text is not four whole numbers in
+        that form. Whether the region fits the frame is checked on measuring.
+
+    Examples
+    --------
+    >>> parse_roi("100:300,50:450")
+    (100, 300, 50, 450)
+    """
+    from ..errors import ExperimentError
+
+    if text is None:
+        return None
+    try:
+        rows, cols = text.split(",")
+        r0, r1 = (int(v) for v in rows.split(":"))
+        c0, c1 = (int(v) for v in cols.split(":"))
+    except (ValueError, AttributeError):
+        raise ExperimentError(
+            "is not a region",
+            key=key,
+            value=text,
+            path=path,
+            expected="ROW0:ROW1,COL0:COL1 in pixels, e.g. 100:300,50:450",
+        ) from None
+    return (r0, r1, c0, c1)
+
+
+def open_source(source, *, experiment=None, overrides=None, origin: str = "command line"):
+    """The experiment (file + overrides) and the recording it describes.
+
+    Parameters
+    ----------
+    source : str or os.PathLike
+        A recording: folder of frames, multi-page TIFF or video.
+    experiment : str or os.PathLike, optional
+        Experiment file named explicitly.
+    overrides : dict, optional
+        Dotted keys and values that take precedence (see
+        :meth:`dropkin.experiment.Experiment.with_overrides`).
+    origin : str
+        Where an overriding frame rate came from, for the recording's record.
+    """
+    from ..experiment import load_experiment
+    from ..recording import open_recording
+
+    overrides = dict(overrides or {})
+    exp = load_experiment(source, experiment=experiment, overrides=overrides)
+    if overrides.get("recording.frame_rate") is not None:
+        rate_origin = origin
+    elif exp.recording.frame_rate is not None:
+        rate_origin = "experiment file"
+    else:
+        rate_origin = "given"
+    rec = open_recording(
+        source,
+        frame_rate=exp.recording.frame_rate,
+        frame_rate_origin=rate_origin,
+        pixel_size=exp.recording.pixel_size,
+        first_frame=exp.recording.first_frame,
+        last_frame=exp.recording.last_frame,
+    )
+    return exp, rec
+
+
+def measure_into(
+    out,
+    exp,
+    rec,
+    settings: AnalysisSettings = AnalysisSettings(),
+    *,
+    progress: Callable[[int, int], None] | None = None,
+    experiment_file=None,
+):
+    """Measure `rec` and write ``radius.csv``, ``measure.json`` and ``overlays/``.
+
+    Parameters
+    ----------
+    experiment_file : str or os.PathLike, optional
+        The experiment file to name in the provenance (default: the one `exp`
+        was read from).
+
+    Returns
+    -------
+    series : RadiusSeries
+        With ``contact_time`` None when no contact was seen (the outputs are
+        written all the same).
+    contact_method : str
+    """
+    from .._atomic import remove_temporaries
+    from ..measure._stream import MeasureOptions, measure, recording_sha256
+    from ..report._overlays import write_overlays
+    from ..series import write_series
+
+    background = None
+    if settings.background is not None:
+        from ..recording import read_image
+
+        background = read_image(settings.background)
+    options = MeasureOptions(
+        roi=settings.roi,
+        level=settings.threshold,
+        chunk_size=settings.chunk_size,
+        jobs=settings.jobs,
+        background=background,
+    )
+    series, extras = measure(rec, exp, options=options, progress=progress, keep_edges=True)
+    series.provenance["sha256"] = recording_sha256(rec)
+    named = experiment_file if experiment_file is not None else exp.path
+    series.provenance["experiment_file"] = None if named is None else str(Path(named).resolve())
+    out = Path(out)
+    remove_temporaries(out, out / "overlays")  # left by a run that was killed
+    write_series(series, out)
+    if settings.overlays:
+        write_overlays(rec, series, extras, out / "overlays", count=settings.overlays)
+    return series, extras["contact"].method
+
+
+def fit_into(radius_csv, out, *, experiment=None, t0=None, seed: int = 0, bootstrap: int = 200):
+    """Fit the regimes to a ``radius.csv``; write ``OUT/fit.json``.
+
+    Returns
+    -------
+    verdict : RegimeVerdict
+        Falsy (with its reason) when the data cannot support a fit; ``fit.json``
+        is written in both cases.
+    numbers : SampleNumbers
+    experiment : Experiment
+        The sample as used.
+    """
+    from .._atomic import remove_temporaries
+    from ._fit import fit_measurement, load_measurement, write_fit
+
+    measurement = load_measurement(radius_csv, experiment=experiment)
+    verdict, numbers = fit_measurement(measurement, t0=t0, seed=seed, bootstrap=bootstrap)
+    remove_temporaries(out, Path(out) / "plots")  # left by a run that was killed
+    write_fit(verdict, out)
+    return verdict, numbers, measurement.experiment
+
+
+def analyze_into(
+    source,
+    out,
+    settings: AnalysisSettings = AnalysisSettings(),
+    *,
+    experiment=None,
+    overrides=None,
+    origin: str = "command line",
+    experiment_copy: bool = False,
+    published_dir=None,
+    progress: Callable[[int, int], None] | None = None,
+) -> Analysis:
+    """Measure, fit and report one recording into the folder `out`.
+
+    Parameters
+    ----------
+    experiment_copy : bool
+        Also write the experiment as used to ``OUT/experiment.toml`` and name
+        that file in the provenance (for a campaign, whose values come from a
+        manifest rather than one file).
+    published_dir : str or os.PathLike, optional
+        Where `out` will be moved once complete (the provenance names the
+        experiment copy there).
+
+    Raises
+    ------
+    MeasurementError
+        When no contact is seen (``radius.csv`` and ``measure.json`` are
+        written first, so the frames that were measured are kept).
+    DropkinError
+        For any other input that cannot be read or measured.
+    """
+    from .._atomic import write_text_atomic
+    from ..experiment import experiment_to_toml
+    from ..report import write_analysis_outputs
+    from ._fit import check_sample
+
+    out = Path(out)
+    exp, rec = open_source(source, experiment=experiment, overrides=overrides, origin=origin)
+    check_sample(exp)  # a bad sample description fails before the frames are measured
+    copy = None
+    if experiment_copy:
+        out.mkdir(parents=True, exist_ok=True)
+        write_text_atomic(
+            out / "experiment.toml",
+            experiment_to_toml(exp, header=f"The experiment as analysed, for {source}"),
+        )
+        copy = Path(published_dir if published_dir is not None else out) / "experiment.toml"
+    series, method = measure_into(out, exp, rec, settings, progress=progress, experiment_file=copy)
+    if series.contact_time is None:
+        raise MeasurementError(method, path=rec.path)
+    verdict, numbers, used = fit_into(
+        out / "radius.csv",
+        out,
+        experiment=exp,
+        t0=settings.t0,
+        seed=settings.seed,
+        bootstrap=settings.bootstrap,
+    )
+    report = write_analysis_outputs(out, experiment=used) if verdict else None
+    return Analysis(
+        series=series,
+        contact_method=method,
+        verdict=verdict,
+        numbers=numbers,
+        experiment=used,
+        report=report,
+    )

@@ -1,0 +1,1 @@
+"""What a sample should show and how to record it: ``dropkin predict``."""

@@ -1,0 +1,2 @@
+"""The regime verdict: every candidate regime confronted with a fitted series,
+ranked, and said in one sentence."""

@@ -1,0 +1,295 @@
+"""The evidence for each candidate: its window and fits, for one regime or a crossover's sides.
+
+One regime: for each law form among the candidates, the window where the
+local exponent agrees with it, a power law with n free over that window
+(bootstrap interval), and the law itself with its prefactor free (over the
+window, or the whole series when there is no window). Two regimes: the
+blend of two catalogue laws with the lowest AIC fixes the crossover; for
+each side, that blend refitted with this side's exponent free (the other
+law and the sharpness kept) gives the exponent and its interval; each
+candidate's prefactor and AIC come from the blend of its law with the
+other side's law.
+
+Examples
+--------
+>>> from dropkin.scaling import regime, sample_numbers
+>>> water = sample_numbers(surface_tension=0.0727, viscosity=1e-3, density=998.0, radius=1e-3)
+>>> t, how = predicted_crossover(water, "spreading", regime("inertial-spreading"),
+...                              regime("tanner"))
+>>> round(t * 1e3, 1), how.split(" = ")[0]
+(17.5, 'C (γR/ρ)^(1/4) t^(1/2)')
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass
+
+from ...errors import ExperimentError
+from ...fitting._blends import blend_fit
+from ...fitting._bootstrap import bootstrap_blend, bootstrap_linear, group_relative_uncertainty
+from ...fitting._core import Series, apparent_exponent
+from ...fitting._local import local_from_series
+from ...fitting._power import LinearModel, linear_fit
+from ...fitting._windows import consistent_window, points_in
+from ..regimes._crossovers import crossovers, power_law_crossing
+from ._judge import EXPONENT_TOLERANCE, judge, rank
+
+__all__ = ["CrossoverFit", "predicted_crossover", "evaluate_one_regime", "evaluate_two_regimes"]
+
+_NAN2 = (math.nan, math.nan)
+
+
+@dataclass(frozen=True)
+class CrossoverFit:
+    """A crossover found in the data.
+
+    Attributes
+    ----------
+    early, late : str
+        Keys of the regimes before and after.
+    time : float
+        Time since contact at which their laws meet (s).
+    time_ci : tuple of float
+        Its 95 % interval (bootstrap, or normal approximation when bootstrap = 0).
+    radius : float
+        The laws' common radius there (m).
+    predicted_time : float or None
+        The catalogue's estimate for the sample (s), when it has one.
+    predicted_formula : str
+        How the prediction was made.
+    sharpness : float
+        Sharpness s of the blend (1 is the harmonic form).
+    delta_aic : float
+        How much the two-regime model beats the best one-regime model.
+    model : str
+        The two-regime model that located it.
+    """
+
+    early: str
+    late: str
+    time: float
+    time_ci: tuple[float, float]
+    radius: float
+    predicted_time: float | None
+    predicted_formula: str
+    sharpness: float
+    delta_aic: float
+    model: str
+
+
+def predicted_crossover(numbers, geometry, early, late):
+    """The catalogue's crossover time for two regimes, and how it was made.
+
+    The crossovers of :func:`crossovers` first (its viscous side is the
+    linear law ``C_v (γ/η) t``, so it also stands for the ILV regime); else
+    the crossing of the two published laws (C = 1 where none is published).
+    Returns ``(None, "")`` when neither applies.
+    """
+    try:
+        known = crossovers(numbers, geometry)
+    except ExperimentError:
+        known = ()
+    linear_like = {"viscous", "inertially-limited-viscous"}
+    for x in known:
+        if x.late == late.key and (
+            x.early == early.key or (x.early == "viscous" and early.key in linear_like)
+        ):
+            return x.time, x.formula
+    if early.logarithmic or late.logarithmic or early.exponent == late.exponent:
+        return None, ""
+    g1, g2 = early.group(numbers), late.group(numbers)
+    if g1 is None or g2 is None:
+        return None, ""
+    c1 = 1.0 if early.prefactor is None else early.prefactor
+    c2 = 1.0 if late.prefactor is None else late.prefactor
+    t, _ = power_law_crossing(c1 * g1, early.exponent, c2 * g2, late.exponent)
+    return t, "crossing of the two published laws"
+
+
+def _expected_exponent(shape, points, t0, f_scale):
+    """What the free power-law fit reports if the law holds exactly on these points.
+
+    For a power law, n. For the log law, the same robust weighted fit (t0
+    fixed) applied to the law's own values, so that the weights the robust
+    loss gives to the law's curvature are reproduced.
+    """
+    if not shape.logarithmic:
+        return float(shape.exponent)
+    exact = Series(points.time, shape.log_shape(points.time - t0), points.s, points.weighted)
+    fit = linear_fit(exact, LinearModel(None), t0, t0, loss="soft_l1", f_scale=f_scale)
+    return fit.exponent if fit else apparent_exponent(shape, points.time - t0, 1.0 / points.s**2)
+
+
+def _shape_evidence(data, shape, local, t0, lo, hi, f_scale, search, bootstrap, seed):
+    window = consistent_window(local, shape, tolerance=EXPONENT_TOLERANCE)
+    pts = points_in(data, t0, window) if window is not None else None
+    fit_kw = {"loss": "soft_l1", "f_scale": f_scale}
+    if pts is not None:
+        free = (
+            search.free
+            if len(pts) == len(data)
+            else linear_fit(pts, LinearModel(None), lo, hi, **fit_kw)
+        )
+        if free and bootstrap:
+            free = bootstrap_linear(
+                pts, LinearModel(None), free, f_scale=f_scale, n=bootstrap, seed=seed
+            )
+    if pts is None or not free:
+        pts, free = None, None
+    whole = pts is None or len(pts) == len(data)
+    on = data if pts is None else pts
+    fixed = (
+        search.singles[shape] if whole else linear_fit(on, LinearModel(shape), lo, hi, **fit_kw)
+    )
+    if fixed and bootstrap:
+        fixed = bootstrap_linear(
+            on, LinearModel(shape), fixed, f_scale=f_scale, n=bootstrap, seed=seed
+        )
+    expected = _expected_exponent(shape, on, free.t0 if free else t0, f_scale)
+    return {
+        "exponent_expected": expected,
+        "exponent_fit": free.exponent if free else math.nan,
+        "exponent_ci": free.exponent_ci if free else _NAN2,
+        "window": None if pts is None else (float(pts.time[0] - t0), float(pts.time[-1] - t0)),
+        "prefactor_fit": fixed.prefactor if fixed else math.nan,
+        "prefactor_fit_ci": fixed.prefactor_ci if fixed else _NAN2,
+        "aic": search.singles[shape].aic,
+        "fit": free,
+        "law_fit": fixed,
+    }
+
+
+def evaluate_one_regime(
+    *, data, lo, hi, f_scale, cands, shapes, search, relative, bootstrap, seed, numbers, geometry
+):
+    """Ranked candidates of a one-regime series."""
+    t0 = search.free.t0
+    local = local_from_series(data, t0, (lo, hi))
+    evidence = {}
+    for shape in dict.fromkeys(shapes.values()):
+        evidence[shape] = _shape_evidence(
+            data, shape, local, t0, lo, hi, f_scale, search, bootstrap, seed
+        )
+    fits = [
+        judge(
+            c,
+            segment="all",
+            shape=shapes[c.regime.key],
+            group_rel_err=group_relative_uncertainty(c.regime, relative),
+            **evidence[shapes[c.regime.key]],
+        )
+        for c in cands
+    ]
+    return {"sides": (rank(fits),), "crossovers": (), "local": local, "t0": t0}
+
+
+def _side_exponent(data, lo, hi, side, context, pair_key, f_scale, bootstrap, seed):
+    """This side's exponent: the blend refitted with it free, the other law and s kept."""
+    early, late = (None, pair_key[1]) if side == "early" else (pair_key[0], None)
+    spec = {
+        "kind": "blend",
+        "early": early,
+        "late": late,
+        "sharpness": context.sharpness,
+        "direction": context.direction,
+    }
+    tc = context.crossover_time
+    tau = data.time - context.t0
+    if side == "early":
+        n = apparent_exponent(pair_key[0], tau[tau < tc])
+        first = {"n1": n, "lnA1": math.log(context.crossover_radius) - n * math.log(tc)}
+    else:
+        u1 = pair_key[0].prefactor_unit_factor()
+        first = {
+            "n2": apparent_exponent(pair_key[1], tau[tau > tc]),
+            "lnA1": math.log(context.early_prefactor / u1),
+        }
+    first.update({"lntc": math.log(tc), "t0": context.t0})
+    fit = blend_fit(
+        data, lo, hi, loss="soft_l1", f_scale=f_scale, t0_start=context.t0, start=first, **spec
+    )
+    if fit and bootstrap:
+        fit = bootstrap_blend(data, fit, f_scale=f_scale, n=bootstrap, seed=seed, **spec)
+    return fit
+
+
+def evaluate_two_regimes(
+    *, data, lo, hi, f_scale, cands, shapes, search, relative, bootstrap, seed, numbers, geometry
+):
+    """Ranked candidates on each side of the crossover, and the crossover itself."""
+    pair_key, context = search.context, search.context_fit
+    if context is None:
+        context = search.best_two.fit
+    t0 = context.t0
+    local = local_from_series(data, t0, (lo, hi))
+    if pair_key is not None and bootstrap:
+        context = bootstrap_blend(
+            data,
+            context,
+            f_scale=f_scale,
+            n=bootstrap,
+            seed=seed,
+            kind="blend",
+            early=pair_key[0],
+            late=pair_key[1],
+            sharpness=context.sharpness if context.sharpness_fixed else None,
+        )
+    tc = context.crossover_time
+    tau = data.time - t0
+    sides = []
+    for side in ("early", "late"):
+        taus = tau[tau < tc] if side == "early" else tau[tau > tc]
+        window = (float(tau[0]), tc) if side == "early" else (tc, float(tau[-1]))
+        if pair_key is not None:
+            free = _side_exponent(data, lo, hi, side, context, pair_key, f_scale, bootstrap, seed)
+        else:
+            free = context
+        if free:
+            n_fit = free.early_exponent if side == "early" else free.late_exponent
+            ci = free.early_exponent_ci if side == "early" else free.late_exponent_ci
+        else:
+            n_fit, ci = math.nan, _NAN2
+        fits = []
+        for c in cands:
+            shape = shapes[c.regime.key]
+            pf = None
+            if pair_key is not None:
+                key = (shape, pair_key[1]) if side == "early" else (pair_key[0], shape)
+                pf = context if key == pair_key else search.pairs.get(key)
+            prefactor = math.nan
+            if pf:
+                prefactor = pf.early_prefactor if side == "early" else pf.late_prefactor
+            fits.append(
+                judge(
+                    c,
+                    segment=side,
+                    shape=shape,
+                    exponent_expected=apparent_exponent(shape, taus),
+                    exponent_fit=n_fit,
+                    exponent_ci=ci,
+                    window=window,
+                    prefactor_fit=prefactor,
+                    prefactor_fit_ci=_NAN2,
+                    aic=pf.aic if pf else math.nan,
+                    group_rel_err=group_relative_uncertainty(c.regime, relative),
+                    fit=free,
+                    law_fit=pf,
+                )
+            )
+        sides.append(rank(fits))
+    early, late = sides[0][0].regime, sides[1][0].regime
+    predicted, how = predicted_crossover(numbers, geometry, early, late)
+    crossover = CrossoverFit(
+        early=early.key,
+        late=late.key,
+        time=tc,
+        time_ci=context.crossover_time_ci,
+        radius=context.crossover_radius,
+        predicted_time=predicted,
+        predicted_formula=how,
+        sharpness=context.sharpness,
+        delta_aic=search.delta_aic,
+        model=context.model,
+    )
+    return {"sides": tuple(sides), "crossovers": (crossover,), "local": local, "t0": t0}

@@ -1,0 +1,380 @@
+"""The regime verdict: which catalogue law governs a radius series, and why, in one sentence.
+
+:func:`analyze_series` takes the measured series (``ok`` frames only), the
+contact instant and its bracket, and the sample's numbers. It fits the
+one- and two-regime models (:mod:`._windows`), computes the local exponent
+(:mod:`._local`), confronts every candidate regime of the catalogue with
+the data (checks a–d of :mod:`._judge`) and ranks them. All times it
+reports count from the fitted contact instant t0.
+
+Examples
+--------
+>>> import numpy as np
+>>> from dropkin.scaling import sample_numbers
+>>> water = sample_numbers(surface_tension=0.07274, viscosity=1.0016e-3, density=998.2,
+...                        radius=1e-3, outer_viscosity=1.81e-5, outer_density=1.204)
+>>> t = np.arange(400) * 2e-6                             # 500 kfps
+>>> tau = t - 1.3e-5                                      # contact between frames 6 and 7
+>>> r = 1.2 * 0.01642 * np.sqrt(np.clip(tau, 0, None))    # inertial law, D0 = 1.2
+>>> status = np.where(tau > 0, "ok", "before-contact")
+>>> v = analyze_series(t, r, np.full(400, 1e-6), status, contact_time=1.3e-5,
+...                    contact_bracket=(1.2e-5, 1.4e-5), numbers=water,
+...                    geometry="coalescence", bootstrap=20)
+>>> v.regimes, v.decidable
+(('inertial',), True)
+>>> round(v.dominant.exponent_fit, 3)
+0.5
+"""
+
+from __future__ import annotations
+
+import dataclasses
+import math
+from collections.abc import Mapping
+from dataclasses import dataclass, field
+
+import numpy as np
+
+from ...errors import FitError
+from ...fitting._bootstrap import resolve_material_uncertainty
+from ...fitting._core import (
+    ROBUST_SCALE,
+    LawShape,
+    as_array,
+    data_problem,
+    make_series,
+    noise_scale,
+)
+from ...fitting._local import LocalExponent
+from ...fitting._windows import AIC_THRESHOLD, ModelScore, search_crossover
+from ..regimes._catalogue import SCALING_GEOMETRIES, candidates
+from ..regimes._numbers import SampleNumbers
+from ._evidence import CrossoverFit, evaluate_one_regime, evaluate_two_regimes
+from ._judge import EXPONENT_TOLERANCE, PREFACTOR_BAND, CandidateFit, decide
+from ._text import verdict_sentence
+
+__all__ = ["RegimeVerdict", "CrossoverFit", "CandidateFit", "analyze_series"]
+
+
+@dataclass(frozen=True)
+class RegimeVerdict:
+    """Which regime governs a series, with the evidence.
+
+    Attributes
+    ----------
+    success : bool
+        False (and the record falsy) when the data cannot support a fit.
+    reason : str
+        Why not, in one sentence (``""`` on success).
+    decidable : bool
+        Whether one regime (per side of a crossover) is clearly preferred.
+    sentence : str
+        The verdict and its deciding evidence, in one line.
+    regimes : tuple of str
+        The best-ranked regime of each segment, in time order (one, or two
+        across a crossover); see `decidable` for whether the data settle them.
+    dominant : CandidateFit or None
+        The regime that governs the longest stretch (decades) of the series.
+    candidates : tuple of CandidateFit
+        Every candidate, ranked within its segment (``all``, or ``early``
+        then ``late``).
+    crossovers : tuple of CrossoverFit
+        Crossovers found (empty for one regime).
+    two_regime : bool
+        Whether two regimes were kept.
+    delta_aic : float
+        AIC of the best one-regime model minus that of the best two-regime model.
+    models : tuple of ModelScore
+        Every model fitted to the whole series.
+    model_reason : str
+        Why one or two regimes, in words.
+    local : LocalExponent or None
+        The local exponent along the series.
+    t0 : float
+        The contact instant used (s from the first frame).
+    t0_bracket : tuple of float
+        The bracket t0 was fitted in (equal ends when fixed), cut to end just
+        before the first ``ok`` frame.
+    t0_fixed : bool
+        Whether t0 was given by the user.
+    n_points : int
+        Points after contact used.
+    time_range : tuple of float
+        First and last time since contact of those points (s).
+    numbers : SampleNumbers
+        The sample.
+    geometry, view : str
+        As given.
+    settings : Mapping
+        Tolerances and thresholds used (``exponent_tolerance``,
+        ``prefactor_band``, ``aic_threshold``, ``bootstrap``, ``seed``,
+        ``material_uncertainty``, ``loss``, ``robust_scale``).
+    """
+
+    success: bool
+    reason: str
+    decidable: bool = False
+    sentence: str = ""
+    regimes: tuple[str, ...] = ()
+    dominant: CandidateFit | None = None
+    candidates: tuple[CandidateFit, ...] = ()
+    crossovers: tuple[CrossoverFit, ...] = ()
+    two_regime: bool = False
+    delta_aic: float = math.nan
+    models: tuple[ModelScore, ...] = ()
+    model_reason: str = ""
+    local: LocalExponent | None = None
+    t0: float = math.nan
+    t0_bracket: tuple[float, float] = (math.nan, math.nan)
+    t0_fixed: bool = False
+    n_points: int = 0
+    time_range: tuple[float, float] = (math.nan, math.nan)
+    numbers: SampleNumbers | None = None
+    geometry: str = ""
+    view: str = ""
+    settings: Mapping = field(default_factory=dict)
+
+    def __bool__(self) -> bool:
+        return self.success
+
+
+def _finite(name, value, *, allow_none=False, positive=False):
+    if value is None and allow_none:
+        return None
+    ok = isinstance(value, int | float | np.floating) and not isinstance(value, bool)
+    if not (ok and math.isfinite(value)) or (positive and value < 0):
+        what = "a finite time ≥ 0 in s" if positive else "a finite time in s"
+        raise FitError("must be a number", key=name, value=value, expected=what)
+    return float(value)
+
+
+def _bracket(time, contact_time, contact_time_err, contact_bracket, t0):
+    if t0 is not None:
+        return t0, t0
+    if contact_bracket is not None:
+        try:
+            lo, hi = (float(v) for v in contact_bracket)
+        except (TypeError, ValueError):
+            raise FitError(
+                "must be two times (lo, hi) in s", key="contact_bracket", value=contact_bracket
+            ) from None
+        if not (math.isfinite(lo) and math.isfinite(hi) and lo <= hi):
+            raise FitError("must be finite with lo <= hi", key="contact_bracket", value=(lo, hi))
+        return lo, hi
+    if contact_time_err:
+        return contact_time - 2.0 * contact_time_err, contact_time + 2.0 * contact_time_err
+    finite = np.sort(time[np.isfinite(time)])
+    frame = float(np.median(np.diff(finite))) if len(finite) > 1 else 0.0
+    return contact_time - 0.5 * frame, contact_time + 0.5 * frame
+
+
+def _before_first_point(series, time, lo, hi):
+    """Cut the bracket so that contact precedes the first ok point after its start.
+
+    A frame with a measured bridge means contact has happened: t0 may not be
+    later than 1 % of a frame interval before the first ok point after ``lo``.
+    """
+    after = series.time[series.time > lo]
+    if hi <= lo or not len(after):
+        return lo, hi
+    finite = np.sort(time[np.isfinite(time)])
+    steps = np.diff(finite)
+    steps = steps[steps > 0]
+    frame = float(np.min(steps)) if len(steps) else 0.0
+    return lo, max(lo, min(hi, float(after[0]) - 0.01 * frame))
+
+
+def _check_call(time, radius, radius_err, status, numbers, geometry, view, seed, bootstrap):
+    t = as_array("time", time)
+    r = as_array("radius", radius, len(t))
+    e = (
+        np.full(len(t), np.nan)
+        if radius_err is None
+        else as_array("radius_err", radius_err, len(t))
+    )
+    try:
+        st = [str(s) for s in status]
+    except TypeError:
+        raise FitError("must be a sequence of status strings", key="status") from None
+    if len(st) != len(t):
+        raise FitError(f"has {len(st)} values, time has {len(t)}", key="status")
+    if not isinstance(numbers, SampleNumbers):
+        raise FitError("must be a SampleNumbers record (see sample_numbers)", key="numbers")
+    if geometry not in SCALING_GEOMETRIES:
+        raise FitError(
+            "is not a known choice",
+            key="geometry",
+            value=geometry,
+            expected=" or ".join(SCALING_GEOMETRIES),
+        )
+    if view not in ("side", "bottom"):
+        raise FitError("is not a known choice", key="view", value=view, expected="side or bottom")
+    if isinstance(bootstrap, bool) or not isinstance(bootstrap, int) or bootstrap < 0:
+        raise FitError("must be a whole number ≥ 0", key="bootstrap", value=bootstrap)
+    if isinstance(seed, bool) or not isinstance(seed, int):
+        raise FitError("must be a whole number", key="seed", value=seed)
+    return t, r, e, np.array([s == "ok" for s in st], dtype=bool)
+
+
+def analyze_series(
+    time,
+    radius,
+    radius_err,
+    status,
+    *,
+    contact_time,
+    contact_time_err=None,
+    contact_bracket=None,
+    numbers,
+    geometry,
+    view="side",
+    t0=None,
+    material_uncertainty=None,
+    seed=0,
+    bootstrap=200,
+) -> RegimeVerdict:
+    """Decide which scaling regime governs a radius series.
+
+    Parameters
+    ----------
+    time : (F,) array_like
+        Frame times from the first frame (s), as radius.csv ``time_s``.
+    radius, radius_err : (F,) array_like
+        Radius and its standard uncertainty (m); NaN where none. `radius_err`
+        may be None (all points then weigh the same in ``ln r``).
+    status : (F,) sequence of str
+        Per-frame status; only ``"ok"`` frames are used.
+    contact_time : float or None
+        The contact instant from ``measure.json`` (s from the first frame);
+        may be None when `t0` is given.
+    contact_time_err : float, optional
+        Its standard uncertainty (s).
+    contact_bracket : (float, float), optional
+        Interval that holds the contact instant (s). Default: contact_time ±
+        2 contact_time_err, or ± half a frame when no uncertainty is known.
+        t0 is fitted inside it, and no later than just before the first
+        ``ok`` frame after its start (a measured bridge means contact has
+        happened); ``ok`` frames before its start are left out.
+    numbers : SampleNumbers
+        The sample's material values and numbers.
+    geometry : str
+        ``coalescence``, ``sessile-coalescence`` or ``spreading``.
+    view : str
+        ``side`` or ``bottom``.
+    t0 : float, optional
+        Fix the contact instant (s from the first frame) instead of fitting it.
+    material_uncertainty : Mapping[str, float], optional
+        Relative uncertainties of the material values (default 2 % each;
+        see :data:`DEFAULT_MATERIAL_UNCERTAINTY`).
+    seed : int
+        Seed of the bootstrap.
+    bootstrap : int
+        Bootstrap resamples (default 200; 0 gives normal-approximation intervals).
+
+    Returns
+    -------
+    RegimeVerdict
+        Falsy, with the reason, when fewer than 8 ``ok`` points follow
+        contact, when they span less than a third of a decade, or when all lie
+        before contact.
+
+    Raises
+    ------
+    FitError
+        For a bad call: arrays of different lengths, an unknown geometry or
+        view, a bad bracket, bootstrap count or material uncertainty.
+    """
+    t, r, e, ok = _check_call(
+        time, radius, radius_err, status, numbers, geometry, view, seed, bootstrap
+    )
+    t0 = _finite("t0", t0, allow_none=True)
+    if t0 is None:
+        contact_time = _finite("contact_time", contact_time)
+    contact_time_err = _finite(
+        "contact_time_err", contact_time_err, allow_none=True, positive=True
+    )
+    relative = resolve_material_uncertainty(material_uncertainty)
+    lo, hi = _bracket(t, contact_time, contact_time_err, contact_bracket, t0)
+    settings = {
+        "exponent_tolerance": EXPONENT_TOLERANCE,
+        "prefactor_band": PREFACTOR_BAND,
+        "aic_threshold": AIC_THRESHOLD,
+        "bootstrap": bootstrap,
+        "seed": seed,
+        "material_uncertainty": dict(relative),
+        "loss": "soft_l1",
+        "robust_scale": ROBUST_SCALE,
+    }
+    base = {
+        "t0_bracket": (lo, hi),
+        "t0_fixed": t0 is not None,
+        "numbers": numbers,
+        "geometry": geometry,
+        "view": view,
+        "settings": settings,
+    }
+    series = make_series(t[ok], r[ok], e[ok])
+    lo, hi = _before_first_point(series, t, lo, hi)
+    base["t0_bracket"] = (lo, hi)
+    problem = data_problem(series, lo, hi, reference=t0 if t0 is not None else contact_time)
+    if problem:
+        return RegimeVerdict(False, problem[0].upper() + problem[1:] + ".", **base)
+    data = series.subset(series.time > hi)
+    f_scale = ROBUST_SCALE * noise_scale(data)
+    cands = candidates(numbers, geometry, view)
+    shapes = {c.regime.key: _shape(c, numbers) for c in cands}
+    search = search_crossover(
+        data, list(dict.fromkeys(shapes.values())), lo, hi, loss="soft_l1", f_scale=f_scale
+    )
+    if not search.free:
+        return RegimeVerdict(False, search.free.message, **base)
+    context = dict(
+        data=data,
+        lo=lo,
+        hi=hi,
+        f_scale=f_scale,
+        cands=cands,
+        shapes=shapes,
+        search=search,
+        relative=relative,
+        bootstrap=bootstrap,
+        seed=seed,
+        numbers=numbers,
+        geometry=geometry,
+    )
+    if search.two_regime:
+        result = evaluate_two_regimes(**context)
+    else:
+        result = evaluate_one_regime(**context)
+    ranked_sides = result["sides"]
+    decisions = [decide(side, AIC_THRESHOLD) for side in ranked_sides]
+    regimes = tuple(side[0].key for side in ranked_sides if side)
+    decidable = all(d[0] for d in decisions)
+    tops = [side[0] for side in ranked_sides if side]
+    dominant = max(tops, key=lambda c: c.window_decades) if tops else None
+    verdict = RegimeVerdict(
+        success=True,
+        reason="",
+        decidable=decidable,
+        regimes=regimes,
+        dominant=dominant,
+        candidates=tuple(c for side in ranked_sides for c in side),
+        crossovers=result["crossovers"],
+        two_regime=search.two_regime,
+        delta_aic=search.delta_aic,
+        models=search.models,
+        model_reason=search.reason,
+        local=result["local"],
+        t0=result["t0"],
+        n_points=len(data),
+        time_range=(float(data.time[0] - result["t0"]), float(data.time[-1] - result["t0"])),
+        **base,
+    )
+    return dataclasses.replace(verdict, sentence=verdict_sentence(verdict, decisions))
+
+
+def _shape(candidate, numbers) -> LawShape:
+    reg = candidate.regime
+    if reg.logarithmic:
+        return LawShape(1.0, True, numbers.capillary_speed, numbers.radius)
+    return LawShape(float(reg.exponent))
