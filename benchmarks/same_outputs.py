@@ -10,6 +10,10 @@ absolute paths of inputs and outputs, timestamps and run times.
 A refactoring that changes no behaviour must print ``same`` for every file.
 
     python benchmarks/same_outputs.py [--base REV] [--frames 2000] [--keep DIR]
+
+With ``--keep DIR`` the stack, the base worktree and the base outputs stay in
+DIR, and a later run with the same DIR reuses them (only the working tree's
+outputs are made again).
 """
 
 from __future__ import annotations
@@ -17,6 +21,7 @@ from __future__ import annotations
 import argparse
 import json
 import os
+import shutil
 import subprocess
 import sys
 import tempfile
@@ -103,7 +108,10 @@ def main(argv: list[str] | None = None) -> int:
             print(source.name)
             base_out = scratch / "base" / source.stem
             new_out = scratch / "new" / source.stem
-            _analyze(base_tree / "src", source, base_out)
+            if new_out.exists():
+                shutil.rmtree(new_out)
+            if not (args.keep and (base_out / "radius.csv").exists()):
+                _analyze(base_tree / "src", source, base_out)
             _analyze(ROOT / "src", source, new_out)
             for name in COMPARED:
                 all_same &= _compare(name, base_out / name, new_out / name)
