@@ -32,6 +32,8 @@ MIN_POINTS = 8
 MIN_DECADES = 1.0 / 3.0
 #: The robust loss's scale, in noise units: residuals beyond about 3 σ weigh less.
 ROBUST_SCALE = 3.0
+#: Largest ``|ln x|`` of a prefactor or radius: exp(±700) ≈ 1e±304, beyond it is not a float.
+LN_MAX = 700.0
 #: Smallest noise unit (in units of the given σ, or of ln r without σ).
 NOISE_FLOOR = 1e-3
 _S_RANGE = (1e-12, 1e12)  # bounds of the relative uncertainty σ_r / r of one point
