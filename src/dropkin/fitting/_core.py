@@ -181,6 +181,8 @@ def noise_scale(series: Series) -> float:
     if len(series) < 3:
         return 1.0
     d = np.diff(series.y) / np.hypot(series.s[1:], series.s[:-1])
+    # 1.4826 as written, not scipy.stats.median_abs_deviation(scale="normal"),
+    # whose 1/Φ⁻¹(3/4) = 1.482602… would change the fitted numbers' last digits.
     mad = 1.4826 * float(np.median(np.abs(d - np.median(d))))
     # Floored, so that noise-free data are fitted as plain least squares.
     return max(mad, NOISE_FLOOR) if math.isfinite(mad) else 1.0
