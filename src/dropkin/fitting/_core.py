@@ -1,6 +1,6 @@
 """Shared machinery of the fits: prepared points, law shapes, the robust linear solver.
 
-Private to :mod:`dropkin.scaling`. Points are fitted on ``ln r`` with the
+Private to :mod:`dropkin.fitting`. Points are fitted on ``ln r`` with the
 uncertainty ``σ_r / r``; the robust loss is scipy's ``soft_l1``
 (``ρ(z) = 2 f²(√(1 + (z/f)²) - 1)``) with ``f = 3`` noise units, solved by
 iteratively reweighted least squares; the noise unit is estimated without a
@@ -113,7 +113,7 @@ class LawShape:
 
 @dataclass(frozen=True)
 class Series:
-    """Points ready to fit (private to the scaling package).
+    """Points ready to fit (private to the fitting package).
 
     Attributes
     ----------
