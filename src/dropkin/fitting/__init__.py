@@ -5,7 +5,6 @@ Generic curve fitting on SI floats: no physics (the regimes live in
 :mod:`dropkin.scaling`) and no pixels.
 """
 
-from ._blends import BlendFit as BlendFit
 from ._blends import fit_blend as fit_blend
 from ._blends import fit_broken_power_law as fit_broken_power_law
 from ._core import MIN_DECADES as MIN_DECADES
@@ -19,10 +18,11 @@ from ._laws import viscous_log_law as viscous_log_law
 from ._local import LocalExponent as LocalExponent
 from ._local import exponent_plateaus as exponent_plateaus
 from ._local import local_exponent as local_exponent
-from ._power import LawFit as LawFit
 from ._power import fit_log_law as fit_log_law
 from ._power import fit_power_law as fit_power_law
 from ._power import guess_power_law as guess_power_law
+from ._records import BlendFit as BlendFit
+from ._records import LawFit as LawFit
 from ._windows import AIC_THRESHOLD as AIC_THRESHOLD
 from ._windows import ModelScore as ModelScore
 from ._windows import consistent_window as consistent_window

@@ -1,106 +1,34 @@
-"""Uncertainty: a seeded residual bootstrap that also re-draws t0, and material uncertainty.
+"""Uncertainty: a seeded residual bootstrap that can also re-draw t0.
 
-Bootstrap (residual, not pairs, so that the frame times stay those of the
-camera): the normalised residuals of the best fit are resampled with
+Residual bootstrap, not pairs, so that the frame times stay those of the
+camera: the normalised residuals of the best fit are resampled with
 replacement, put back onto the fitted curve with each point's own σ, and
-the law is fitted again; when t0 was free, each resample also draws t0
-uniformly inside the contact bracket and keeps it fixed there, so the
-intervals carry the contact-instant uncertainty in full (a conservative
-choice). Intervals are the 2.5 and 97.5 percentiles, widened where needed
-to contain the best estimate (drawing t0 over the whole bracket can shift
-the resampled values when the best t0 lies near one end). Fits that are linear
-at a given origin (power laws, the log law) are refitted all at once,
-batched in numpy; blends are refitted one by one with scipy.
-
-Material uncertainty: the published prefactor times the group, ``C · Π q_i^p_i``,
-has the relative uncertainty ``sqrt(Σ (p_i u_i)²)`` for relative
-uncertainties u_i of the material values (first-order propagation; the
-volume counts as ``R³``). Defaults: 2 % for every material value, 0 for
-gravity (:data:`DEFAULT_MATERIAL_UNCERTAINTY`).
-
-Examples
---------
->>> from dropkin.scaling import regime
->>> round(group_relative_uncertainty(regime("inertial"), resolve_material_uncertainty()), 5)
-0.00866
+the law is fitted again. The caller says where t0 goes (`t0_redraw`): drawn
+uniformly inside an interval for each resample and kept fixed there (the
+contact bracket: the intervals then carry the contact-instant uncertainty in
+full, a conservative choice), or None to keep the fitted t0. Intervals are
+the 2.5 and 97.5 percentiles, widened where needed to contain the best
+estimate (drawing t0 over the whole bracket can shift the resampled values
+when the best t0 lies near one end). Fits that are linear at a given origin
+(power laws, the log law) are refitted all at once, batched in numpy;
+blends are refitted one by one with scipy.
 """
 
 from __future__ import annotations
 
 import dataclasses
 import math
-from collections.abc import Mapping
-from types import MappingProxyType
 
 import numpy as np
 
-from ..errors import FitError
-from ._blends import BlendFit, TwoLawModel, least_squares_fit
 from ._core import Series, safe_exp, solve_linear
-from ._power import LawFit, LinearModel
+from ._linear import LinearModel
+from ._records import BlendFit, LawFit
+from ._two_laws import TwoLawModel, build_model, least_squares_fit
 
-__all__ = [
-    "DEFAULT_MATERIAL_UNCERTAINTY",
-    "resolve_material_uncertainty",
-    "group_relative_uncertainty",
-]
-
-#: Relative standard uncertainties assumed for the material values (2 % each, stated default).
-DEFAULT_MATERIAL_UNCERTAINTY = MappingProxyType(
-    {
-        "surface_tension": 0.02,
-        "viscosity": 0.02,
-        "density": 0.02,
-        "radius": 0.02,
-        "outer_viscosity": 0.02,
-        "outer_density": 0.02,
-        "contact_angle": 0.02,
-        "gravity": 0.0,
-    }
-)
+__all__ = ["bootstrap_linear", "bootstrap_blend"]
 
 _PERCENTILES = (2.5, 97.5)
-
-
-def resolve_material_uncertainty(given: Mapping[str, float] | None = None) -> Mapping[str, float]:
-    """The relative uncertainties to use: the defaults, updated with `given`.
-
-    Raises
-    ------
-    FitError
-        For an unknown name or a value that is not a finite number ≥ 0.
-    """
-    out = dict(DEFAULT_MATERIAL_UNCERTAINTY)
-    for name, value in (given or {}).items():
-        if name not in out:
-            raise FitError(
-                "is not a material value",
-                key="material_uncertainty",
-                value=name,
-                expected=", ".join(out),
-            )
-        ok = isinstance(value, int | float) and not isinstance(value, bool)
-        if not (ok and math.isfinite(value) and value >= 0):
-            raise FitError(
-                "must be a relative uncertainty ≥ 0 (0.02 for 2 %)",
-                key=f"material_uncertainty.{name}",
-                value=value,
-            )
-        out[name] = float(value)
-    return MappingProxyType(out)
-
-
-def group_relative_uncertainty(regime, relative: Mapping[str, float]) -> float:
-    """Relative uncertainty of a regime's group from those of the material values."""
-    total = 0.0
-    for name, power in regime.group_powers.items():
-        if name == "volume":
-            total += (3.0 * float(power) * relative["radius"]) ** 2
-        else:
-            total += (float(power) * relative.get(name, 0.0)) ** 2
-    if regime.angle_power:
-        total += (regime.angle_power * relative["contact_angle"]) ** 2
-    return math.sqrt(total)
 
 
 def _interval(values, estimate) -> tuple[float, float]:
@@ -123,14 +51,24 @@ def _std(values) -> float:
         return float(np.std(values, ddof=1))
 
 
-def _draws(n_points, fit_t0, free, bracket, n, rng):
+def _draws(n_points, fit_t0, t0_redraw, n, rng):
+    """Indices of the resampled residuals, then the origin of each resample."""
     idx = rng.integers(0, n_points, size=(n, n_points))
-    t0s = rng.uniform(bracket[0], bracket[1], n) if free else np.full(n, fit_t0)
+    if t0_redraw is None:
+        t0s = np.full(n, fit_t0)
+    else:
+        t0s = rng.uniform(t0_redraw[0], t0_redraw[1], n)
     return idx, t0s
 
 
-def bootstrap_linear(series: Series, model: LinearModel, fit: LawFit, *, f_scale, n, seed):
-    """The fit with bootstrap intervals for n, A and r_p (batched refits)."""
+def bootstrap_linear(
+    series: Series, model: LinearModel, fit: LawFit, *, f_scale, n, seed, t0_redraw
+):
+    """The fit with bootstrap intervals for n, A and r_p (batched refits).
+
+    `t0_redraw` is the interval (lo, hi) in which each resample draws its
+    origin uniformly, or None to keep the fitted origin.
+    """
     rng = np.random.default_rng(seed)
     data = series.subset(series.time > fit.t0_bracket[1])
     tau = data.time - fit.t0
@@ -142,7 +80,7 @@ def bootstrap_linear(series: Series, model: LinearModel, fit: LawFit, *, f_scale
     fitted = x @ np.asarray(beta) + off
     e = (data.y - fitted) / data.s
     e = e - e.mean()
-    idx, t0s = _draws(len(tau), fit.t0, fit.t0_free, fit.t0_bracket, n, rng)
+    idx, t0s = _draws(len(tau), fit.t0, t0_redraw, n, rng)
     y_star = fitted[None, :] + data.s[None, :] * e[idx]
     tau_b = data.time[None, :] - t0s[:, None]
     xb, offb = model.design(tau_b)
@@ -168,20 +106,24 @@ def bootstrap_linear(series: Series, model: LinearModel, fit: LawFit, *, f_scale
         prefactor_err=fit.prefactor * _std(ln_a),
         prefactor_ci=(unit * safe_exp(lo_a), unit * safe_exp(hi_a)),
         pivot_radius_ci=(safe_exp(lo_p), safe_exp(hi_p)),
-        ci_method=_method(fit.t0_free),
+        ci_method=_method(t0_redraw is not None),
         n_resamples=n,
     )
 
 
-def _method(free) -> str:
-    redraw = "; t0 re-drawn uniformly in its bracket" if free else "; t0 fixed"
+def _method(redrawn) -> str:
+    redraw = "; t0 re-drawn uniformly in its bracket" if redrawn else "; t0 fixed"
     return f"residual bootstrap, 2.5–97.5 percentiles{redraw}"
 
 
-def bootstrap_blend(series: Series, fit: BlendFit, *, f_scale, n, seed, **spec) -> BlendFit:
-    """The blend with bootstrap intervals for its exponents and crossover time (one by one)."""
-    from ._blends import build_model
+def bootstrap_blend(
+    series: Series, fit: BlendFit, *, f_scale, n, seed, t0_redraw, **spec
+) -> BlendFit:
+    """The blend with bootstrap intervals for its exponents and crossover time (one by one).
 
+    `t0_redraw` as for :func:`bootstrap_linear`; `spec` is the model's
+    specification as given to :func:`blend_fit` (kind, early, late, sharpness).
+    """
     rng = np.random.default_rng(seed)
     lo, hi = fit.t0_bracket
     data = series.subset(series.time > hi)
@@ -193,7 +135,7 @@ def bootstrap_blend(series: Series, fit: BlendFit, *, f_scale, n, seed, **spec) 
     fitted = model.log_radius(best, data.time)
     e = (data.y - fitted) / data.s
     e = e - e.mean()
-    idx, t0s = _draws(len(data), fit.t0, fit.t0_free, fit.t0_bracket, n, rng)
+    idx, t0s = _draws(len(data), fit.t0, t0_redraw, n, rng)
     fixed_names = [k for k in model.names() if k != "t0"]
     n1s, n2s, tcs = [], [], []
     for b in range(n):
@@ -224,7 +166,7 @@ def bootstrap_blend(series: Series, fit: BlendFit, *, f_scale, n, seed, **spec) 
             fit.late_exponent_ci if late is not None else _interval(n2s, fit.late_exponent)
         ),
         crossover_time_ci=_interval(tcs, fit.crossover_time),
-        ci_method=_method(fit.t0_free),
+        ci_method=_method(t0_redraw is not None),
         n_resamples=len(tcs),
     )
 

@@ -1,6 +1,6 @@
 """Shared machinery of the fits: prepared points, law shapes, the robust linear solver.
 
-Private to :mod:`dropkin.scaling`. Points are fitted on ``ln r`` with the
+Private to :mod:`dropkin.fitting`. Points are fitted on ``ln r`` with the
 uncertainty ``σ_r / r``; the robust loss is scipy's ``soft_l1``
 (``ρ(z) = 2 f²(√(1 + (z/f)²) - 1)``) with ``f = 3`` noise units, solved by
 iteratively reweighted least squares; the noise unit is estimated without a
@@ -32,6 +32,8 @@ MIN_POINTS = 8
 MIN_DECADES = 1.0 / 3.0
 #: The robust loss's scale, in noise units: residuals beyond about 3 σ weigh less.
 ROBUST_SCALE = 3.0
+#: Largest ``|ln x|`` of a prefactor or radius: exp(±700) ≈ 1e±304, beyond it is not a float.
+LN_MAX = 700.0
 #: Smallest noise unit (in units of the given σ, or of ln r without σ).
 NOISE_FLOOR = 1e-3
 _S_RANGE = (1e-12, 1e12)  # bounds of the relative uncertainty σ_r / r of one point
@@ -111,7 +113,7 @@ class LawShape:
 
 @dataclass(frozen=True)
 class Series:
-    """Points ready to fit (private to the scaling package).
+    """Points ready to fit (private to the fitting package).
 
     Attributes
     ----------
@@ -179,6 +181,8 @@ def noise_scale(series: Series) -> float:
     if len(series) < 3:
         return 1.0
     d = np.diff(series.y) / np.hypot(series.s[1:], series.s[:-1])
+    # 1.4826 as written, not scipy.stats.median_abs_deviation(scale="normal"),
+    # whose 1/Φ⁻¹(3/4) = 1.482602… would change the fitted numbers' last digits.
     mad = 1.4826 * float(np.median(np.abs(d - np.median(d))))
     # Floored, so that noise-free data are fitted as plain least squares.
     return max(mad, NOISE_FLOOR) if math.isfinite(mad) else 1.0

@@ -39,10 +39,11 @@ from dataclasses import dataclass, field
 
 import numpy as np
 
-from ._blends import BlendFit, blend_fit
 from ._core import MIN_DECADES, MIN_POINTS, LawShape, Series
+from ._linear import LinearModel, linear_fit
 from ._local import LocalExponent
-from ._power import LawFit, LinearModel, linear_fit
+from ._records import BlendFit, LawFit
+from ._two_laws import blend_fit
 
 __all__ = ["AIC_THRESHOLD", "EXPONENT_TOLERANCE", "ModelScore", "consistent_window"]
 
@@ -218,6 +219,43 @@ def _pairs(shapes, tau, direction):
     return out
 
 
+def _catalogue_pairs(data: Series, shapes, lo, hi, start, direction):
+    """Harmonic blends of the catalogue pairs, and the best one inside the data.
+
+    Returns the pairs' fits, the best pair inside the data and its fit (with
+    a free sharpness when that beats the harmonic form by more than
+    :data:`AIC_THRESHOLD`), and the scores of every model tried.
+    """
+    start = dict(start)
+    pairs, context, context_fit, tried = {}, None, None, []
+    for a, b in _pairs(shapes, data.time - start["t0_start"], direction):
+        fit = blend_fit(data, lo, hi, kind="blend", early=a, late=b, sharpness=1.0, **start)
+        if fit:
+            pairs[(a, b)] = fit
+            tried.append(
+                ModelScore(f"harmonic {a.label} → {b.label}", 2, fit.aic, fit.n_params, fit)
+            )
+    inside = {k: f for k, f in pairs.items() if sides_ok(data, f)}
+    if inside:
+        context = min(inside, key=lambda k: inside[k].aic)
+        context_fit = inside[context]
+        start["t0_start"] = context_fit.t0
+        sharp = blend_fit(data, lo, hi, kind="blend", early=context[0], late=context[1], **start)
+        if sharp:
+            tried.append(
+                ModelScore(
+                    f"blend {context[0].label} → {context[1].label}",
+                    2,
+                    sharp.aic,
+                    sharp.n_params,
+                    sharp,
+                )
+            )
+            if sharp.aic < context_fit.aic - AIC_THRESHOLD and sides_ok(data, sharp):
+                context_fit = sharp
+    return pairs, context, context_fit, tried
+
+
 def search_crossover(data: Series, shapes, lo, hi, *, loss, f_scale) -> CrossoverSearch:
     """Fit the one- and two-regime models and decide whether two regimes are needed."""
     kw = {"loss": loss, "f_scale": f_scale}
@@ -244,33 +282,10 @@ def search_crossover(data: Series, shapes, lo, hi, *, loss, f_scale) -> Crossove
     pairs, context, context_fit = {}, None, None
     if free_two is not None and best_single.aic - free_two.aic > _PAIR_GATE:
         start["t0_start"] = free_two.fit.t0
-        for a, b in _pairs(shapes, data.time - free_two.fit.t0, direction):
-            fit = blend_fit(data, lo, hi, kind="blend", early=a, late=b, sharpness=1.0, **start)
-            if fit:
-                pairs[(a, b)] = fit
-                two.append(
-                    ModelScore(f"harmonic {a.label} → {b.label}", 2, fit.aic, fit.n_params, fit)
-                )
-        inside = {k: f for k, f in pairs.items() if sides_ok(data, f)}
-        if inside:
-            context = min(inside, key=lambda k: inside[k].aic)
-            context_fit = inside[context]
-            start["t0_start"] = context_fit.t0
-            sharp = blend_fit(
-                data, lo, hi, kind="blend", early=context[0], late=context[1], **start
-            )
-            if sharp:
-                two.append(
-                    ModelScore(
-                        f"blend {context[0].label} → {context[1].label}",
-                        2,
-                        sharp.aic,
-                        sharp.n_params,
-                        sharp,
-                    )
-                )
-                if sharp.aic < context_fit.aic - AIC_THRESHOLD and sides_ok(data, sharp):
-                    context_fit = sharp
+        pairs, context, context_fit, tried = _catalogue_pairs(
+            data, shapes, lo, hi, start, direction
+        )
+        two += tried
     inside = [m for m in two if sides_ok(data, m.fit)]
     best_two = _best(inside)
     models += two

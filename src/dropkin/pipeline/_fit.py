@@ -16,6 +16,7 @@ from pathlib import Path
 import numpy as np
 
 from .._atomic import write_text_atomic
+from ..contact import measured_bracket
 from ..errors import DropkinError, ExperimentError
 from ..experiment import Drops, Experiment, load_experiment, read_experiment
 from ..series import read_radius_csv
@@ -192,15 +193,7 @@ def fit_measurement(measurement: Measurement, *, t0=None, seed: int = 0, bootstr
             path=measurement.path,
         )
     err = info.get("contact_time_err_s")
-    bracket = info.get("contact_bracket_s")
-    if contact is not None and err is not None and math.isfinite(err) and err > 0:
-        # The fit redraws t0 across its bracket: the measured instant plus or
-        # minus two standard errors (inside the frames' bracket) is what the
-        # measurement knows; the frames' bracket alone is much wider.
-        lo, hi = contact - 2.0 * err, contact + 2.0 * err
-        if bracket:
-            lo, hi = max(lo, bracket[0]), min(hi, bracket[1])
-        bracket = (lo, hi) if hi > lo else bracket
+    bracket = measured_bracket(contact, err, info.get("contact_bracket_s"))
     verdict = analyze_series(
         series["time_s"],
         series["radius_m"],

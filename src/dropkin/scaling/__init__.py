@@ -13,9 +13,6 @@ Examples
 ['viscous', 'inertially-limited-viscous']
 """
 
-from ..fitting._bootstrap import DEFAULT_MATERIAL_UNCERTAINTY as DEFAULT_MATERIAL_UNCERTAINTY
-from ..fitting._bootstrap import group_relative_uncertainty as group_relative_uncertainty
-from ..fitting._bootstrap import resolve_material_uncertainty as resolve_material_uncertainty
 from .predict._predict import Prediction as Prediction
 from .predict._predict import RecordingPlan as RecordingPlan
 from .predict._predict import RegimeWindow as RegimeWindow
@@ -60,6 +57,9 @@ from .verdict._evidence import predicted_crossover as predicted_crossover
 from .verdict._judge import EXPONENT_TOLERANCE as EXPONENT_TOLERANCE
 from .verdict._judge import PREFACTOR_BAND as PREFACTOR_BAND
 from .verdict._judge import CandidateFit as CandidateFit
+from .verdict._materials import DEFAULT_MATERIAL_UNCERTAINTY as DEFAULT_MATERIAL_UNCERTAINTY
+from .verdict._materials import group_relative_uncertainty as group_relative_uncertainty
+from .verdict._materials import resolve_material_uncertainty as resolve_material_uncertainty
 from .verdict._text import format_verdict as format_verdict
 from .verdict._text import verdict_to_dict as verdict_to_dict
 from .verdict._verdict import RegimeVerdict as RegimeVerdict

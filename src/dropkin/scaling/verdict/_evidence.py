@@ -25,15 +25,17 @@ from __future__ import annotations
 import math
 from dataclasses import dataclass
 
+from ...contact._bracket import redraw_interval
 from ...errors import ExperimentError
-from ...fitting._blends import blend_fit
-from ...fitting._bootstrap import bootstrap_blend, bootstrap_linear, group_relative_uncertainty
+from ...fitting._bootstrap import bootstrap_blend, bootstrap_linear
 from ...fitting._core import Series, apparent_exponent
+from ...fitting._linear import LinearModel, linear_fit
 from ...fitting._local import local_from_series
-from ...fitting._power import LinearModel, linear_fit
+from ...fitting._two_laws import blend_fit
 from ...fitting._windows import consistent_window, points_in
 from ..regimes._crossovers import crossovers, power_law_crossing
 from ._judge import EXPONENT_TOLERANCE, judge, rank
+from ._materials import group_relative_uncertainty
 
 __all__ = ["CrossoverFit", "predicted_crossover", "evaluate_one_regime", "evaluate_two_regimes"]
 
@@ -125,6 +127,7 @@ def _shape_evidence(data, shape, local, t0, lo, hi, f_scale, search, bootstrap, 
     window = consistent_window(local, shape, tolerance=EXPONENT_TOLERANCE)
     pts = points_in(data, t0, window) if window is not None else None
     fit_kw = {"loss": "soft_l1", "f_scale": f_scale}
+    redraw = {"t0_redraw": redraw_interval((lo, hi))}
     if pts is not None:
         free = (
             search.free
@@ -133,7 +136,7 @@ def _shape_evidence(data, shape, local, t0, lo, hi, f_scale, search, bootstrap, 
         )
         if free and bootstrap:
             free = bootstrap_linear(
-                pts, LinearModel(None), free, f_scale=f_scale, n=bootstrap, seed=seed
+                pts, LinearModel(None), free, f_scale=f_scale, n=bootstrap, seed=seed, **redraw
             )
     if pts is None or not free:
         pts, free = None, None
@@ -144,7 +147,7 @@ def _shape_evidence(data, shape, local, t0, lo, hi, f_scale, search, bootstrap, 
     )
     if fixed and bootstrap:
         fixed = bootstrap_linear(
-            on, LinearModel(shape), fixed, f_scale=f_scale, n=bootstrap, seed=seed
+            on, LinearModel(shape), fixed, f_scale=f_scale, n=bootstrap, seed=seed, **redraw
         )
     expected = _expected_exponent(shape, on, free.t0 if free else t0, f_scale)
     return {
@@ -210,7 +213,10 @@ def _side_exponent(data, lo, hi, side, context, pair_key, f_scale, bootstrap, se
         data, lo, hi, loss="soft_l1", f_scale=f_scale, t0_start=context.t0, start=first, **spec
     )
     if fit and bootstrap:
-        fit = bootstrap_blend(data, fit, f_scale=f_scale, n=bootstrap, seed=seed, **spec)
+        redraw = redraw_interval((lo, hi))
+        fit = bootstrap_blend(
+            data, fit, f_scale=f_scale, n=bootstrap, seed=seed, t0_redraw=redraw, **spec
+        )
     return fit
 
 
@@ -230,6 +236,7 @@ def evaluate_two_regimes(
             f_scale=f_scale,
             n=bootstrap,
             seed=seed,
+            t0_redraw=redraw_interval((lo, hi)),
             kind="blend",
             early=pair_key[0],
             late=pair_key[1],

@@ -164,6 +164,38 @@ def _g(x, digits=3) -> str:
     return "—" if x is None or not math.isfinite(x) else f"{x:.{digits}g}"
 
 
+def _prefactor_check(candidate: Candidate, prefactor_fit, prefactor_fit_ci, group_rel_err):
+    """Check (b): (theory, placeholder, ratio, coefficient, in_range, passed, notes)."""
+    reg = candidate.regime
+    group = candidate.group
+    placeholder = reg.prefactor is None
+    c_pub = 1.0 if placeholder else reg.prefactor
+    theory = None if group is None else c_pub * group
+    ratio = coefficient = in_range = None
+    b = None
+    notes = []
+    if theory is not None and math.isfinite(prefactor_fit):
+        ratio = prefactor_fit / theory
+        coefficient = prefactor_fit / group
+        b = order_one(prefactor_fit, theory)
+        if not b:
+            notes.append(f"C/C_pub = {_g(ratio)} (b)")
+        if reg.prefactor_range is not None:
+            spread = 2.0 * (group_rel_err or 0.0)
+            c_lo, c_hi = (v / group for v in prefactor_fit_ci)
+            if not (math.isfinite(c_lo) and math.isfinite(c_hi)):
+                c_lo = c_hi = coefficient
+            c_lo, c_hi = c_lo * (1.0 - spread), c_hi * (1.0 + spread)
+            in_range = c_hi >= reg.prefactor_range[0] and c_lo <= reg.prefactor_range[1]
+            if reg.prefactor_status != "M" and not in_range:
+                b = False
+                notes.append(
+                    f"C = {_g(coefficient)} outside the published "
+                    f"{reg.prefactor_range[0]:g}–{reg.prefactor_range[1]:g} (b)"
+                )
+    return theory, placeholder, ratio, coefficient, in_range, b, notes
+
+
 def judge(
     candidate: Candidate,
     *,
@@ -192,32 +224,9 @@ def judge(
         and math.isfinite(hi)
         and lo - tol <= exponent_expected <= hi + tol
     )
-    group = candidate.group
-    placeholder = reg.prefactor is None
-    c_pub = 1.0 if placeholder else reg.prefactor
-    theory = None if group is None else c_pub * group
-    ratio = coefficient = in_range = None
-    b = None
-    notes = []
-    if theory is not None and math.isfinite(prefactor_fit):
-        ratio = prefactor_fit / theory
-        coefficient = prefactor_fit / group
-        b = order_one(prefactor_fit, theory)
-        if not b:
-            notes.append(f"C/C_pub = {_g(ratio)} (b)")
-        if reg.prefactor_range is not None:
-            spread = 2.0 * (group_rel_err or 0.0)
-            c_lo, c_hi = (v / group for v in prefactor_fit_ci)
-            if not (math.isfinite(c_lo) and math.isfinite(c_hi)):
-                c_lo = c_hi = coefficient
-            c_lo, c_hi = c_lo * (1.0 - spread), c_hi * (1.0 + spread)
-            in_range = c_hi >= reg.prefactor_range[0] and c_lo <= reg.prefactor_range[1]
-            if reg.prefactor_status != "M" and not in_range:
-                b = False
-                notes.append(
-                    f"C = {_g(coefficient)} outside the published "
-                    f"{reg.prefactor_range[0]:g}–{reg.prefactor_range[1]:g} (b)"
-                )
+    theory, placeholder, ratio, coefficient, in_range, b, notes = _prefactor_check(
+        candidate, prefactor_fit, prefactor_fit_ci, group_rel_err
+    )
     if not a:
         if not in_domain:
             notes.insert(
