@@ -20,6 +20,7 @@ import numpy as np
 
 from ._atomic import write_text_atomic
 from .errors import DropkinError
+from .status import STATUSES
 
 __all__ = [
     "STATUSES",
@@ -31,8 +32,6 @@ __all__ = [
     "series_summary",
 ]
 
-#: Allowed per-frame statuses.
-STATUSES = ("ok", "before-contact", "unresolved", "not-found", "at-edge")
 CSV_COLUMNS = ("frame", "time_s", "since_contact_s", "radius_m", "radius_err_m", "status")
 
 

@@ -341,7 +341,7 @@ def _is_unchanged(task: Task, previous: dict | None, out_dir: Path) -> bool:
         stat = json.loads(previous.get("input_stat") or "null")
         if stat == input_fingerprint(task.source):
             return True
-        from ..measure._stream import recording_sha256
+        from ..measure import recording_sha256
 
         return recording_sha256(rec) == previous.get("input_sha256")
     except (DropkinError, OSError, ValueError):

@@ -193,7 +193,7 @@ def measure_into(
     contact_method : str
     """
     from .._atomic import remove_temporaries
-    from ..measure._stream import MeasureOptions, measure, recording_sha256
+    from ..measure import MeasureOptions, measure, recording_sha256
     from ..report._overlays import write_overlays
     from ..series import write_series
 

@@ -1,23 +1,25 @@
 """Per-frame image analysis: pure functions on arrays, in pixels.
 
 Nothing here reads files or knows units; :mod:`dropkin.measure` streams the
-frames and turns pixels into metres.
+frames and turns pixels into metres. Per-frame statuses are the integer codes
+of :mod:`dropkin.status` (re-exported here: ``STATUS_NAMES`` is
+:data:`dropkin.status.STATUSES`).
 """
 
+from ..status import AT_EDGE as AT_EDGE
+from ..status import BEFORE_CONTACT as BEFORE_CONTACT
+from ..status import NOT_FOUND as NOT_FOUND
+from ..status import OK as OK
+from ..status import STATUSES as STATUS_NAMES
+from ..status import UNRESOLVED as UNRESOLVED
 from ._band import Band as Band
 from ._band import make_band as make_band
 from ._band import sample_band as sample_band
 from ._circle import CircleFit as CircleFit
 from ._circle import fit_circle as fit_circle
-from ._neck import AT_EDGE as AT_EDGE
-from ._neck import BEFORE_CONTACT as BEFORE_CONTACT
-from ._neck import NOT_FOUND as NOT_FOUND
-from ._neck import OK as OK
-from ._neck import STATUS_NAMES as STATUS_NAMES
-from ._neck import UNRESOLVED as UNRESOLVED
 from ._neck import NeckResult as NeckResult
-from ._neck import measure_necks as measure_necks
 from ._neck import neck_from_band as neck_from_band
+from ._neck_chunk import measure_necks as measure_necks
 from ._pair import DropPair as DropPair
 from ._pair import edge_blur as edge_blur
 from ._pair import find_drop_pair as find_drop_pair

@@ -15,7 +15,14 @@ from dataclasses import dataclass
 import numpy as np
 from scipy import sparse
 
-__all__ = ["Band", "make_band", "sample_band"]
+from ..status import NOT_FOUND, STATUSES
+
+__all__ = ["Band", "make_band", "sample_band", "redone"]
+
+#: Internal status code, after those of :mod:`dropkin.status`: what is
+#: measured fills the band (or strip) that was sampled, and the caller samples
+#: a wider one. It never leaves :mod:`dropkin.vision`.
+BAND_LIMIT = len(STATUSES)
 
 #: Frames sampled together: few enough that a block's copies stay in the
 #: processor's cache, enough that numpy's per-call cost is shared.
@@ -123,6 +130,16 @@ def make_band(
     u = np.concatenate([-u_values[:0:-1], u_values])
     rows = origin[0] + axis[0] * s[None, :] + normal[0] * u[:, None]
     cols = origin[1] + axis[1] * s[None, :] + normal[1] * u[:, None]
+    valid, pixels, boxes, matrix = _bilinear(shape, rows, cols, u)
+    return Band(origin, axis, normal, s, u, valid, pixels, boxes, matrix)
+
+
+def _bilinear(shape, rows, cols, u):
+    """Bilinear weights of the points (rows, cols), each (U, S), on frames of `shape`.
+
+    Returns the points inside the frame, the pixels and boxes they read and
+    the sparse weight matrix, as described for :class:`Band`.
+    """
     r0 = np.floor(rows)
     c0 = np.floor(cols)
     fr = (rows - r0).astype(np.float32)
@@ -162,7 +179,7 @@ def make_band(
         ),
         shape=(count, offset),
     )
-    return Band(origin, axis, normal, s, u, valid, tuple(pixels), tuple(boxes), matrix)
+    return valid, tuple(pixels), tuple(boxes), matrix
 
 
 def _distinct(index):
@@ -238,3 +255,33 @@ def sample_band(frames, band: Band):
     for first in range(0, k, _BLOCK):
         out[:, first : first + _BLOCK] = _sample_block(frames[first : first + _BLOCK], band)
     return out.T.reshape(k, len(band.u), len(band.s))
+
+
+def redone(first, again, redo, names) -> dict:
+    """The arrays `names` of a chunk's result, with some frames measured again.
+
+    Parameters
+    ----------
+    first : NeckResult or SideChunk
+        The chunk measured on a narrow band (or strip).
+    again : NeckResult or SideChunk or None
+        The frames `redo` measured again on the full band (None if none).
+    redo : (K,) ndarray of bool
+    names : sequence of str
+        The fields to take; ``status`` among them.
+
+    Returns
+    -------
+    dict
+        New arrays by name, ``status`` with ``BAND_LIMIT`` (what is measured
+        still fills the full band) turned into ``not-found``.
+    """
+    values = {}
+    for name in names:
+        merged = getattr(first, name).copy()
+        if again is not None:
+            merged[redo] = getattr(again, name)
+        values[name] = merged
+    status = values["status"]
+    status[status == BAND_LIMIT] = NOT_FOUND
+    return values

@@ -183,55 +183,11 @@ def find_drop_pair(trans, *, level: float = 0.5, min_area: int = 20) -> DropPair
     order = np.argsort(sizes)[::-1]
     big = sizes[order[0]]
     second = sizes[order[1]] if count > 1 else 0
-    rows, cols = trans.shape
-    near = dilate(labels > 0, 2)
-    near[:top] = False
-    near[bottom:] = False
-    points = _outline_points(trans, near, level)
-    if not len(points):
-        raise MeasurementError("no drop outline found")
-    inside = (
-        (points[:, 0] > 1.5)
-        & (points[:, 0] < rows - 2.5)
-        & (points[:, 1] > 1.5)
-        & (points[:, 1] < cols - 2.5)
-    )
-    if top > 0:
-        inside &= points[:, 0] > top + 2.0
-    if bottom < rows:
-        inside &= points[:, 0] < bottom - 3.0
-    points = points[inside]
+    points = _pair_outline(trans, labels, top, bottom, level)
     if second >= 0.02 * big:
-        # Two silhouettes: before contact. Assign outline points to the nearer
-        # one: the largest of the two labels within 2 px (a 5 x 5 grey
-        # dilation of the two silhouettes' labels, looked up at the points).
-        owner = _largest_label_near(
-            labels,
-            order[:2] + 1,
-            np.clip(np.rint(points[:, 0]).astype(int), 0, rows - 1),
-            np.clip(np.rint(points[:, 1]).astype(int), 0, cols - 1),
-            reach=2,
-        )
-        groups = [points[owner == order[0] + 1], points[owner == order[1] + 1]]
-        in_contact = False
+        groups, in_contact = _by_silhouette(points, labels, order), False
     else:
-        # One silhouette: already merged. Split it across its long axis at the
-        # narrowest place in its middle part.
-        rr, cc = np.nonzero(labels == order[0] + 1)
-        centre = np.array([rr.mean(), cc.mean()])
-        cov = np.cov(np.vstack([rr - centre[0], cc - centre[1]]))
-        evals, evecs = np.linalg.eigh(cov)
-        long_axis = evecs[:, np.argmax(evals)]
-        proj = (rr - centre[0]) * long_axis[0] + (cc - centre[1]) * long_axis[1]
-        lo, hi = np.percentile(proj, [20, 80])
-        bins = np.arange(np.floor(lo), np.ceil(hi) + 1)
-        if len(bins) < 3:
-            raise MeasurementError("the silhouette is too small to hold two drops")
-        counts, _ = np.histogram(proj, bins=bins)
-        split = bins[int(np.argmin(counts))] + 0.5
-        side = (points - centre) @ long_axis >= split
-        groups = [points[~side], points[side]]
-        in_contact = True
+        groups, in_contact = _split_merged(points, labels == order[0] + 1), True
     if min(len(g) for g in groups) < 8:
         raise MeasurementError("fewer than two drops found in the frame")
     first = [fit_circle(g) for g in groups]
@@ -251,6 +207,65 @@ def find_drop_pair(trans, *, level: float = 0.5, min_area: int = 20) -> DropPair
     return DropPair(
         circles=(c0, c1), axis=axis, normal=normal, contact_point=contact, in_contact=in_contact
     )
+
+
+def _pair_outline(trans, labels, top: int, bottom: int, level: float):
+    """Sub-pixel outline points near the silhouettes, away from the frame border
+    and from a substrate band (rows above `top` or from `bottom` on)."""
+    rows, cols = trans.shape
+    near = dilate(labels > 0, 2)
+    near[:top] = False
+    near[bottom:] = False
+    points = _outline_points(trans, near, level)
+    if not len(points):
+        raise MeasurementError("no drop outline found")
+    inside = (
+        (points[:, 0] > 1.5)
+        & (points[:, 0] < rows - 2.5)
+        & (points[:, 1] > 1.5)
+        & (points[:, 1] < cols - 2.5)
+    )
+    if top > 0:
+        inside &= points[:, 0] > top + 2.0
+    if bottom < rows:
+        inside &= points[:, 0] < bottom - 3.0
+    return points[inside]
+
+
+def _by_silhouette(points, labels, order):
+    """Two silhouettes (before contact): each outline point goes to the nearer.
+
+    The nearer is the largest of the two labels within 2 px (a 5 x 5 grey
+    dilation of the two silhouettes' labels, looked up at the points).
+    """
+    rows, cols = labels.shape
+    owner = _largest_label_near(
+        labels,
+        order[:2] + 1,
+        np.clip(np.rint(points[:, 0]).astype(int), 0, rows - 1),
+        np.clip(np.rint(points[:, 1]).astype(int), 0, cols - 1),
+        reach=2,
+    )
+    return [points[owner == order[0] + 1], points[owner == order[1] + 1]]
+
+
+def _split_merged(points, silhouette):
+    """One silhouette (already merged): the outline points on either side of
+    the narrowest place in the middle part of its long axis."""
+    rr, cc = np.nonzero(silhouette)
+    centre = np.array([rr.mean(), cc.mean()])
+    cov = np.cov(np.vstack([rr - centre[0], cc - centre[1]]))
+    evals, evecs = np.linalg.eigh(cov)
+    long_axis = evecs[:, np.argmax(evals)]
+    proj = (rr - centre[0]) * long_axis[0] + (cc - centre[1]) * long_axis[1]
+    lo, hi = np.percentile(proj, [20, 80])
+    bins = np.arange(np.floor(lo), np.ceil(hi) + 1)
+    if len(bins) < 3:
+        raise MeasurementError("the silhouette is too small to hold two drops")
+    counts, _ = np.histogram(proj, bins=bins)
+    split = bins[int(np.argmin(counts))] + 0.5
+    side = (points - centre) @ long_axis >= split
+    return [points[~side], points[side]]
 
 
 def edge_blur(trans, pair: DropPair, *, angles: int = 48) -> float:

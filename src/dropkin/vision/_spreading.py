@@ -4,7 +4,8 @@ Side view: the substrate is a band across the bottom of the frame, the drop a
 dark cap on it (before contact, a sphere above it); a reflective substrate
 also shows the drop's mirror image below its surface, which is ignored. The
 contact radius is half the distance between the two contact points on the
-substrate line (see :mod:`dropkin.vision._substrate` for how they are found).
+substrate line (see :mod:`dropkin.vision._substrate` for how they are found,
+and :mod:`dropkin.vision._side` for how they are measured in every frame).
 
 Bottom view, through a transparent substrate: the wetted disc is a darker
 disc inside the drop's outline (the outline itself is the drop's widest
@@ -12,7 +13,7 @@ circle seen from below, or the wetted disc once the contact angle is below 90
 degrees). The contact radius is the wetted disc's equivalent radius
 ``sqrt(A / pi)``, with the area ``A`` from the summed coverage of the pixels
 (blur and pixel averaging move light between pixels but conserve the sum; see
-:mod:`dropkin.vision._wetted`).
+:mod:`dropkin.vision._wetted` and :mod:`dropkin.vision._wetted_area`).
 
 As for the neck (:mod:`dropkin.vision._neck`), :func:`find_spreading_drop`
 works once on a reference frame and :func:`measure_contact_lines` on whole
@@ -22,24 +23,23 @@ view) or an annulus around the wetted disc's edge (bottom view).
 
 from __future__ import annotations
 
-import math
-from dataclasses import dataclass
-
 import numpy as np
 
 from ..errors import MeasurementError
-from ._circle import CircleFit
-from ._neck import BAND_LIMIT, NOT_FOUND
+from ._band import BAND_LIMIT, redone
+from ._side import measure_side
+from ._spreading_records import ContactLineResult, SpreadingSetup, check_view
 from ._substrate import (
     SubstrateLine,
     drop_above,
     find_substrate,
     fit_drop_above,
-    measure_side,
     mirror_below,
     slope_blur,
     substrate_line,
 )
+from ._wetted import find_bottom
+from ._wetted_area import measure_bottom_chunk
 
 __all__ = [
     "SpreadingSetup",
@@ -48,126 +48,6 @@ __all__ = [
     "measure_contact_lines",
     "spreading_background_mask",
 ]
-
-VIEWS = ("side", "bottom")
-#: Radial bin width (px) of the bottom view's profiles.
-BIN = 0.25
-#: Bottom view: crossing distances within this many sigmas of a single edge's
-#: (1.349 sigma) count as no ring (interpolation between bins widens them by
-#: about 0.01 sigma; see `_ring_widths`).
-WIDTH_TOLERANCE = 0.03
-
-
-@dataclass(frozen=True)
-class SpreadingSetup:
-    """Where the drop and the substrate are, from one reference frame (pixels).
-
-    Attributes
-    ----------
-    view : str
-        ``"side"`` or ``"bottom"``.
-    drop : CircleFit
-        Side view: the circle fitted to the drop's outline above the
-        substrate (the sphere before contact, the cap's circle after).
-        Bottom view: the drop's outline seen from below.
-    centre : (2,) ndarray
-        (row, col) of the drop axis: side view, where it meets the substrate
-        line; bottom view, the centre of the drop's outline.
-    tilt : float
-        Side view: slope d(row)/d(col) of the substrate line, which passes
-        through `centre`; 0 in bottom view.
-    blur : float
-        Edge blur, the sigma (px) of an equivalent Gaussian, measured across
-        the drop's outline (see :func:`dropkin.vision.edge_blur`).
-    background_level : float
-        Transmission of the background beside the drop.
-    drop_level : float
-        Side view: transmission of the drop's dark rim. Bottom view: of the
-        drop's outline outside the wetted disc (the ring).
-    plate_level : float
-        Side view: transmission of the substrate band away from the drop;
-        NaN in bottom view.
-    mirror : bool
-        Side view: the band shows the drop's mirror image.
-    in_contact : bool
-        The reference frame already shows contact (side view: the drop's
-        circle reaches the substrate; bottom view: a wetted disc).
-    wetted : CircleFit or None
-        Bottom view: the wetted disc in the reference frame, if any.
-    wetted_level : float
-        Bottom view: transmission of the wetted disc, NaN if the reference
-        frame shows none (and in side view).
-    """
-
-    view: str
-    drop: CircleFit
-    centre: np.ndarray
-    tilt: float
-    blur: float
-    background_level: float
-    drop_level: float
-    plate_level: float
-    mirror: bool
-    in_contact: bool
-    wetted: CircleFit | None = None
-    wetted_level: float = math.nan
-
-    @property
-    def substrate_row(self) -> float:
-        """Side view: row of the substrate surface at the drop axis (NaN in bottom view)."""
-        return float(self.centre[0]) if self.view == "side" else math.nan
-
-    @property
-    def axis_col(self) -> float:
-        """Column of the drop axis."""
-        return float(self.centre[1])
-
-    @property
-    def drop_radius(self) -> float:
-        """Radius (px) of the drop's circle (see `drop`)."""
-        return float(self.drop.radius)
-
-
-@dataclass(frozen=True)
-class ContactLineResult:
-    """Contact-line measurements for a chunk of frames (pixels).
-
-    Attributes
-    ----------
-    radius : (K,) ndarray
-        Contact radius (px): side view, half the distance between the two
-        contact points; bottom view, ``sqrt(A / pi)`` of the wetted area.
-        NaN where there is no measurement.
-    radius_err : (K,) ndarray
-        Its standard uncertainty (px), from the fit's scatter and the image
-        noise, at least 0.1 px.
-    edges : (K, 2, 2) ndarray
-        Two contact points (row, col) per frame: side view, the left and
-        right ends of the contact line on the substrate; bottom view, the
-        ends of the wetted disc's horizontal diameter.
-    status : (K,) ndarray of int8
-        Codes into :data:`dropkin.vision.STATUS_NAMES`.
-    gap : (K,) ndarray
-        Side view: the gap (px) between the drop and the substrate on the
-        axis, as conserved transmission (sub-pixel gaps still show); about
-        zero once in contact; NaN where not measurable. NaN in bottom view.
-    angles : (K, 2) ndarray
-        Side view: apparent contact angle (degrees, inside the liquid) at the
-        left and right contact points, from the local fit of the outline;
-        NaN where there is no measurement and in bottom view.
-    """
-
-    radius: np.ndarray
-    radius_err: np.ndarray
-    edges: np.ndarray
-    status: np.ndarray
-    gap: np.ndarray
-    angles: np.ndarray
-
-
-def _check_view(view):
-    if view not in VIEWS:
-        raise ValueError(f"view must be 'side' or 'bottom', got {view!r}")
 
 
 def find_spreading_drop(trans, *, view: str, level: float = 0.5) -> SpreadingSetup:
@@ -224,7 +104,7 @@ def find_spreading_drop(trans, *, view: str, level: float = 0.5) -> SpreadingSet
     >>> round(setup.substrate_row, 2), round(setup.axis_col, 1), setup.in_contact
     (44.5, 40.0, False)
     """
-    _check_view(view)
+    check_view(view)
     trans = np.asarray(trans, dtype=np.float64)
     if trans.ndim != 2:
         raise ValueError(f"trans must be a 2-D array, got shape {trans.shape}")
@@ -232,9 +112,7 @@ def find_spreading_drop(trans, *, view: str, level: float = 0.5) -> SpreadingSet
         raise ValueError(f"level must lie between 0 and 1, got {level}")
     if view == "side":
         return _find_side(trans, level)
-    from ._wetted import _find_bottom  # bottom view; imported here (no cycle)
-
-    return _find_bottom(trans, level)
+    return find_bottom(trans, level)
 
 
 def _find_side(trans, level):
@@ -350,6 +228,7 @@ def measure_contact_lines(
     level: float = 0.5,
     gap_blurs: float = 3.0,
 ) -> ContactLineResult:
+    # Long only by its notes (statuses, resolution, bottom view); the code dispatches.
     """Contact radius in each frame of a chunk, looking only near the contact line.
 
     Parameters
@@ -437,9 +316,7 @@ def measure_contact_lines(
             level=level,
             gap_blurs=gap_blurs,
         )
-    from ._wetted import _measure_bottom_chunk
-
-    return _measure_bottom_chunk(
+    return measure_bottom_chunk(
         frames, setup, illumination=illumination, dark=dark, noise=noise, level=level
     )
 
@@ -450,7 +327,9 @@ def _wedge_distance(radius):
 
 
 def _measure_side_chunk(frames, setup, **settings):
-    k, m, n = frames.shape
+    """Side view: the chunk on a strip as wide as the last frame's drop, and again
+    on the whole width for the frames whose drop reaches the strip's ends."""
+    n = frames.shape[2]
     sigma = setup.blur
 
     def run(sub, col_range):
@@ -459,7 +338,7 @@ def _measure_side_chunk(frames, setup, **settings):
         )
 
     probe = run(frames[-1:], None)
-    ext = probe["extent"][0]
+    ext = probe.extent[0]
     if np.all(np.isfinite(ext)):
         half = max(setup.axis_col - ext[0], ext[1] - setup.axis_col)
     else:
@@ -468,18 +347,7 @@ def _measure_side_chunk(frames, setup, **settings):
     c0 = int(max(np.floor(setup.axis_col - half), 0))
     c1 = int(min(np.ceil(setup.axis_col + half) + 1, n))
     result = run(frames, (c0, c1))
-    redo = result["status"] == BAND_LIMIT
-    if redo.any():
-        again = run(frames[redo], None)
-        for name in ("radius", "radius_err", "edges", "status", "gap", "angles"):
-            result[name][redo] = again[name]
-    status = result["status"]
-    status[status == BAND_LIMIT] = NOT_FOUND
-    return ContactLineResult(
-        radius=result["radius"],
-        radius_err=result["radius_err"],
-        edges=result["edges"],
-        status=status,
-        gap=result["gap"],
-        angles=result["angles"],
-    )
+    redo = result.status == BAND_LIMIT
+    again = run(frames[redo], None) if redo.any() else None
+    names = ("radius", "radius_err", "edges", "status", "gap", "angles")
+    return ContactLineResult(**redone(result, again, redo, names))

@@ -396,7 +396,7 @@ def test_noise_estimate_is_the_scaled_mad_of_neighbour_differences():
     # Reference: the robust noise of the background (1.4826 x the median
     # absolute deviation, over sqrt 2 for a difference of two pixels; common
     # practice) written directly with numpy; the helper computes it in place.
-    from dropkin.measure._stream import _noise
+    from dropkin.measure._prepare import _noise
 
     rng = np.random.default_rng(6)
     trans = (1.0 + rng.normal(0, 0.02, (120, 150))).astype(np.float32)

@@ -1,0 +1,237 @@
+"""From a recording and its experiment to a radius series in SI units.
+
+:func:`measure` prepares the analysis on the first frames (see
+:mod:`dropkin.measure._prepare`), streams the recording in chunks through the
+per-frame image analysis of :mod:`dropkin.vision` (see
+:mod:`dropkin.measure._stream`), attaches an uncertainty and a status to
+every frame, finds the contact instant, and converts pixels to metres.
+"""
+
+from __future__ import annotations
+
+from collections.abc import Callable
+from dataclasses import dataclass
+from pathlib import Path
+
+import numpy as np
+
+from .._version import __version__
+from ..contact._estimate import estimate_contact
+from ..contact._frames import relabel_before_contact
+from ..errors import ExperimentError
+from ..series import RadiusSeries
+from ..status import status_names
+from ._options import DEFAULT_OPTIONS, MeasureOptions, checked_options
+from ._prepare import Preparation, prepare
+from ._stream import stream
+
+__all__ = ["measure"]
+
+
+@dataclass(frozen=True)
+class _PixelFrames:
+    """Every frame's measurement in pixels, as the chunks gave it (internal).
+
+    Attributes
+    ----------
+    radius, radius_err : (F,) ndarray
+        Neck or contact radius and its uncertainty (px).
+    codes : (F,) ndarray of int8
+        Status codes (see :mod:`dropkin.status`).
+    edges : (F, 2, 2) ndarray
+        Edge points (row, col) in the analysed region.
+    gap : (F,) ndarray
+        Gap before contact (px).
+    angles : (F, 2) ndarray or None
+        Apparent contact angles (degrees), side-view spreading only.
+    """
+
+    radius: np.ndarray
+    radius_err: np.ndarray
+    codes: np.ndarray
+    edges: np.ndarray
+    gap: np.ndarray
+    angles: np.ndarray | None
+
+
+def measure(
+    recording,
+    experiment,
+    *,
+    options: MeasureOptions = DEFAULT_OPTIONS,
+    progress: Callable[[int, int], None] | None = None,
+    keep_edges: bool = False,
+):
+    """Measure the neck or contact radius in every frame of a recording.
+
+    Parameters
+    ----------
+    recording : Recording
+        The frames, with times and pixel size.
+    experiment : Experiment
+        Geometry, view and drops; its pixel size must be known (here or in
+        the recording).
+    options : MeasureOptions, optional
+    progress : callable, optional
+        Called as ``progress(frames_done, frames_total)``.
+    keep_edges : bool, optional
+        Also return the per-frame edge points (for overlays).
+
+    Returns
+    -------
+    series : RadiusSeries
+    extras : dict
+        ``preparation``, ``contact`` (the :class:`ContactEstimate`) and, with
+        `keep_edges`, ``edges`` ((F, 2, 2) px, in full-frame coordinates).
+
+    Raises
+    ------
+    ExperimentError
+        If the pixel size or the geometry is not known.
+    MeasurementError
+        If the drops are never found.
+    """
+    geometry, pixel = _geometry_and_pixel(recording, experiment)
+    options = checked_options(options, recording.shape)
+    prep = prepare(recording, geometry=geometry, view=experiment.setup.view, options=options)
+    px = _collect(recording, prep, options, progress)
+    # In pixels: gaps below a tenth of a pixel count as closed.
+    contact = estimate_contact(
+        recording.times,
+        px.radius,
+        px.radius_err,
+        status_names(px.codes),
+        gap=px.gap,
+        early_radius=_drop_radii_px(prep).min() / 3.0,
+        gap_floor=0.1,
+    )
+    status, early = relabel_before_contact(recording.times, status_names(px.codes), contact.time)
+    radius, radius_err, edges = px.radius.copy(), px.radius_err.copy(), px.edges.copy()
+    angles = None if px.angles is None else px.angles.copy()
+    for values in (radius, radius_err, edges, angles):
+        if values is not None:
+            values[early] = np.nan
+    if options.roi is not None:
+        edges += np.array([options.roi[0], options.roi[2]], dtype=np.float64)
+    series = RadiusSeries(
+        frame=np.asarray(recording.source_frames, dtype=np.int64),
+        time=np.asarray(recording.times, dtype=np.float64),
+        radius=radius * pixel,
+        radius_err=radius_err * pixel,
+        status=status,
+        contact_time=contact.time,
+        contact_time_err=contact.err,
+        drop_radius=_drop_radius(experiment, prep, pixel),
+        geometry=geometry,
+        view=experiment.setup.view,
+        frame_rate=recording.frame_rate,
+        pixel_size=pixel,
+        provenance=_provenance(recording, options),
+        details=_details(recording, experiment, prep, options, contact, pixel),
+        angles=angles,
+    )
+    extras = {"preparation": prep, "contact": contact}
+    if keep_edges:
+        extras["edges"] = edges
+    return series, extras
+
+
+def _geometry_and_pixel(recording, experiment):
+    """The geometry and the pixel size (m), or ExperimentError if one is unknown."""
+    geometry = experiment.setup.geometry
+    if geometry is None:
+        raise ExperimentError(
+            "is needed to measure",
+            key="setup.geometry",
+            path=experiment.path,
+            expected="coalescence or spreading",
+        )
+    pixel = recording.pixel_size or experiment.recording.pixel_size
+    if pixel is None:
+        raise ExperimentError(
+            "is needed to give radii in metres",
+            key="recording.pixel_size",
+            path=experiment.path or recording.path,
+            expected='e.g. pixel_size = "5 um"',
+        )
+    return geometry, pixel
+
+
+def _collect(recording, prep: Preparation, options, progress) -> _PixelFrames:
+    """Every frame's measurement, the chunks streamed in order."""
+    n = len(recording)
+    radius = np.full(n, np.nan)
+    radius_err = np.full(n, np.nan)
+    codes = np.zeros(n, dtype=np.int8)
+    edges = np.full((n, 2, 2), np.nan)
+    gap = np.full(n, np.nan)
+    side_spreading = prep.spreading is not None and prep.spreading.view == "side"
+    angles = np.full((n, 2), np.nan) if side_spreading else None
+    for start, result in stream(recording, prep, options, progress):
+        stop = start + len(result.radius)
+        radius[start:stop] = result.radius
+        radius_err[start:stop] = result.radius_err
+        codes[start:stop] = result.status
+        edges[start:stop] = result.edges
+        gap[start:stop] = result.gap
+        if angles is not None:
+            angles[start:stop] = result.angles
+    return _PixelFrames(radius, radius_err, codes, edges, gap, angles)
+
+
+def _drop_radii_px(prep) -> np.ndarray:
+    if prep.spreading is not None:
+        return np.array([prep.spreading.drop_radius])
+    return np.asarray(prep.pair.radii, dtype=np.float64)
+
+
+def _drop_radius(experiment, prep, pixel: float) -> float:
+    """The drop radius (m): the experiment's, else the mean of the circle fits."""
+    drop_radius = experiment.drops.radius
+    if drop_radius is None:
+        drop_radius = float(np.mean(_drop_radii_px(prep))) * pixel
+    return drop_radius
+
+
+def _unresolved_criterion(prep, options) -> str:
+    limit = f"{options.gap_blurs:g} edge blurs ({options.gap_blurs * prep.blur:.3g} px)"
+    if prep.spreading is not None:
+        if prep.spreading.view == "bottom":
+            return "not used in bottom view (the wetted disc is seen directly)"
+        return (
+            "apparent contact angle above 90 degrees and the air wedge beside the "
+            f"contact point lower than {limit}"
+        )
+    return f"gap beside the neck r^2/2 (1/R0 + 1/R1) narrower than {limit}"
+
+
+def _details(recording, experiment, prep, options, contact, pixel: float) -> dict:
+    """The measurement's details, as written in ``measure.json``."""
+    return {
+        "drop_radii_m": [float(r) * pixel for r in _drop_radii_px(prep)],
+        "drop_radius_origin": "experiment file" if experiment.drops.radius else "circle fit",
+        "contact_bracket_s": None if contact.bracket is None else list(contact.bracket),
+        "contact_method": contact.method,
+        "edge_level": options.level,
+        "noise_transmission": prep.noise,
+        "edge_blur_px": prep.blur,
+        "unresolved_criterion": _unresolved_criterion(prep, options),
+        "reference_frame": int(recording.source_frames[prep.reference_frame]),
+    }
+
+
+def _provenance(recording, options) -> dict:
+    """Where the series comes from and how it was measured."""
+    return {
+        "tool": "dropkin",
+        "version": __version__,
+        "input": str(Path(recording.path).resolve()),
+        "options": {
+            "roi": None if options.roi is None else list(options.roi),
+            "level": options.level,
+            "chunk_size": options.chunk_size,
+            "jobs": options.jobs,
+            "gap_blurs": options.gap_blurs,
+            "background": "given image" if options.background is not None else "fitted",
+        },
+    }

@@ -1,0 +1,46 @@
+"""The per-frame status vocabulary: what each frame of a radius series shows.
+
+A frame's status is one of :data:`STATUSES`, as written in ``radius.csv``:
+
+``ok``
+    A radius was measured.
+``before-contact``
+    The drops (or the drop and the substrate) have not touched yet.
+``unresolved``
+    In contact, but the neck or contact point is narrower than the optics
+    resolve (a radius may still be given).
+``not-found``
+    Nothing to measure was seen.
+``at-edge``
+    What is measured reaches the frame's border.
+
+The image analysis works on integer codes, which index :data:`STATUSES`;
+:func:`status_names` turns codes into names.
+"""
+
+from __future__ import annotations
+
+__all__ = [
+    "STATUSES",
+    "OK",
+    "BEFORE_CONTACT",
+    "UNRESOLVED",
+    "NOT_FOUND",
+    "AT_EDGE",
+    "status_names",
+]
+
+#: Allowed per-frame statuses; the integer codes below index this tuple.
+STATUSES = ("ok", "before-contact", "unresolved", "not-found", "at-edge")
+OK, BEFORE_CONTACT, UNRESOLVED, NOT_FOUND, AT_EDGE = range(len(STATUSES))
+
+
+def status_names(codes) -> tuple[str, ...]:
+    """The status names of a sequence of integer codes.
+
+    Examples
+    --------
+    >>> status_names([OK, AT_EDGE])
+    ('ok', 'at-edge')
+    """
+    return tuple(STATUSES[c] for c in codes)
