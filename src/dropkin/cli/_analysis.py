@@ -5,7 +5,7 @@ from __future__ import annotations
 import click
 
 from ..errors import DropkinError, MeasurementError
-from ._console import progress_bar
+from ._console import detail, detail_experiment, detail_settings, progress_bar
 from ._options import (
     analysis_settings,
     fit_options,
@@ -13,9 +13,12 @@ from ._options import (
     output_option,
     recording_overrides,
 )
-from ._recording import measure_summary
+from ._recording import MEASURE_SETTINGS, measure_summary
 
 __all__ = ["fit_command", "analyze_command"]
+
+#: The settings of an analysis that fitting uses (``-v`` shows them).
+FIT_SETTINGS = ("t0", "seed", "bootstrap")
 
 
 def _report_verdict(verdict, radius_csv, path) -> None:
@@ -44,9 +47,11 @@ def fit_command(ctx, radius_csv, out, experiment, t0, seed, bootstrap):
 
     from ..pipeline._steps import fit_into
 
-    verdict, _, _ = fit_into(
+    detail(ctx, f"settings: t0 = {t0!r}, seed = {seed!r}, bootstrap = {bootstrap!r}")
+    verdict, _, used = fit_into(
         radius_csv, out, experiment=experiment, t0=t0, seed=seed, bootstrap=bootstrap
     )
+    detail_experiment(ctx, used.path)
     _report_verdict(verdict, radius_csv, Path(out) / "fit.json")
 
 
@@ -64,6 +69,7 @@ def analyze_command(ctx, source, out, **options):
 
     out = Path(out)
     settings = analysis_settings(**options)
+    detail_settings(ctx, settings, MEASURE_SETTINGS + FIT_SETTINGS)
     # The frame count is known only once the recording is open; the bar then
     # counts frames (the fit and the report take a few seconds more).
     with progress_bar(ctx, "measuring", 0) as progress:
@@ -82,6 +88,8 @@ def analyze_command(ctx, source, out, **options):
                     f"{exc.message}; radius series written to {out}", path=exc.path
                 ) from None
             raise
+    detail_experiment(ctx, result.series.provenance.get("experiment_file"))
+    detail(ctx, f"contact: {result.contact_method}")
     click.echo(measure_summary(result.series, out))
     _report_verdict(result.verdict, out / "radius.csv", out / "fit.json")
     click.echo(f"wrote {result.report}")

@@ -41,7 +41,13 @@ class _Group(click.Group):
 
 @click.group(cls=_Group, context_settings={"help_option_names": ["-h", "--help"]})
 @click.version_option(__version__, "--version", prog_name="dropkin")
-@click.option("-v", "--verbose", count=True, help="Say more on stderr (repeat for more).")
+@click.option(
+    "-v",
+    "--verbose",
+    count=True,
+    help="Also say on stderr which experiment file and settings were used and how the "
+    "contact instant was found.",
+)
 @click.option("-q", "--quiet", is_flag=True, help="Say nothing on stderr but errors.")
 @click.pass_context
 def main(ctx: click.Context, verbose: int, quiet: bool) -> None:

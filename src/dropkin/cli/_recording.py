@@ -7,7 +7,7 @@ import json
 import click
 
 from ..errors import MeasurementError
-from ._console import progress_bar
+from ._console import detail, detail_experiment, detail_settings, progress_bar
 from ._options import (
     analysis_settings,
     experiment_options,
@@ -15,14 +15,18 @@ from ._options import (
     recording_overrides,
 )
 
-__all__ = ["info_command", "measure_command", "measure_summary"]
+__all__ = ["info_command", "measure_command", "measure_summary", "MEASURE_SETTINGS"]
+
+#: The settings of an analysis that measuring uses (``-v`` shows them).
+MEASURE_SETTINGS = ("roi", "threshold", "background", "jobs", "chunk_size", "overlays")
 
 
 @click.command("info")
 @click.argument("source", type=click.Path(exists=True, path_type=str))
 @experiment_options
 @click.option("--json", "as_json", is_flag=True, help="Print the description as JSON.")
-def info_command(source, as_json, **options):
+@click.pass_context
+def info_command(ctx, source, as_json, **options):
     """Describe the recording SOURCE (a folder of frames, a TIFF stack or a video)."""
     from ..liquids._library import resolve_fluids
     from ..pipeline._steps import open_source
@@ -31,6 +35,7 @@ def info_command(source, as_json, **options):
     exp, rec = open_source(
         source, experiment=options["experiment"], overrides=recording_overrides(**options)
     )
+    detail_experiment(ctx, exp.path)
     description = describe(rec, resolve_fluids(exp))
     if as_json:
         click.echo(json.dumps(description, indent=2))
@@ -63,8 +68,11 @@ def measure_command(ctx, source, out, **options):
     )
     out = Path(out)
     settings = analysis_settings(**options)
+    detail_experiment(ctx, exp.path)
+    detail_settings(ctx, settings, MEASURE_SETTINGS)
     with progress_bar(ctx, "measuring", len(rec)) as progress:
         series, method = measure_into(out, exp, rec, settings, progress=progress)
     if series.contact_time is None:
         raise MeasurementError(f"{method}; radius series written to {out}", path=rec.path)
+    detail(ctx, f"contact: {method}")
     click.echo(measure_summary(series, out))
