@@ -9,7 +9,7 @@ import tifffile
 from click.testing import CliRunner
 
 from dropkin.cli import main
-from dropkin.cli._commands import _SYNTH_LAWS
+from dropkin.cli._synth import law_choices, synth_command
 from dropkin.synth import REGIME_NAMES
 from dropkin.units import parse_si
 
@@ -87,7 +87,9 @@ def test_synth_power_law_with_sub_frame_contact(tmp_path):
 
 
 def test_synth_law_names_are_the_library_regimes():
-    assert set(_SYNTH_LAWS) == {*REGIME_NAMES, "power"}
+    (law,) = [p for p in synth_command.params if p.name == "law"]
+    assert law.type.choices == law_choices()
+    assert set(law_choices()) == {*REGIME_NAMES, "power"}
 
 
 def _one_line_error(result):

@@ -1,0 +1,95 @@
+"""``dropkin fit`` and ``dropkin analyze``: the regime verdict, and the whole job."""
+
+from __future__ import annotations
+
+import click
+
+from ..errors import DropkinError, MeasurementError
+from ._console import detail, detail_experiment, detail_settings, progress_bar
+from ._options import (
+    analysis_settings,
+    fit_options,
+    measure_options,
+    output_option,
+    recording_overrides,
+)
+from ._recording import MEASURE_SETTINGS, measure_summary
+
+__all__ = ["fit_command", "analyze_command"]
+
+#: The settings of an analysis that fitting uses (``-v`` shows them).
+FIT_SETTINGS = ("t0", "seed", "bootstrap")
+
+
+def _report_verdict(verdict, radius_csv, path) -> None:
+    """Print the verdict; then where it went, or (no verdict) the reason, as an error."""
+    from ..scaling import format_verdict
+
+    click.echo(format_verdict(verdict))
+    if not verdict:
+        raise DropkinError(verdict.reason, path=radius_csv)
+    click.echo(f"wrote {path}")
+
+
+@click.command("fit")
+@click.argument("radius_csv", type=click.Path(exists=True, dir_okay=False, path_type=str))
+@output_option("Folder for fit.json.")
+@click.option(
+    "--experiment",
+    type=click.Path(exists=True, dir_okay=False, path_type=str),
+    help="Experiment file (default: the one named in measure.json).",
+)
+@fit_options
+@click.pass_context
+def fit_command(ctx, radius_csv, out, experiment, t0, seed, bootstrap):
+    """Fit the scaling regimes to RADIUS_CSV (from dropkin measure) and give the verdict."""
+    from pathlib import Path
+
+    from ..pipeline._steps import fit_into
+
+    detail(ctx, f"settings: t0 = {t0!r}, seed = {seed!r}, bootstrap = {bootstrap!r}")
+    verdict, _, used = fit_into(
+        radius_csv, out, experiment=experiment, t0=t0, seed=seed, bootstrap=bootstrap
+    )
+    detail_experiment(ctx, used.path)
+    _report_verdict(verdict, radius_csv, Path(out) / "fit.json")
+
+
+@click.command("analyze")
+@click.argument("source", type=click.Path(exists=True, path_type=str))
+@measure_options
+@fit_options
+@click.pass_context
+def analyze_command(ctx, source, out, **options):
+    """Measure SOURCE, then fit the regimes: radius.csv, measure.json, fit.json,
+    plots/ and a self-contained report.html."""
+    from pathlib import Path
+
+    from ..pipeline._steps import analyze_into
+
+    out = Path(out)
+    settings = analysis_settings(**options)
+    detail_settings(ctx, settings, MEASURE_SETTINGS + FIT_SETTINGS)
+    # The frame count is known only once the recording is open; the bar then
+    # counts frames (the fit and the report take a few seconds more).
+    with progress_bar(ctx, "measuring", 0) as progress:
+        try:
+            result = analyze_into(
+                source,
+                out,
+                settings,
+                experiment=options["experiment"],
+                overrides=recording_overrides(**options),
+                progress=progress,
+            )
+        except MeasurementError as exc:
+            if (out / "radius.csv").is_file():
+                raise MeasurementError(
+                    f"{exc.message}; radius series written to {out}", path=exc.path
+                ) from None
+            raise
+    detail_experiment(ctx, result.series.provenance.get("experiment_file"))
+    detail(ctx, f"contact: {result.contact_method}")
+    click.echo(measure_summary(result.series, out))
+    _report_verdict(result.verdict, out / "radius.csv", out / "fit.json")
+    click.echo(f"wrote {result.report}")

@@ -1,0 +1,62 @@
+"""The ``dropkin`` group: its global options and the one place where errors become exit codes.
+
+A :class:`~dropkin.errors.DropkinError` (or an ``OSError``, the machine's
+fault rather than the data's) is one line on stderr and exit code 1; click's
+usage errors are exit code 2. The commands themselves are in the topic
+modules (``_recording``, ``_analysis``, ``_physics``, ``_campaign``,
+``_synth``) and are added to the group by ``dropkin.cli``.
+"""
+
+from __future__ import annotations
+
+import click
+
+from .._version import __version__
+from ..errors import DropkinError
+
+__all__ = ["main", "run", "EXIT_INPUT_ERROR", "EXIT_BATCH_PARTIAL", "EXIT_INTERRUPTED"]
+
+#: Bad input or data: a one-line error on stderr.
+EXIT_INPUT_ERROR = 1
+#: ``dropkin batch``: some recordings failed, the others are complete.
+EXIT_BATCH_PARTIAL = 3
+#: ``dropkin batch`` was interrupted (run it again to finish).
+EXIT_INTERRUPTED = 130
+
+
+class _Group(click.Group):
+    """A click group that turns dropkin's errors into one line and exit code 1."""
+
+    def invoke(self, ctx):
+        try:
+            return super().invoke(ctx)
+        except DropkinError as exc:
+            click.echo(f"dropkin: error: {exc}", err=True)
+            ctx.exit(EXIT_INPUT_ERROR)
+        except OSError as exc:  # the machine's fault, not the data's: still one line
+            where = f"{exc.filename}: " if getattr(exc, "filename", None) else ""
+            click.echo(f"dropkin: error: {where}{exc.strerror or exc}", err=True)
+            ctx.exit(EXIT_INPUT_ERROR)
+
+
+@click.group(cls=_Group, context_settings={"help_option_names": ["-h", "--help"]})
+@click.version_option(__version__, "--version", prog_name="dropkin")
+@click.option(
+    "-v",
+    "--verbose",
+    count=True,
+    help="Also say on stderr which experiment file and settings were used and how the "
+    "contact instant was found.",
+)
+@click.option("-q", "--quiet", is_flag=True, help="Say nothing on stderr but errors.")
+@click.pass_context
+def main(ctx: click.Context, verbose: int, quiet: bool) -> None:
+    """Neck and contact radius from high-speed recordings of merging or
+    spreading drops, and the scaling regime that governs them."""
+    ctx.ensure_object(dict)
+    ctx.obj["verbosity"] = -1 if quiet else verbose
+
+
+def run() -> None:  # pragma: no cover - exercised through ``python -m dropkin``
+    """Entry point for ``python -m dropkin``."""
+    main(prog_name="dropkin")

@@ -1,0 +1,209 @@
+"""Parameter types and the options several commands share, with what they become.
+
+:func:`experiment_options` are the recording's options that override its
+experiment file (:func:`recording_overrides` turns them into dotted keys);
+:func:`measure_options` and :func:`fit_options` are the analysis settings
+(:func:`analysis_settings` turns them into an
+:class:`~dropkin.pipeline.AnalysisSettings`).
+"""
+
+from __future__ import annotations
+
+import math
+
+import click
+
+from ..units import QuantityType
+
+__all__ = [
+    "positive",
+    "FiniteFloat",
+    "FINITE_FLOAT",
+    "LazyChoice",
+    "output_option",
+    "experiment_options",
+    "measure_options",
+    "fit_options",
+    "EXPERIMENT_KEYS",
+    "recording_overrides",
+    "analysis_settings",
+]
+
+
+def positive(unit: str) -> QuantityType:
+    """A quantity option that must lie above zero; the usage error names the option."""
+    return QuantityType(unit, positive=True)
+
+
+class FiniteFloat(click.FloatRange):
+    """click's FloatRange, refusing NaN and infinity (which its bounds let through)."""
+
+    def __init__(self, min=None, max=None, **kwargs):
+        super().__init__(min, max, **kwargs)
+        if min is None and max is None:
+            self.name = "float"  # help shows FLOAT, without a range
+
+    def convert(self, value, param, ctx):
+        number = super().convert(value, param, ctx)
+        if not math.isfinite(number):
+            self.fail(f"{value!r} is not a finite number.", param, ctx)
+        return number
+
+    def _describe_range(self) -> str:
+        return "" if self.min is None and self.max is None else super()._describe_range()
+
+
+FINITE_FLOAT = FiniteFloat()
+
+
+class LazyChoice(click.Choice):
+    """click's Choice whose choices come from `load()` on first use.
+
+    For choices defined in a package that is slow to import: ``dropkin --help``
+    never asks for them.
+    """
+
+    def __init__(self, load, case_sensitive: bool = True) -> None:
+        self._load = load
+        self._choices = None
+        self.case_sensitive = case_sensitive
+
+    @property
+    def choices(self) -> tuple:
+        if self._choices is None:
+            self._choices = tuple(self._load())
+        return self._choices
+
+
+def _apply(command, options):
+    for option in reversed(options):
+        command = option(command)
+    return command
+
+
+def output_option(help_text: str):
+    """The -o/--output folder option, required by every command that writes."""
+    return click.option(
+        "-o",
+        "--output",
+        "out",
+        required=True,
+        type=click.Path(file_okay=False, path_type=str),
+        help=help_text,
+    )
+
+
+def experiment_options(command):
+    """Options shared by every command that reads a recording."""
+    options = [
+        click.option(
+            "--experiment",
+            type=click.Path(dir_okay=False, path_type=str),
+            help="Experiment file (default: experiment.toml in the folder, or <stem>.toml).",
+        ),
+        click.option("--frame-rate", type=positive("Hz"), help='Frame rate, e.g. "20 kfps".'),
+        click.option("--pixel-size", type=positive("m"), help='Length of one pixel, e.g. "5 um".'),
+        click.option(
+            "--geometry",
+            type=click.Choice(["coalescence", "spreading"]),
+            help="What was filmed.",
+        ),
+        click.option("--view", type=click.Choice(["side", "bottom"]), help="Camera view."),
+    ]
+    return _apply(command, options)
+
+
+def measure_options(command):
+    """Options of every command that measures a recording."""
+    options = [
+        output_option("Folder for the outputs."),
+        experiment_options,
+        click.option("--roi", help="Region of interest ROW0:ROW1,COL0:COL1 (pixels)."),
+        click.option(
+            "--threshold",
+            type=FiniteFloat(0.05, 0.95),
+            default=0.5,
+            show_default=True,
+            help="Edge level, as a fraction of the way from the drops' dark rim to the "
+            "background.",
+        ),
+        click.option(
+            "--background",
+            type=click.Path(exists=True, dir_okay=False, path_type=str),
+            help="Image of the empty field of view, used as the backlight.",
+        ),
+        click.option(
+            "--jobs",
+            type=click.IntRange(1, 64),
+            default=1,
+            show_default=True,
+            help="Worker processes.",
+        ),
+        click.option(
+            "--chunk-size",
+            type=click.IntRange(1, 4096),
+            default=64,
+            show_default=True,
+            help="Frames per chunk.",
+        ),
+        click.option(
+            "--overlays",
+            "overlay_count",
+            type=click.IntRange(0, 50),
+            default=6,
+            show_default=True,
+            help="Annotated frames to write.",
+        ),
+    ]
+    return _apply(command, options)
+
+
+def fit_options(command):
+    """Options of every command that fits the regimes."""
+    options = [
+        click.option(
+            "--t0",
+            type=QuantityType("s"),
+            help="Fix the contact instant (time from the first frame) instead of fitting it.",
+        ),
+        click.option("--seed", type=int, default=0, show_default=True, help="Bootstrap seed."),
+        click.option(
+            "--bootstrap",
+            type=click.IntRange(0, 100000),
+            default=200,
+            show_default=True,
+            help="Bootstrap resamples for the intervals.",
+        ),
+    ]
+    return _apply(command, options)
+
+
+#: The parameters of :func:`experiment_options`.
+EXPERIMENT_KEYS = ("experiment", "frame_rate", "pixel_size", "geometry", "view")
+
+
+def recording_overrides(*, frame_rate, pixel_size, geometry, view, **_) -> dict:
+    """The experiment keys that :func:`experiment_options` override (None: not given)."""
+    return {
+        "recording.frame_rate": frame_rate,
+        "recording.pixel_size": pixel_size,
+        "setup.geometry": geometry,
+        "setup.view": view,
+    }
+
+
+def analysis_settings(*, background, roi, threshold, jobs, chunk_size, overlay_count, **others):
+    """The :class:`~dropkin.pipeline.AnalysisSettings` of :func:`measure_options` and, when
+    given, :func:`fit_options` (other options in `others` are ignored)."""
+    from ..pipeline._steps import AnalysisSettings, parse_roi
+
+    fit = {key: others[key] for key in ("t0", "seed", "bootstrap") if key in others}
+    return AnalysisSettings(
+        roi=parse_roi(roi),
+        threshold=threshold,
+        background=background,
+        jobs=jobs,
+        chunk_size=chunk_size,
+        overlays=overlay_count,
+        **fit,
+    )

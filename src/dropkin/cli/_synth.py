@@ -1,0 +1,231 @@
+"""``dropkin synth``: a synthetic recording with known truth."""
+
+from __future__ import annotations
+
+import click
+
+from ..errors import DropkinError, ExperimentError
+from ._console import progress_bar
+from ._options import FINITE_FLOAT, FiniteFloat, LazyChoice, positive
+
+__all__ = ["synth_command", "law_choices"]
+
+
+def law_choices() -> tuple[str, ...]:
+    """The laws ``--law`` offers: the regimes of :mod:`dropkin.synth`, and ``power``."""
+    from .. import synth  # on first use only: ``dropkin --help`` does not need it
+
+    return (*synth.REGIME_NAMES, "power")
+
+
+def _size(ctx, param, value):
+    """Parse ``ROWSxCOLS`` (e.g. ``256x384``) into (rows, cols)."""
+    try:
+        rows, cols = (int(part) for part in value.lower().split("x"))
+    except ValueError:
+        raise click.BadParameter(f"{value!r} is not ROWSxCOLS, e.g. 256x384") from None
+    if rows < 8 or cols < 8:
+        raise click.BadParameter(f"{value!r}: both sizes must be at least 8 pixels")
+    return rows, cols
+
+
+@click.command("synth")
+@click.argument("out", type=click.Path(path_type=str))
+@click.option(
+    "--geometry",
+    type=click.Choice(["coalescence", "spreading"]),
+    default="coalescence",
+    show_default=True,
+    help="Two drops merging, or one drop spreading on a plate.",
+)
+@click.option("--view", type=click.Choice(["side", "bottom"]), default="side", show_default=True)
+@click.option(
+    "--law",
+    type=LazyChoice(law_choices),
+    help="Radius law (default: inertial, or inertial-spreading for spreading).",
+)
+@click.option("--exponent", type=FINITE_FLOAT, help="Exponent n of --law power.")
+@click.option(
+    "--prefactor",
+    type=FINITE_FLOAT,
+    help="--law power: C of r = C t^n in SI units (m s^-n); "
+    "inertial, viscous-outer, inertial-spreading, gravity-spreading: the dimensionless C.",
+)
+@click.option("--surface-tension", type=positive("N/m"), default="72.74 mN/m", show_default=True)
+@click.option("--viscosity", type=positive("Pa*s"), default="1.0016 mPa*s", show_default=True)
+@click.option("--density", type=positive("kg/m^3"), default="998.2 kg/m^3", show_default=True)
+@click.option("--outer-viscosity", type=positive("Pa*s"), default="0.018 mPa*s", show_default=True)
+@click.option("--outer-density", type=positive("kg/m^3"), default="1.2 kg/m^3", show_default=True)
+@click.option("--liquid-name", default="water", show_default=True, help="Written to [liquid].")
+@click.option("--temperature", type=positive("K"), default="20 degC", show_default=True)
+@click.option("--glycerol-mass-fraction", type=FiniteFloat(0, 1), help="For glycerol-water.")
+@click.option("--drop-radius", type=positive("m"), default="1 mm", show_default=True)
+@click.option("--second-radius", type=positive("m"), help="Radius of drop 2 (default equal).")
+@click.option(
+    "--angle",
+    type=FINITE_FLOAT,
+    default=0.0,
+    show_default=True,
+    help="Line of centres, degrees counter-clockwise from horizontal (-90: drop 2 below).",
+)
+@click.option("--frames", type=click.IntRange(min=1), default=100, show_default=True)
+@click.option("--frame-rate", type=positive("Hz"), default="100 kHz", show_default=True)
+@click.option("--pixel-size", type=positive("m"), default="10 um", show_default=True)
+@click.option("--size", callback=_size, default="320x512", show_default=True, help="ROWSxCOLS.")
+@click.option(
+    "--contact-frame",
+    type=FINITE_FLOAT,
+    default=5.0,
+    show_default=True,
+    help="Contact instant in frames from the first (fractional: between two frames).",
+)
+@click.option(
+    "--noise",
+    type=FiniteFloat(min=0),
+    default=1.0,
+    show_default=True,
+    help="Noise level: 1 is a 20000-electron sensor with 10 e- read noise; 0 is none.",
+)
+@click.option(
+    "--blur",
+    type=FiniteFloat(min=0),
+    default=1.0,
+    show_default=True,
+    help="Sigma of the Gaussian blur, pixels.",
+)
+@click.option("--bit-depth", type=click.Choice(["8", "12"]), default="8", show_default=True)
+@click.option(
+    "--format",
+    "fmt",
+    type=click.Choice(["png", "tiff"]),
+    help="png: a folder of frames; tiff: a multi-page file (default: from OUT's suffix).",
+)
+@click.option("--seed", type=click.IntRange(min=0), default=0, show_default=True)
+@click.option(
+    "--reflectivity",
+    type=FiniteFloat(0, 1, max_open=True),
+    default=0.0,
+    show_default=True,
+    help="Spreading, side view: 0 for an opaque plate, else the drop's mirror image shows.",
+)
+@click.option("--needle-width", type=positive("m"), help="A needle into the upper drop.")
+@click.option(
+    "--dust",
+    type=click.IntRange(min=0),
+    default=0,
+    show_default=True,
+    help="Number of dust specks.",
+)
+@click.option(
+    "--approach-speed",
+    type=positive("m/s"),
+    help="Before contact (default: half a pixel per frame).",
+)
+@click.option("--overwrite", is_flag=True, help="Replace existing output.")
+@click.pass_context
+def synth_command(ctx, out, **options):
+    """Write a synthetic recording with known truth to OUT (a folder, or a .tif file)."""
+    try:
+        _synth(ctx, out, options)
+    except DropkinError as exc:
+        raise _as_option_error(ctx, exc) from None
+
+
+def _as_option_error(ctx, exc):
+    """`exc` naming the command's option (``--contact-frame``) instead of the
+    library's keyword (``contact_frame``), when there is such an option."""
+    option = "--" + (exc.key or "").replace("_", "-")
+    if exc.key is None or not any(option in p.opts for p in ctx.command.params):
+        return exc
+    fields = {name: getattr(exc, name) for name in ("path", "value", "expected", "frame")}
+    return type(exc)(exc.message, key=option, **fields)
+
+
+def _setup(o):
+    """The coalescence or spreading setup of the options `o`."""
+    from .. import synth
+
+    if o["geometry"] == "coalescence":
+        return synth.Coalescence(
+            view=o["view"],
+            drop_radius=o["drop_radius"],
+            second_radius=o["second_radius"],
+            angle_deg=o["angle"],
+            approach_speed=o["approach_speed"],
+            needle_width=o["needle_width"] or 0.0,
+        )
+    if o["second_radius"] is not None:
+        raise ExperimentError("applies only to coalescence", key="--second-radius")
+    return synth.Spreading(
+        view=o["view"],
+        drop_radius=o["drop_radius"],
+        reflectivity=o["reflectivity"],
+        approach_speed=o["approach_speed"],
+    )
+
+
+def _law(o, setup):
+    """The radius law of the options `o`: ``--law power``, or a regime's law."""
+    from .. import synth
+    from ..synth._presets import default_law_name
+
+    name = o["law"] or default_law_name(o["geometry"])
+    if name == "power":
+        if o["exponent"] is None or o["prefactor"] is None:
+            raise ExperimentError("needs --exponent and --prefactor", key="--law", value="power")
+        return synth.power_law(prefactor=o["prefactor"], exponent=o["exponent"])
+    if o["exponent"] is not None:
+        raise ExperimentError("applies only to --law power", key="--exponent")
+    return synth.regime_law(
+        name,
+        surface_tension=o["surface_tension"],
+        viscosity=o["viscosity"],
+        density=o["density"],
+        outer_viscosity=o["outer_viscosity"],
+        drop_radius=setup.effective_radius,
+        prefactor=o["prefactor"],
+    )
+
+
+def _synth(ctx, out, o):
+    import time
+
+    from .. import synth
+    from ..synth._presets import noise_sensor
+
+    setup = _setup(o)
+    law = _law(o, setup)
+    recording = synth.synthesize(
+        setup,
+        law,
+        camera=synth.Camera(o["frame_rate"], o["pixel_size"], o["size"]),
+        frames=o["frames"],
+        contact_frame=o["contact_frame"],
+        optics=synth.Optics(blur_px=o["blur"], dust_count=o["dust"]),
+        sensor=noise_sensor(o["noise"], bit_depth=int(o["bit_depth"])),
+        liquid=synth.Liquid(
+            name=o["liquid_name"] or None,
+            surface_tension=o["surface_tension"],
+            viscosity=o["viscosity"],
+            density=o["density"],
+            temperature=o["temperature"],
+            glycerol_mass_fraction=o["glycerol_mass_fraction"],
+        ),
+        medium=synth.Medium(viscosity=o["outer_viscosity"], density=o["outer_density"]),
+        seed=o["seed"],
+    )
+    start = time.perf_counter()
+    with progress_bar(ctx, "rendering", recording.frames) as progress:
+        written = synth.write_recording(
+            recording, out, format=o["fmt"], overwrite=o["overwrite"], progress=progress
+        )
+    elapsed = time.perf_counter() - start
+    truth = recording.truth
+    rows, cols = o["size"]
+    click.echo(
+        f"wrote {recording.frames} frames ({rows} x {cols}, {o['bit_depth']}-bit"
+        f" {written.format}) to {written.frames} in {elapsed:.1f} s; {law.name} law,"
+        f" contact at frame {truth.contact_frame:g} (t0 = {truth.contact_time:.4g} s),"
+        f" radius {truth.radius[-1] / o['pixel_size']:.1f} px at the last frame;"
+        f" truth in {written.truth.name}"
+    )
