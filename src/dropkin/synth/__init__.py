@@ -41,9 +41,6 @@ from ._optics import Sensor as Sensor
 from ._optics import apply_optics as apply_optics
 from ._optics import backlight as backlight
 from ._optics import expose as expose
-from ._recording import Camera as Camera
-from ._recording import Coalescence as Coalescence
-from ._recording import Spreading as Spreading
 from ._recording import SyntheticRecording as SyntheticRecording
 from ._recording import Truth as Truth
 from ._recording import synthesize as synthesize
@@ -63,6 +60,9 @@ from ._scenes import WettedDiscScene as WettedDiscScene
 from ._scenes import bridge_fillet as bridge_fillet
 from ._scenes import cap_height as cap_height
 from ._scenes import cap_sphere as cap_sphere
+from ._setups import Camera as Camera
+from ._setups import Coalescence as Coalescence
+from ._setups import Spreading as Spreading
 from ._writing import FORMATS as FORMATS
 from ._writing import WrittenRecording as WrittenRecording
 from ._writing import experiment_toml as experiment_toml
