@@ -29,14 +29,24 @@ from __future__ import annotations
 
 import dataclasses
 import json
-import math
 import tomllib
 from dataclasses import dataclass, field
 from numbers import Real
 from pathlib import Path
 
+from ._experiment_schema import (
+    GEOMETRIES,
+    SCHEMA,
+    VIEWS,
+    Drops,
+    Fluid,
+    RecordingSettings,
+    Setup,
+    check_number,
+    convert,
+    known,
+)
 from .errors import ExperimentError
-from .units import parse_si, registry
 
 __all__ = [
     "Experiment",
@@ -56,87 +66,6 @@ __all__ = [
 ]
 
 EXPERIMENT_FILE_NAME = "experiment.toml"
-GEOMETRIES = ("coalescence", "spreading")
-VIEWS = ("side", "bottom")
-
-
-@dataclass(frozen=True)
-class RecordingSettings:
-    """How the frames were taken.
-
-    Attributes
-    ----------
-    frame_rate : float or None
-        Frames per second (Hz); None when the file must supply per-frame times.
-    pixel_size : float or None
-        Length of one pixel in the object plane (m).
-    first_frame : int
-        Index of the first frame kept (frames before it are skipped).
-    last_frame : int or None
-        Index of the last frame kept (inclusive); None keeps all to the end.
-    """
-
-    frame_rate: float | None = None
-    pixel_size: float | None = None
-    first_frame: int = 0
-    last_frame: int | None = None
-
-
-@dataclass(frozen=True)
-class Setup:
-    """What was filmed.
-
-    Attributes
-    ----------
-    geometry : str or None
-        ``"coalescence"`` or ``"spreading"``; None when not stated.
-    view : str
-        ``"side"`` or ``"bottom"``.
-    """
-
-    geometry: str | None = None
-    view: str = "side"
-
-
-@dataclass(frozen=True)
-class Fluid:
-    """Material values of a fluid, in SI units; None where not given.
-
-    Attributes
-    ----------
-    name : str or None
-        A name from the liquid library, or the user's own label.
-    glycerol_mass_fraction : float or None
-        For glycerol–water mixtures, the mass fraction of glycerol (0–1).
-    temperature : float or None
-        Temperature (K).
-    surface_tension : float or None
-        Surface tension against the surrounding medium (N/m).
-    viscosity : float or None
-        Dynamic viscosity (Pa s).
-    density : float or None
-        Density (kg/m^3).
-    """
-
-    name: str | None = None
-    glycerol_mass_fraction: float | None = None
-    temperature: float | None = None
-    surface_tension: float | None = None
-    viscosity: float | None = None
-    density: float | None = None
-
-
-@dataclass(frozen=True)
-class Drops:
-    """The drops' size.
-
-    Attributes
-    ----------
-    radius : float or None
-        Drop radius (m); None means it is to be measured from the frames.
-    """
-
-    radius: float | None = None
 
 
 @dataclass(frozen=True)
@@ -183,14 +112,14 @@ class Experiment:
             if value is None:
                 continue
             section, _, key = dotted.partition(".")
-            spec = _SCHEMA.get(section)
+            spec = SCHEMA.get(section)
             if spec is None or key not in spec[1]:
                 raise ExperimentError("unknown setting", key=dotted)
             kind = spec[1][key]
             if isinstance(value, Real) and not isinstance(value, bool) and kind[0] == "quantity":
-                value = _check_number(float(value), kind, key=dotted, path=None)
+                value = check_number(float(value), kind, key=dotted, path=None)
             else:
-                value = _convert(value, kind, key=dotted, path=None)
+                value = convert(value, kind, key=dotted, path=None)
             sections.setdefault(section, {})[key] = value
         changes = {
             name: dataclasses.replace(getattr(self, name), **values)
@@ -199,116 +128,6 @@ class Experiment:
         new = dataclasses.replace(self, **changes)
         _check_consistency(new, path=None)
         return new
-
-
-# The kind of each key: ("quantity", SI unit) for a positive value with a unit,
-# ("choice", allowed...), ("text",), ("fraction",) or ("index",).
-_SCHEMA: dict[str, tuple[type, dict[str, tuple]]] = {
-    "recording": (
-        RecordingSettings,
-        {
-            "frame_rate": ("quantity", "Hz"),
-            "pixel_size": ("quantity", "m"),
-            "first_frame": ("index",),
-            "last_frame": ("index",),
-        },
-    ),
-    "setup": (
-        Setup,
-        {"geometry": ("choice", *GEOMETRIES), "view": ("choice", *VIEWS)},
-    ),
-    "liquid": (
-        Fluid,
-        {
-            "name": ("text",),
-            "glycerol_mass_fraction": ("fraction",),
-            "temperature": ("quantity", "K"),
-            "surface_tension": ("quantity", "N/m"),
-            "viscosity": ("quantity", "Pa*s"),
-            "density": ("quantity", "kg/m^3"),
-        },
-    ),
-    "drops": (Drops, {"radius": ("quantity", "m")}),
-}
-_SCHEMA["medium"] = _SCHEMA["liquid"]
-
-
-def _known(names) -> str:
-    return ", ".join(sorted(names))
-
-
-def _check_number(value: float, kind: tuple, *, key: str, path) -> float:
-    """Check an SI magnitude: finite and strictly positive (all dropkin's are)."""
-    unit = kind[1]
-    if not math.isfinite(value):
-        raise ExperimentError("is not a finite number", key=key, value=value, path=path)
-    if value <= 0:
-        raise ExperimentError(
-            "must be positive",
-            key=key,
-            value=value,
-            path=path,
-            expected=f"a value above 0 {unit}" if unit != "K" else "a temperature above 0 K",
-        )
-    return value
-
-
-def _convert(value, kind: tuple, *, key: str, path):
-    """Turn one value of the file into its SI form, or raise naming the key."""
-    what = kind[0]
-    if what == "quantity":
-        si = parse_si(value, kind[1], key=key, path=path)
-        return _check_number(si, kind, key=key, path=path)
-    if what == "choice":
-        allowed = kind[1:]
-        if not isinstance(value, str) or value.strip().lower() not in allowed:
-            raise ExperimentError(
-                "is not a known choice",
-                key=key,
-                value=value,
-                path=path,
-                expected=" or ".join(allowed),
-            )
-        return value.strip().lower()
-    if what == "text":
-        if not isinstance(value, str) or not value.strip():
-            raise ExperimentError("must be a non-empty text", key=key, value=value, path=path)
-        return value.strip()
-    if what == "fraction":
-        if isinstance(value, str):
-            try:
-                number = registry().Quantity(value).to("dimensionless").magnitude
-            except Exception:
-                raise ExperimentError(
-                    "is not a fraction",
-                    key=key,
-                    value=value,
-                    path=path,
-                    expected="a number from 0 to 1, or a percentage such as '85 %'",
-                ) from None
-        elif isinstance(value, Real) and not isinstance(value, bool):
-            number = float(value)
-        else:
-            raise ExperimentError("is not a fraction", key=key, value=value, path=path)
-        if not (math.isfinite(number) and 0.0 <= number <= 1.0):
-            raise ExperimentError(
-                "must lie between 0 and 1",
-                key=key,
-                value=value,
-                path=path,
-                expected="a mass fraction from 0 to 1",
-            )
-        return float(number)
-    if what == "index":
-        if isinstance(value, bool) or not isinstance(value, int) or value < 0:
-            raise ExperimentError(
-                "must be a whole number of frames, 0 or more",
-                key=key,
-                value=value,
-                path=path,
-            )
-        return value
-    raise AssertionError(f"unknown kind {what!r}")  # pragma: no cover - schema bug
 
 
 def _check_consistency(exp: Experiment, *, path) -> None:
@@ -323,17 +142,17 @@ def _check_consistency(exp: Experiment, *, path) -> None:
 
 
 def _from_mapping(document: dict, *, path) -> Experiment:
-    unknown = set(document) - set(_SCHEMA)
+    unknown = set(document) - set(SCHEMA)
     if unknown:
         name = sorted(unknown)[0]
         raise ExperimentError(
             "unknown section or key",
             key=name,
             path=path,
-            expected=f"one of the sections {_known(_SCHEMA)}",
+            expected=f"one of the sections {known(SCHEMA)}",
         )
     parts: dict[str, object] = {}
-    for section, (record_type, keys) in _SCHEMA.items():
+    for section, (record_type, keys) in SCHEMA.items():
         table = document.get(section, {})
         if not isinstance(table, dict):
             raise ExperimentError(
@@ -348,10 +167,10 @@ def _from_mapping(document: dict, *, path) -> Experiment:
                     "unknown key",
                     key=f"{section}.{key}",
                     path=path,
-                    expected=f"one of {_known(keys)}",
+                    expected=f"one of {known(keys)}",
                 )
         values = {
-            key: _convert(value, keys[key], key=f"{section}.{key}", path=path)
+            key: convert(value, keys[key], key=f"{section}.{key}", path=path)
             for key, value in table.items()
         }
         if section == "medium" and "name" not in values and not table:
@@ -464,7 +283,7 @@ def experiment_to_toml(exp: Experiment, *, header: str = "") -> str:
     True
     """
     lines = [f"# {line}".rstrip() for line in header.splitlines()]
-    for section, (_, keys) in _SCHEMA.items():
+    for section, (_, keys) in SCHEMA.items():
         record = getattr(exp, section)
         default = type(record)() if section != "medium" else Fluid(name="air")
         rows = []

@@ -102,44 +102,7 @@ def parse_quantity(text, unit: str, *, key: str | None = None, path=None):
     """
     ureg = registry()
     expected = f"a value with a unit of {unit}, e.g. '1 {unit}'"
-    if isinstance(text, ureg.Quantity):
-        quantity = text
-    elif isinstance(text, bool) or isinstance(text, Real):
-        raise QuantityError(
-            "a bare number has no unit",
-            key=_where(key),
-            value=text,
-            expected=expected,
-            path=path,
-        )
-    elif not isinstance(text, str):
-        raise QuantityError(
-            f"must be a text with a unit, not {type(text).__name__}",
-            key=_where(key),
-            value=text,
-            expected=expected,
-            path=path,
-        )
-    else:
-        try:
-            quantity = ureg.Quantity(text.strip())
-        except Exception as exc:  # pint raises many kinds (tokenize, undefined unit, ...)
-            reason = str(exc).splitlines()[0] if str(exc) else type(exc).__name__
-            raise QuantityError(
-                f"cannot be read as a quantity ({reason})",
-                key=_where(key),
-                value=text,
-                expected=expected,
-                path=path,
-            ) from None
-        if not isinstance(quantity, ureg.Quantity) or quantity.dimensionless:
-            raise QuantityError(
-                "a bare number has no unit",
-                key=_where(key),
-                value=text,
-                expected=expected,
-                path=path,
-            )
+    quantity = _as_quantity(text, ureg, key=key, path=path, expected=expected)
     target = ureg.Unit(unit)
     if quantity.dimensionality != target.dimensionality:
         raise QuantityError(
@@ -155,6 +118,48 @@ def parse_quantity(text, unit: str, *, key: str | None = None, path=None):
             "is not a finite number",
             key=_where(key),
             value=str(text),
+            expected=expected,
+            path=path,
+        )
+    return quantity
+
+
+def _as_quantity(text, ureg, *, key, path, expected):
+    """`text` as a pint Quantity with a unit; a QuantityError for a bare number or bad text."""
+    if isinstance(text, ureg.Quantity):
+        return text
+    if isinstance(text, bool) or isinstance(text, Real):
+        raise QuantityError(
+            "a bare number has no unit",
+            key=_where(key),
+            value=text,
+            expected=expected,
+            path=path,
+        )
+    if not isinstance(text, str):
+        raise QuantityError(
+            f"must be a text with a unit, not {type(text).__name__}",
+            key=_where(key),
+            value=text,
+            expected=expected,
+            path=path,
+        )
+    try:
+        quantity = ureg.Quantity(text.strip())
+    except Exception as exc:  # pint raises many kinds (tokenize, undefined unit, ...)
+        reason = str(exc).splitlines()[0] if str(exc) else type(exc).__name__
+        raise QuantityError(
+            f"cannot be read as a quantity ({reason})",
+            key=_where(key),
+            value=text,
+            expected=expected,
+            path=path,
+        ) from None
+    if not isinstance(quantity, ureg.Quantity) or quantity.dimensionless:
+        raise QuantityError(
+            "a bare number has no unit",
+            key=_where(key),
+            value=text,
             expected=expected,
             path=path,
         )

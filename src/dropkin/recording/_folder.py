@@ -27,7 +27,7 @@ from ..errors import RecordingError
 from ._gray import notes_for_channels, to_gray
 from ._headers import IMAGE_SUFFIXES, FrameHeader, read_header
 from ._libtiff import libpng_errors, libtiff_errors
-from ._tiffcheck import tifffile_reports
+from ._tifferrors import tifffile_reports
 
 __all__ = ["FRAME_SUFFIXES", "ImageFolder", "open_image_folder", "natural_key"]
 

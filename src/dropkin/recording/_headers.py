@@ -18,18 +18,10 @@ import numpy as np
 from ..errors import RecordingError
 from ._limits import check_frame_size
 from ._tiff import TIFF_SUFFIXES
-from ._tiffcheck import (
-    check_claims,
-    check_data_apart,
-    check_frame_page,
-    check_tag_order,
-    decoder_for,
-    frame_layout,
-    ifd_offsets,
-    open_tifffile,
-    sample_bits,
-    tifffile_reports,
-)
+from ._tiffcheck import check_claims, check_data_apart, ifd_offsets
+from ._tifferrors import open_tifffile, tifffile_reports
+from ._tiffpage import check_frame_page, check_tag_order, decoder_for, sample_bits
+from ._tiffseries import frame_layout
 
 __all__ = ["FrameHeader", "read_header", "IMAGE_SUFFIXES"]
 

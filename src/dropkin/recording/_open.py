@@ -1,10 +1,17 @@
-"""``open_recording``: pick the reader, the frames and the time axis."""
+"""``open_recording``: pick the reader, the frames and the time axis.
+
+A folder is a folder of frames (:mod:`._folder`); a single file is opened by
+the reader its suffix names in :data:`FILE_FORMATS`. Adding a format of
+single files is one entry there plus its reader module.
+"""
 
 from __future__ import annotations
 
 import math
 import operator
 import os
+from collections.abc import Callable
+from dataclasses import dataclass
 from numbers import Real
 from pathlib import Path
 
@@ -16,10 +23,39 @@ from ._folder import FRAME_SUFFIXES, open_image_folder
 from ._tiff import TIFF_SUFFIXES, open_tiff_stack
 from ._video import VIDEO_SUFFIXES, open_video
 
-__all__ = ["open_recording", "RECORDING_SUFFIXES"]
+__all__ = ["open_recording", "RECORDING_SUFFIXES", "FILE_FORMATS", "OPENERS"]
+
+
+@dataclass(frozen=True)
+class FileFormat:
+    """A kind of recording held in one file.
+
+    Attributes
+    ----------
+    name : str
+        How messages name it ("a TIFF stack").
+    suffixes : tuple of str
+        Its file suffixes, lower case with the dot.
+    opener : callable
+        ``opener(path)`` -> the reader's frame source (see :mod:`._base`).
+    """
+
+    name: str
+    suffixes: tuple[str, ...]
+    opener: Callable[[Path], object]
+
+
+#: The kinds of single-file recordings, in the order messages list them.
+FILE_FORMATS = (
+    FileFormat("a TIFF stack", TIFF_SUFFIXES, open_tiff_stack),
+    FileFormat("a video", VIDEO_SUFFIXES, open_video),
+)
+
+#: Suffix (lower case) → the reader that opens a file with it.
+OPENERS = {suffix: form.opener for form in FILE_FORMATS for suffix in form.suffixes}
 
 #: Suffixes of the single files that are recordings (TIFF stacks and videos).
-RECORDING_SUFFIXES = TIFF_SUFFIXES + VIDEO_SUFFIXES
+RECORDING_SUFFIXES = tuple(OPENERS)
 
 NO_FRAME_RATE = "no frame rate: give recording.frame_rate in the experiment file or --frame-rate"
 
@@ -80,22 +116,15 @@ def _open_source(path: Path):
     if path.is_dir():
         return open_image_folder(path)
     suffix = path.suffix.lower()
-    if suffix in TIFF_SUFFIXES:
-        return open_tiff_stack(path)
-    if suffix in VIDEO_SUFFIXES:
-        return open_video(path)
+    opener = OPENERS.get(suffix)
+    if opener is not None:
+        return opener(path)
+    kinds = [f"a folder of frames ({', '.join(FRAME_SUFFIXES)})"]
+    kinds += [f"{form.name} ({', '.join(form.suffixes)})" for form in FILE_FORMATS]
     raise RecordingError(
         f"is not a supported recording (suffix {suffix or 'none'!r})",
         path=path,
-        expected=(
-            "a folder of frames ("
-            + ", ".join(FRAME_SUFFIXES)
-            + "), a TIFF stack ("
-            + ", ".join(TIFF_SUFFIXES)
-            + ") or a video ("
-            + ", ".join(VIDEO_SUFFIXES)
-            + ")"
-        ),
+        expected=", ".join(kinds[:-1]) + " or " + kinds[-1],
     )
 
 

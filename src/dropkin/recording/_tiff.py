@@ -15,12 +15,14 @@ Three ways to read, chosen at open time:
   imagecodecs package (LZW, JPEG): OpenCV's libtiff reads the page instead.
 
 The whole file is never read into memory. At open time the structure is
-checked from the tags alone (:mod:`._tiffcheck`): what tifffile logs or raises
-about a damaged file, pixel data beyond the end of the file or over a tag
-directory, byte counts that do not match the frame, pages that differ from the
-first, frames too large to decode (:mod:`._limits`). Any of these is one
-:class:`~dropkin.errors.RecordingError` naming the file (and frame); decoding
-then uses exactly the offsets that were checked.
+checked from the tags alone: what tifffile logs or raises about a damaged
+file (:mod:`._tifferrors`), which series are the frames (:mod:`._tiffseries`),
+pixel data beyond the end of the file, byte counts that do not match the
+frame (:mod:`._tiffpage`), pages that differ from the first or data over a
+tag directory (:mod:`._tiffcheck`), frames too large to decode
+(:mod:`._limits`). Any of these is one :class:`~dropkin.errors.RecordingError`
+naming the file (and frame); decoding then uses exactly the offsets that were
+checked.
 """
 
 from __future__ import annotations
@@ -41,17 +43,20 @@ from ._tiffcheck import (
     check_claims,
     check_contiguous_frames,
     check_data_apart,
-    check_frame_page,
     check_pages_alike,
+    ifd_offsets,
+)
+from ._tifferrors import open_tifffile, tifffile_reports
+from ._tiffpage import (
+    check_frame_page,
     check_tag_order,
     code_name,
     decoder_for,
-    frame_layout,
-    ifd_offsets,
-    open_tifffile,
+    full_page,
+    max_sample_value,
     sample_bits,
-    tifffile_reports,
 )
+from ._tiffseries import choose_frames, frame_layout
 from ._tifftime import timing_from_imagej, timing_from_ome
 
 __all__ = ["TIFF_SUFFIXES", "TiffStack", "open_tiff_stack"]
@@ -86,7 +91,7 @@ class TiffStack:
         key = series.keyframe
         dtype = np.dtype(series.dtype)
         notes: list[str] = []
-        pages = self._choose_mode(tif, series, frame_axes, frame_shape, n, notes)
+        self._mode, pages = choose_frames(tif, series, frame_axes, frame_shape, n, notes, path)
         if pages is not None:
             n = len(pages)
         if n == 0:
@@ -103,7 +108,7 @@ class TiffStack:
         self.bit_depth = min(bits, 8 * dtype.itemsize) if bits > 0 else 8
         # MaxSampleValue (TIFF 6.0 tag 281) tells a 12-bit camera's 4095 in
         # 16-bit words; it describes the data, it is never used to rescale.
-        top = _max_sample_value(key)
+        top = max_sample_value(key)
         if top is not None and dtype.kind == "u" and 0 < top < (1 << self.bit_depth) - 1:
             self.bit_depth = max(top.bit_length(), 1)
         if self._mode == "raw":
@@ -121,7 +126,7 @@ class TiffStack:
             check_contiguous_frames(tif, series, n, self._offset, self._frame_bytes, path)
         else:
             if decoder == "opencv":  # libtiff reads every page's own tags: check them all
-                pages = [_full_page(tif, page) for page in pages]
+                pages = [full_page(tif, page) for page in pages]
                 for k, page in enumerate(pages):
                     check_tag_order(page, path, k)
             check_pages_alike(pages, key, path)
@@ -149,56 +154,6 @@ class TiffStack:
         self.timing: FileTiming | None = timing
         self.timing_notes = timing_notes  # timing found but not trusted, and why
         self.notes = (*notes, *timing_notes)
-
-    def _choose_mode(self, tif, series, frame_axes, frame_shape, n: int, notes: list[str]):
-        """Set ``self._mode``; return the pages that are the frames (None for "raw")."""
-        path = self.path
-        everything = tif.series
-        same = [
-            s
-            for s in everything
-            if s.axes == series.axes and s.shape == series.shape and len(s) == 1
-        ]
-        if not frame_axes and len(everything) > 1 and len(same) == len(everything):
-            self._mode = "pages"  # pages written one by one: each its own series
-            return [s[0] for s in everything]
-        alike = [s for s in everything if _frames_of(s, path) == _frames_of(series, path)]
-        if len(alike) > 1:
-            counts = ", ".join(str(math.prod(s.shape[: -len(frame_shape)])) for s in alike)
-            rows, cols = frame_shape[:2]
-            raise RecordingError(
-                f"holds {len(alike)} image series of {rows} x {cols} {series.dtype} frames "
-                f"({counts} frames); cannot tell which one is the recording",
-                path=path,
-            )
-        others = everything[1:]
-        if any(not _is_preview(s) for s in others):
-            sizes = ", ".join(
-                " x ".join(map(str, s.shape)) + f" {s.dtype}" for s in everything[:4]
-            )
-            raise RecordingError(
-                f"holds {len(everything)} images of different sizes ({sizes}); "
-                "expected one stack of frames",
-                path=path,
-            )
-        if others:
-            notes.append(f"{len(others)} reduced-resolution preview image(s) were not read")
-        key = series.keyframe
-        if (
-            series.dataoffset is not None
-            and key.is_final
-            and sample_bits(key, path) == 8 * np.dtype(series.dtype).itemsize
-        ):
-            self._mode = "raw"
-            return None
-        if len(series) == n:
-            self._mode = "pages"
-            return list(series)
-        raise RecordingError(
-            f"stores {n} frames in {len(series)} compressed pages; "
-            "only one frame per page can be streamed",
-            path=path,
-        )
 
     def __len__(self) -> int:
         return self._n
@@ -368,41 +323,6 @@ class TiffStack:
         state = dict(self.__dict__)
         state["_file"] = state["_tif"] = None
         return state
-
-
-def _frames_of(series, path):
-    """(frame shape, dtype) of a series, or None when it is not made of frames."""
-    try:
-        return frame_layout(series, path)[1], np.dtype(series.dtype)
-    except RecordingError:
-        return None
-
-
-def _is_preview(series) -> bool:
-    """Whether a series is a reduced-resolution image (NewSubfileType bit 0, TIFF 6.0)."""
-    try:
-        return bool(series.keyframe.is_reduced)
-    except AttributeError:
-        return False
-
-
-def _full_page(tif, page):
-    """`page` with all its tags parsed (a TiffPage), also when tifffile gave a TiffFrame."""
-    if not isinstance(page, tifffile.TiffFrame):
-        return page
-    tif.filehandle.seek(page.offset)
-    return tifffile.TiffPage(tif, index=page.index)
-
-
-def _max_sample_value(page) -> int | None:
-    """The MaxSampleValue tag (281) as an int, or None when absent or not a number."""
-    tag = page.tags.get(281)
-    if tag is None:
-        return None
-    values = np.ravel(np.asarray(tag.value, dtype=object))
-    if not len(values) or not all(isinstance(v, (int, np.integer)) for v in values):
-        return None
-    return int(max(values))
 
 
 def open_tiff_stack(path: Path) -> TiffStack:

@@ -229,61 +229,68 @@ def write_recording(
     -------
     written : WrittenRecording
     """
-    import cv2
-    import tifffile
-
     out = Path(out)
     fmt = _resolve(out, format)
-    total = recording.frames
     if fmt == "png":
-        if out.exists() and not out.is_dir():
-            raise ExperimentError("exists and is not a folder", path=out)
-        if not overwrite and out.is_dir() and any(out.glob("frame_*.png")):
-            raise ExperimentError(
-                "already holds frames", path=out, expected="an empty or new folder, or --overwrite"
-            )
-        out.mkdir(parents=True, exist_ok=True)
-        for stale in out.glob("frame_*.png") if overwrite else ():
-            stale.unlink()
-        for index, frame in enumerate(recording.iter_frames()):
-            path = out / f"frame_{index:05d}.png"
-            with atomic_path(path) as tmp:
-                if not cv2.imwrite(
-                    str(tmp), frame, [cv2.IMWRITE_PNG_COMPRESSION, png_compression]
-                ):
-                    raise OSError(f"cannot write {path}")
-            if progress is not None:
-                progress(index + 1, total)
-        experiment, truth = out / "experiment.toml", out / "truth.json"
+        experiment, truth = _write_png_frames(recording, out, overwrite, png_compression, progress)
     else:
-        if out.exists() and not overwrite:
-            raise ExperimentError(
-                "already exists", path=out, expected="a new file, or --overwrite"
-            )
-        out.parent.mkdir(parents=True, exist_ok=True)
-
-        def pages():
-            for index, frame in enumerate(recording.iter_frames()):
-                yield frame
-                if progress is not None:
-                    progress(index + 1, total)
-
-        # One series of K pages (K, M, N), written page by page from the iterator;
-        # the baseline tag MaxSampleValue (281) records 255 or 4095.
-        max_sample = (281, "H", 1, recording.sensor.max_count, True)
-        with atomic_path(out) as tmp:
-            tifffile.imwrite(
-                tmp,
-                pages(),
-                shape=(total, *recording.camera.shape),
-                dtype=recording.sensor.dtype,
-                photometric="minisblack",
-                compression="zlib",
-                predictor=True,
-                extratags=[max_sample],
-            )
-        experiment = out.with_suffix(".toml")
-        truth = out.with_name(out.stem + ".truth.json")
+        experiment, truth = _write_tiff_stack(recording, out, overwrite, progress)
     write_text_atomic(experiment, experiment_toml(recording))
     write_text_atomic(truth, json.dumps(truth_record(recording), indent=1) + "\n")
     return WrittenRecording(frames=out, experiment=experiment, truth=truth, format=fmt)
+
+
+def _write_png_frames(recording, out: Path, overwrite, png_compression, progress):
+    """One PNG per frame in the folder `out`; (experiment path, truth path) beside them."""
+    import cv2
+
+    total = recording.frames
+    if out.exists() and not out.is_dir():
+        raise ExperimentError("exists and is not a folder", path=out)
+    if not overwrite and out.is_dir() and any(out.glob("frame_*.png")):
+        raise ExperimentError(
+            "already holds frames", path=out, expected="an empty or new folder, or --overwrite"
+        )
+    out.mkdir(parents=True, exist_ok=True)
+    for stale in out.glob("frame_*.png") if overwrite else ():
+        stale.unlink()
+    for index, frame in enumerate(recording.iter_frames()):
+        path = out / f"frame_{index:05d}.png"
+        with atomic_path(path) as tmp:
+            if not cv2.imwrite(str(tmp), frame, [cv2.IMWRITE_PNG_COMPRESSION, png_compression]):
+                raise OSError(f"cannot write {path}")
+        if progress is not None:
+            progress(index + 1, total)
+    return out / "experiment.toml", out / "truth.json"
+
+
+def _write_tiff_stack(recording, out: Path, overwrite, progress):
+    """One multi-page TIFF file `out`; (experiment path, truth path) beside it."""
+    import tifffile
+
+    total = recording.frames
+    if out.exists() and not overwrite:
+        raise ExperimentError("already exists", path=out, expected="a new file, or --overwrite")
+    out.parent.mkdir(parents=True, exist_ok=True)
+
+    def pages():
+        for index, frame in enumerate(recording.iter_frames()):
+            yield frame
+            if progress is not None:
+                progress(index + 1, total)
+
+    # One series of K pages (K, M, N), written page by page from the iterator;
+    # the baseline tag MaxSampleValue (281) records 255 or 4095.
+    max_sample = (281, "H", 1, recording.sensor.max_count, True)
+    with atomic_path(out) as tmp:
+        tifffile.imwrite(
+            tmp,
+            pages(),
+            shape=(total, *recording.camera.shape),
+            dtype=recording.sensor.dtype,
+            photometric="minisblack",
+            compression="zlib",
+            predictor=True,
+            extratags=[max_sample],
+        )
+    return out.with_suffix(".toml"), out.with_name(out.stem + ".truth.json")

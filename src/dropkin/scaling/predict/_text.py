@@ -10,7 +10,7 @@ from __future__ import annotations
 
 import math
 
-from ._predict import Prediction, RegimeWindow
+from ._records import Prediction, RegimeWindow
 
 __all__ = ["format_prediction", "prediction_to_dict"]
 
@@ -172,8 +172,21 @@ def _law_text(w: RegimeWindow) -> str:
 
 def format_prediction(prediction: Prediction) -> str:
     """The prediction as a few aligned tables of text."""
-    p, n = prediction, prediction.numbers
-    lines = [
+    p = prediction
+    lines = _sample_lines(p) + ["", "Regimes"] + _regime_lines(p)
+    lines += ["", "Crossovers"] + _crossover_lines(p)
+    lines += [""] + _plan_lines(p)
+    lines += ["", "Dimensional analysis (exponents solved from [M, L, T]; C = 1)"]
+    lines += _dimensional_lines(p)
+    if p.notes:
+        lines += ["", "Notes"] + [f"  {note}" for note in p.notes]
+    return "\n".join(lines)
+
+
+def _sample_lines(p: Prediction) -> list[str]:
+    """The sample's values and its dimensionless numbers, two lines."""
+    n = p.numbers
+    return [
         f"Sample: {p.geometry}, {p.view} view; R = {_eng(n.radius, 'm')}, "
         f"γ = {_eng(n.surface_tension, 'N/m')}, η = {_eng(n.viscosity, 'Pa s')}, "
         f"ρ = {n.density:.4g} kg/m³"
@@ -188,9 +201,11 @@ def format_prediction(prediction: Prediction) -> str:
         + (f", η/η_o = {n.viscosity_ratio:.3g}" if n.viscosity_ratio is not None else "")
         + f", ℓ_c = {_eng(n.capillary_length, 'm')}, τ_v = {_eng(n.viscous_time, 's')}, "
         f"τ_i = {_eng(n.inertial_time, 's')}, l_ν = {_eng(n.viscous_length, 'm')}",
-        "",
-        "Regimes",
     ]
+
+
+def _regime_lines(p: Prediction) -> list[str]:
+    """The table of candidate regimes, then why each is plausible or not."""
     rows = [("regime", "n", "law", "expected", "window (since contact)", "r range", "C status")]
     for w in p.windows:
         rows.append(
@@ -207,47 +222,37 @@ def format_prediction(prediction: Prediction) -> str:
             )
         )
     widths = [max(len(row[i]) for row in rows) for i in range(len(rows[0]))]
-    lines += [
+    lines = [
         "  " + "  ".join(c.ljust(wd) for c, wd in zip(row, widths, strict=True)).rstrip()
         for row in rows
     ]
     lines.append("  why:")
     lines += [f"    {w.key}: {w.reason}" for w in p.windows if w.reason]
-    lines += ["", "Crossovers"]
+    return lines
+
+
+def _crossover_lines(p: Prediction) -> list[str]:
+    lines = []
     for c in p.crossovers:
         mark = "" if c.reached else "  (not reached: r_c ≥ R)"
         lines.append(
             f"  {c.early} → {c.late}: t ≈ {_eng(c.time, 's')}, r ≈ {_eng(c.radius, 'm')}"
             f"  [{c.formula}; {c.status}; {c.note}]{mark}"
         )
+    return lines
+
+
+def _plan_lines(p: Prediction) -> list[str]:
+    """The recording plan: what each expected regime needs, then the plan that covers them."""
     plan = p.plan
-    lines += [
-        "",
+    lines = [
         (
             f"Recording plan (≥ {plan.decades:g} decade(s) and ≥ {plan.frames_per_decade} "
             f"frames inside each expected regime; r ≥ {plan.pixels_per_radius:g} px at its "
             "start — rule of thumb, docs/physics.md §4.4, M)"
         ),
     ]
-    for w in p.windows:
-        if not w.expected:
-            continue
-        if w.frame_rate is None:
-            lines.append(f"  {w.key}: {w.note}")
-            continue
-        reach = "" if w.reachable else "  OUT OF REACH for optical high-speed imaging"
-        have = []
-        if w.frames_in_fit is not None:
-            short = " (too few)" if w.frames_in_fit < plan.frames_per_decade else ""
-            have.append(f"{w.frames_in_fit:.3g} frames{short}")
-        if w.pixels_at_fit_start is not None:
-            small = " (too coarse)" if w.pixels_at_fit_start < plan.pixels_per_radius else ""
-            have.append(f"{w.pixels_at_fit_start:.3g} px across r at the start{small}")
-        have = "; your recording: " + ", ".join(have) if have else ""
-        lines.append(
-            f"  {w.key}: record {_eng(w.fit_start, 's')} – {_eng(w.fit_end, 's')} → "
-            f"≥ {_eng(w.frame_rate, 'fps')}, pixel ≤ {_eng(w.pixel_size, 'm')}{have}{reach}"
-        )
+    lines += [_need_line(w, plan) for w in p.windows if w.expected]
     if plan.frame_rate is not None:
         lines.append(
             f"  plan: ≥ {_eng(plan.frame_rate, 'fps')}, pixel ≤ {_eng(plan.pixel_size, 'm')}, "
@@ -268,12 +273,31 @@ def format_prediction(prediction: Prediction) -> str:
             f"  smallest radius worth measuring at {basis}: {_eng(plan.smallest_radius, 'm')} "
             f"(10 px; 5 px: {_eng(plan.smallest_radius_lenient, 'm')})"
         )
+    return lines
+
+
+def _need_line(w: RegimeWindow, plan) -> str:
+    """What recording one expected regime needs, and what the user's recording gives."""
+    if w.frame_rate is None:
+        return f"  {w.key}: {w.note}"
+    reach = "" if w.reachable else "  OUT OF REACH for optical high-speed imaging"
+    have = []
+    if w.frames_in_fit is not None:
+        short = " (too few)" if w.frames_in_fit < plan.frames_per_decade else ""
+        have.append(f"{w.frames_in_fit:.3g} frames{short}")
+    if w.pixels_at_fit_start is not None:
+        small = " (too coarse)" if w.pixels_at_fit_start < plan.pixels_per_radius else ""
+        have.append(f"{w.pixels_at_fit_start:.3g} px across r at the start{small}")
+    have = "; your recording: " + ", ".join(have) if have else ""
+    return (
+        f"  {w.key}: record {_eng(w.fit_start, 's')} – {_eng(w.fit_end, 's')} → "
+        f"≥ {_eng(w.frame_rate, 'fps')}, pixel ≤ {_eng(w.pixel_size, 'm')}{have}{reach}"
+    )
+
+
+def _dimensional_lines(p: Prediction) -> list[str]:
     matched = [law for law in p.dimensional if law.matches]
     others = len(p.dimensional) - len(matched)
-    lines += ["", "Dimensional analysis (exponents solved from [M, L, T]; C = 1)"]
-    for law in matched:
-        lines.append(f"  {', '.join(law.matches)}: {law.formula}")
+    lines = [f"  {', '.join(law.matches)}: {law.formula}" for law in matched]
     lines.append(f"  {others} further combination(s) without a catalogue entry (see --json)")
-    if p.notes:
-        lines += ["", "Notes"] + [f"  {note}" for note in p.notes]
-    return "\n".join(lines)
+    return lines

@@ -14,12 +14,22 @@ from __future__ import annotations
 from collections.abc import Callable, Mapping
 from dataclasses import dataclass, field
 from fractions import Fraction
+from types import MappingProxyType
 
 from ...errors import ExperimentError
 from ...fitting._laws import power_law, viscous_log_law
 from ._numbers import SampleNumbers
 
-__all__ = ["Regime", "Candidate"]
+__all__ = ["Regime", "Candidate", "SCALING_GEOMETRIES", "powers"]
+
+#: Geometries the catalogue knows. ``sessile-coalescence`` is coalescence of
+#: drops sitting on a substrate; ``coalescence`` means free (or pendant) drops.
+SCALING_GEOMETRIES = ("coalescence", "sessile-coalescence", "spreading")
+
+
+def powers(**exponents: str) -> Mapping[str, Fraction]:
+    """A group's powers as a read-only mapping of exact fractions (``powers(radius="1/4")``)."""
+    return MappingProxyType({name: Fraction(p) for name, p in exponents.items()})
 
 
 @dataclass(frozen=True)

@@ -1,0 +1,159 @@
+"""When each regime should govern a sample: the time spans behind the predicted windows.
+
+A regime governs from its crossover with the earlier regime (or from
+contact) until its law reaches a fraction of the drop radius, or until the
+next regime takes over; the crossovers come from matching the laws
+(docs/physics.md §3) with the catalogue's O(1) prefactors, so the spans are
+estimates to a factor of a few.
+"""
+
+from __future__ import annotations
+
+import math
+
+from ..regimes._catalogue import regime
+from ..regimes._matching import power_law_crossing, tanner_gravity_crossover
+from ..regimes._numbers import SampleNumbers
+from ..regimes._regime import Regime
+
+__all__ = ["THIN_CAP_FACTOR", "regime_power", "time_at", "governing_spans"]
+
+#: Tanner's thin-cap law needs a small angle: a cap of the drop's volume has
+#: θ ≤ 0.5 rad once R_c ≥ (32/3)^(1/3) R ≈ 2.2 R (V = πθR_c³/4; derived, D).
+THIN_CAP_FACTOR = (32.0 / 3.0) ** (1.0 / 3.0)
+
+#: {regime key: (start, end, note)}, times since contact (s).
+Spans = dict[str, tuple[float, float, str]]
+
+
+def regime_power(entry: Regime, numbers, prefactors):
+    """(C, placeholder?, dimensional prefactor, exponent) or None without a group."""
+    group = entry.group(numbers)
+    if group is None:
+        return None
+    c = prefactors.get(entry.key, entry.prefactor)
+    placeholder = c is None
+    c = 1.0 if c is None else float(c)
+    return c, placeholder, c * group, float(entry.exponent)
+
+
+def time_at(a, n, r):
+    """Time at which ``a t**n`` reaches r."""
+    return (r / a) ** (1.0 / n)
+
+
+def governing_spans(numbers: SampleNumbers, geometry, plausible, prefactors, end_fraction):
+    """{key: (start, end, note)} for the regimes expected to govern some time."""
+    r_end = end_fraction * numbers.radius
+    c_v = prefactors.get(
+        "inertially-limited-viscous", regime("inertially-limited-viscous").prefactor
+    )
+    # c_v: C_v of the viscous side of the matchings, C_v (γ/η) t.
+    if geometry == "coalescence":
+        return _coalescence_spans(numbers, plausible, prefactors, r_end, c_v)
+    if geometry == "sessile-coalescence":
+        return _sessile_spans(numbers, plausible, prefactors, r_end)
+    return _spreading_spans(numbers, plausible, prefactors, r_end, c_v)
+
+
+def _els_end(n: SampleNumbers) -> float:
+    """Where the ELS log law -x ln x peaks: r = R/(e π)."""
+    return n.viscous_time / math.e
+
+
+def _coalescence_spans(n: SampleNumbers, plausible, prefactors, r_end, c_v) -> Spans:
+    """Free drops: the viscous stage, then the first plausible late regime."""
+    spans: Spans = {}
+    late = next((k for k in ("viscous-outer", "inertial-outer", "inertial") if plausible[k]), None)
+    t_c = math.inf
+    if late is not None:
+        _, _, a, k = regime_power(regime(late), n, prefactors)
+        t_c, _ = power_law_crossing(c_v * n.capillary_speed, 1.0, a, k)
+        t_end = time_at(a, k, r_end)
+        if t_c < t_end:
+            spans[late] = (t_c, t_end, "after the viscous stage")
+        else:
+            t_c = math.inf
+    linear_end = min(t_c, r_end / (c_v * n.capillary_speed))
+    spans["inertially-limited-viscous"] = (
+        0.0,
+        linear_end,
+        "the crossover to the ELS log law is not predicted (docs/physics.md gives no formula)",
+    )
+    for key in ("viscous", "viscous-equal-outer"):
+        if plausible.get(key):
+            spans[key] = (0.0, min(t_c, _els_end(n)), "shares its start with the ILV stage")
+    return spans
+
+
+def _sessile_spans(n: SampleNumbers, plausible, prefactors, r_end) -> Spans:
+    """Sessile drops: the viscous bridge, then the inertial regimes."""
+    spans: Spans = {}
+    early = None
+    if plausible["viscous-sessile"]:
+        early = regime_power(regime("viscous-sessile"), n, prefactors)
+    early_end = math.inf
+    for key in ("inertial-sessile", "inertial"):
+        if not plausible.get(key):
+            continue
+        _, _, a, k = regime_power(regime(key), n, prefactors)
+        start = 0.0 if early is None else power_law_crossing(early[2], 1.0, a, k)[0]
+        end = time_at(a, k, r_end)
+        if start < end:
+            spans[key] = (start, end, "")
+            early_end = min(early_end, start)
+    if early is not None:
+        spans["viscous-sessile"] = (0.0, min(early_end, r_end / early[2]), "")
+    return spans
+
+
+def _spreading_spans(n: SampleNumbers, plausible, prefactors, r_end, c_v) -> Spans:
+    """One spreading drop: viscous or inertial first, then Tanner, then gravity."""
+    spans: Spans = {}
+
+    def power(key):
+        return regime_power(regime(key), n, prefactors)
+
+    inertial = power("inertial-spreading")
+    tanner = power("tanner")
+    t_tg, _ = tanner_gravity_crossover(
+        surface_tension=n.surface_tension,
+        viscosity=n.viscosity,
+        density=n.density,
+        volume=n.volume,
+        outer_density=n.outer_density or 0.0,
+        gravity=n.gravity,
+        tanner_prefactor=tanner[0],
+        gravity_prefactor=power("gravity-spreading")[0],
+    )
+    t_vi = math.inf
+    if plausible["inertial-spreading"]:
+        _, _, a, k = inertial
+        start = 0.0
+        if plausible["viscous-spreading"]:
+            start = power_law_crossing(c_v * n.capillary_speed, 1.0, a, k)[0]
+        end = min(time_at(a, k, r_end), power_law_crossing(a, k, tanner[2], tanner[3])[0])
+        if start < end:
+            spans["inertial-spreading"] = (start, end, "lasts about τ_i (Biance et al.)")
+            t_vi = start
+    if plausible["viscous-spreading"]:
+        spans["viscous-spreading"] = (0.0, min(t_vi, _els_end(n)), "")
+    if plausible["hertz-like-spreading"]:
+        _, _, a, k = power("hertz-like-spreading")
+        spans["hertz-like-spreading"] = (
+            0.0,
+            time_at(a, k, r_end),
+            "an alternative to viscous-spreading for very viscous drops: fit both",
+        )
+    thin = THIN_CAP_FACTOR * n.radius
+    tanner_start = time_at(tanner[2], tanner[3], thin)
+    if plausible["tanner"] and tanner_start < t_tg:
+        spans["tanner"] = (tanner_start, t_tg, "from R_c ≈ 2.2 R (thin cap) to R_c ~ ℓ_c")
+    _, _, a_g, k_g = power("gravity-spreading")
+    g_start = max(t_tg, time_at(a_g, k_g, thin))
+    spans["gravity-spreading"] = (
+        g_start,
+        10.0 * g_start,
+        "no natural end (arrest at θ_eq when wetting is partial): one decade planned",
+    )
+    return spans

@@ -1,0 +1,154 @@
+"""Coalescence laws of the catalogue: free drops, drops in an outer fluid (docs/physics.md §2 A).
+
+Each record follows :class:`~dropkin.scaling.regimes._regime.Regime`; the
+catalogue (:mod:`._catalogue`) puts these first, in this order.
+"""
+
+from __future__ import annotations
+
+import math
+from fractions import Fraction
+
+from . import _conditions as _c
+from ._conditions import OH_OUTER_CROSSOVER, OH_VISCOUS
+from ._regime import Regime, powers
+
+__all__ = ["COALESCENCE_LAWS"]
+
+_COALESCENCE = ("coalescence",)
+_SIDE = ("side",)
+_ELS = "Eggers, Lister & Stone, J. Fluid Mech. 401, 293 (1999); Hopper, JFM 213, 349 (1990)"
+
+#: A1–A4: the neck between two drops, seen from the side.
+COALESCENCE_LAWS: tuple[Regime, ...] = (
+    Regime(
+        key="viscous",
+        code="A1",
+        name="viscous (Stokes) coalescence, ELS",
+        geometries=_COALESCENCE,
+        setting="free drops",
+        observable="neck radius",
+        views=_SIDE,
+        exponent=Fraction("1"),
+        logarithmic=True,
+        group_powers=powers(surface_tension="1", viscosity="-1"),
+        group_formula="γ/η",
+        prefactor=1.0 / math.pi,
+        prefactor_range=None,
+        prefactor_status="V",
+        normalisation="R is the drop radius (in the logarithm)",
+        conditions=f"Oh ≥ {OH_VISCOUS}, outer fluid inviscid (η/η_o ≥ 10), r ≪ R",
+        reference=_ELS,
+        status="V",
+        note="a pure power-law fit of this law returns n ≈ 0.8–0.9",
+        condition=_c.viscous,
+    ),
+    Regime(
+        key="viscous-equal-outer",
+        code="A1",
+        name="viscous coalescence in an outer fluid of equal viscosity, ELS",
+        geometries=_COALESCENCE,
+        setting="outer fluid",
+        observable="neck radius",
+        views=_SIDE,
+        exponent=Fraction("1"),
+        logarithmic=True,
+        group_powers=powers(surface_tension="1", viscosity="-1"),
+        group_formula="γ/η",
+        prefactor=1.0 / (4.0 * math.pi),
+        prefactor_range=None,
+        prefactor_status="V",
+        normalisation="R is the drop radius (in the logarithm)",
+        conditions="outer viscosity comparable: 0.1 ≤ η/η_o ≤ 10; r ≪ R",
+        reference=_ELS + " (a toroidal bubble of outer fluid forms)",
+        status="V",
+        condition=_c.viscous_equal_outer,
+    ),
+    Regime(
+        key="inertially-limited-viscous",
+        code="A2",
+        name="inertially limited viscous (ILV) coalescence",
+        geometries=_COALESCENCE,
+        setting="free drops",
+        observable="neck radius",
+        views=_SIDE,
+        exponent=Fraction("1"),
+        logarithmic=False,
+        group_powers=powers(surface_tension="1", viscosity="-1"),
+        group_formula="γ/η",
+        prefactor=1.0,
+        prefactor_range=None,
+        prefactor_status="M",
+        normalisation="none (no length in the group)",
+        conditions="the earliest dynamics for all viscosities; until r ~ Oh R (low Oh)",
+        reference="Paulsen et al., PNAS 109, 6857 (2012); Aarts et al., PRL 95, 164503 (2005)",
+        status="M",
+        note="C is O(1) and not verified here: fit it",
+        condition=_c.always_first,
+    ),
+    Regime(
+        key="inertial",
+        code="A3",
+        name="inertial coalescence (inviscid limit)",
+        geometries=("coalescence", "sessile-coalescence"),
+        setting="free drops",
+        observable="neck radius",
+        views=_SIDE,
+        exponent=Fraction("1/2"),
+        logarithmic=False,
+        group_powers=powers(surface_tension="1/4", radius="1/4", density="-1/4"),
+        group_formula="(γR/ρ)^(1/4)",
+        prefactor=1.2,
+        prefactor_range=(1.0, 1.7),
+        prefactor_status="M",
+        normalisation="R is the drop radius (papers using diameter or tip radius differ)",
+        conditions="Oh < 1 (r_c ~ Oh R < R), outer fluid negligible, r ≪ R",
+        reference="Duchemin, Eggers & Josserand, JFM 487, 167 (2003); Aarts et al. 2005; "
+        "Thoroddsen et al. 2005",
+        status="V",
+        note="same n as viscous-outer, inertial-outer, inertial-spreading: rank on C",
+        condition=_c.inertial_free_or_right_angle,
+    ),
+    Regime(
+        key="viscous-outer",
+        code="A4v",
+        name="coalescence governed by the outer fluid's viscosity",
+        geometries=_COALESCENCE,
+        setting="outer fluid",
+        observable="neck radius",
+        views=_SIDE,
+        exponent=Fraction("1/2"),
+        logarithmic=False,
+        group_powers=powers(surface_tension="1/2", radius="1/2", outer_viscosity="-1/2"),
+        group_formula="(γR/η_o)^(1/2)",
+        prefactor=1.2,
+        prefactor_range=None,
+        prefactor_status="V",
+        normalisation="R (A in the paper) is the drop radius",
+        conditions=f"Oh_out ≥ {OH_OUTER_CROSSOVER}; after the inner viscous stage",
+        reference="Nat. Commun. 5, 3182 (2014), Fig. 2 (explicit form reconstructed, D)",
+        status="D",
+        condition=_c.viscous_outer,
+    ),
+    Regime(
+        key="inertial-outer",
+        code="A4i",
+        name="coalescence governed by the outer fluid's inertia (bubbles)",
+        geometries=_COALESCENCE,
+        setting="outer fluid",
+        observable="neck radius",
+        views=_SIDE,
+        exponent=Fraction("1/2"),
+        logarithmic=False,
+        group_powers=powers(surface_tension="1/4", radius="1/4", outer_density="-1/4"),
+        group_formula="(γR/ρ_o)^(1/4)",
+        prefactor=1.4,
+        prefactor_range=None,
+        prefactor_status="V",
+        normalisation="R (A in the paper) is the drop or bubble radius",
+        conditions=f"Oh_out < {OH_OUTER_CROSSOVER} and ρ_o/ρ ≥ 0.1",
+        reference="Nat. Commun. 5, 3182 (2014), Fig. 2 (explicit form reconstructed, D)",
+        status="D",
+        condition=_c.inertial_outer,
+    ),
+)
