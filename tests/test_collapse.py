@@ -8,7 +8,7 @@ import warnings
 import numpy as np
 import pytest
 
-from dropkin.campaign._collapse import pool_log_prefactors
+from dropkin.campaign._pooling import pool_log_prefactors
 from dropkin.errors import DropkinError
 
 meta = pytest.importorskip("statsmodels.stats.meta_analysis")

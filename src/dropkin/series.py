@@ -1,6 +1,10 @@
 """The radius series: one number per frame, and its files (``radius.csv``, ``measure.json``).
 
-The CSV columns are a contract (see the design notes), in this order:
+:class:`RadiusSeries` travels from measuring to the fit and the report. On disk
+it is its columns (:func:`series_to_csv`) and the rest (:func:`series_to_dict`);
+:func:`series_from_dict` builds it back from the two, :func:`read_series` reads them.
+
+The CSV columns are a contract (docs/architecture.md), in this order:
 ``frame, time_s, since_contact_s, radius_m, radius_err_m, status``. Times
 count from the first frame; ``since_contact_s`` is empty before contact (and
 everywhere when the contact instant is unknown); ``radius_m`` and
@@ -13,6 +17,7 @@ import csv
 import io
 import json
 import math
+from collections.abc import Mapping
 from dataclasses import dataclass, field
 from pathlib import Path
 
@@ -26,10 +31,12 @@ __all__ = [
     "STATUSES",
     "CSV_COLUMNS",
     "RadiusSeries",
+    "series_to_dict",
+    "series_from_dict",
+    "series_to_csv",
     "write_series",
     "read_radius_csv",
-    "series_to_csv",
-    "series_summary",
+    "read_series",
 ]
 
 CSV_COLUMNS = ("frame", "time_s", "since_contact_s", "radius_m", "radius_err_m", "status")
@@ -59,12 +66,12 @@ class RadiusSeries:
         Its standard uncertainty (s).
     drop_radius : float or None
         Drop radius (m), given or measured.
-    geometry, view : str
-        As in the experiment file.
+    geometry, view : str or None
+        As in the experiment file (None for a ``radius.csv`` read alone).
     frame_rate : float or None
         Frames per second (Hz).
-    pixel_size : float
-        Length of one pixel (m).
+    pixel_size : float or None
+        Length of one pixel (m); None for a ``radius.csv`` read alone.
     provenance : dict
         Tool version, input path and SHA-256, options.
     details : dict
@@ -83,10 +90,10 @@ class RadiusSeries:
     contact_time: float | None
     contact_time_err: float | None
     drop_radius: float | None
-    geometry: str
-    view: str
+    geometry: str | None
+    view: str | None
     frame_rate: float | None
-    pixel_size: float
+    pixel_size: float | None
     provenance: dict = field(default_factory=dict)
     details: dict = field(default_factory=dict)
     angles: np.ndarray | None = None
@@ -116,74 +123,104 @@ class RadiusSeries:
         """Boolean mask of the frames with status ``ok``."""
         return np.array([s == "ok" for s in self.status], dtype=bool)
 
+    @property
+    def status_counts(self) -> dict[str, int]:
+        """Frames of each status, every status of :data:`STATUSES` in its order."""
+        return {name: int(sum(s == name for s in self.status)) for name in STATUSES}
+
+
+# measure.json keys that hold a field of the record; the keys besides these,
+# the counts (derived from the columns) and the provenance are its details.
+_INFO_FIELDS = {
+    "contact_time_s": "contact_time",
+    "contact_time_err_s": "contact_time_err",
+    "drop_radius_m": "drop_radius",
+    "geometry": "geometry",
+    "view": "view",
+    "frame_rate_hz": "frame_rate",
+    "pixel_size_m": "pixel_size",
+}
+_NOT_DETAILS = {*_INFO_FIELDS, "frames", "status_counts", "provenance"}
+
+
+def series_to_dict(series: RadiusSeries) -> dict:
+    """The content of ``measure.json`` (JSON-ready): all of the record but its columns."""
+    fields = {key: getattr(series, name) for key, name in _INFO_FIELDS.items()}
+    counts = {"frames": len(series), "status_counts": series.status_counts}
+    return {**fields, **counts, **series.details, "provenance": series.provenance}
+
+
+def _contact_from_since(time: np.ndarray, since: np.ndarray) -> float | None:
+    """The contact instant the ``since_contact_s`` column implies (its first value)."""
+    finite = np.isfinite(since)
+    if not finite.any():
+        return None
+    first = int(np.argmax(finite))
+    contact = float(time[first]) - float(since[first])
+    return contact if math.isfinite(contact) else None
+
+
+def series_from_dict(info: Mapping, columns: Mapping) -> RadiusSeries:
+    """The record from the content of ``measure.json`` and the columns of ``radius.csv``.
+
+    Parameters
+    ----------
+    info : Mapping
+        As :func:`series_to_dict` gives it; may be empty (a ``radius.csv``
+        alone), and then the contact instant is the one ``since_contact_s``
+        implies.
+    columns : Mapping
+        Arrays by the names of :data:`CSV_COLUMNS`, as the CSV holds them.
+    """
+    values = {name: info.get(key) for key, name in _INFO_FIELDS.items()}
+    if values["contact_time"] is None:
+        values["contact_time"] = _contact_from_since(columns["time_s"], columns["since_contact_s"])
+    details = {k: v for k, v in info.items() if k not in _NOT_DETAILS}
+    return RadiusSeries(
+        frame=columns["frame"],
+        time=columns["time_s"],
+        radius=columns["radius_m"],
+        radius_err=columns["radius_err_m"],
+        status=tuple(columns["status"]),
+        provenance=dict(info.get("provenance") or {}),
+        details=details,
+        **values,
+    )
+
 
 def _number(value: float) -> str:
     return "" if value is None or not math.isfinite(value) else repr(float(value))
 
 
-def series_to_csv(series: RadiusSeries) -> str:
-    """The text of ``radius.csv``."""
+def _csv_text(header, rows) -> str:
     buffer = io.StringIO()
     writer = csv.writer(buffer, lineterminator="\n")
-    writer.writerow(CSV_COLUMNS)
-    since = series.since_contact
-    for i in range(len(series)):
-        writer.writerow(
-            [
-                int(series.frame[i]),
-                _number(series.time[i]),
-                _number(since[i]),
-                _number(series.radius[i]),
-                _number(series.radius_err[i]),
-                series.status[i],
-            ]
-        )
+    writer.writerow(header)
+    writer.writerows(rows)
     return buffer.getvalue()
 
 
-def series_summary(series: RadiusSeries) -> dict:
-    """The content of ``measure.json`` (JSON-ready)."""
-    counts = {name: int(sum(s == name for s in series.status)) for name in STATUSES}
-    return {
-        "contact_time_s": series.contact_time,
-        "contact_time_err_s": series.contact_time_err,
-        "drop_radius_m": series.drop_radius,
-        "geometry": series.geometry,
-        "view": series.view,
-        "frame_rate_hz": series.frame_rate,
-        "pixel_size_m": series.pixel_size,
-        "frames": len(series),
-        "status_counts": counts,
-        **series.details,
-        "provenance": series.provenance,
-    }
+def series_to_csv(series: RadiusSeries) -> str:
+    """The text of ``radius.csv``."""
+    columns = (series.time, series.since_contact, series.radius, series.radius_err)
+    rows = zip(series.frame, *columns, series.status, strict=True)
+    return _csv_text(CSV_COLUMNS, ([int(f), *map(_number, v), s] for f, *v, s in rows))
 
 
 ANGLE_COLUMNS = ("frame", "time_s", "angle_left_deg", "angle_right_deg")
 
 
-def angles_to_csv(series: RadiusSeries) -> str:
-    """The text of ``angles.csv``: apparent contact angles per frame."""
-    buffer = io.StringIO()
-    writer = csv.writer(buffer, lineterminator="\n")
-    writer.writerow(ANGLE_COLUMNS)
-    for i in range(len(series)):
-        left, right = series.angles[i]
-        writer.writerow(
-            [int(series.frame[i]), _number(series.time[i]), _number(left), _number(right)]
-        )
-    return buffer.getvalue()
-
-
 def write_series(series: RadiusSeries, out_dir) -> tuple[Path, Path]:
-    """Write ``radius.csv`` and ``measure.json`` (and ``angles.csv`` when the
-    series has contact angles) into `out_dir`, each atomically."""
+    """Write ``radius.csv`` and ``measure.json`` (and ``angles.csv``, the apparent
+    contact angles, when the series has them) into `out_dir`, each atomically."""
     out_dir = Path(out_dir)
     out_dir.mkdir(parents=True, exist_ok=True)
     if series.angles is not None:
-        write_text_atomic(out_dir / "angles.csv", angles_to_csv(series))
+        rows = zip(series.frame, series.time, series.angles, strict=True)
+        angles = ([int(f), _number(t), *map(_number, a)] for f, t, a in rows)
+        write_text_atomic(out_dir / "angles.csv", _csv_text(ANGLE_COLUMNS, angles))
     csv_path = write_text_atomic(out_dir / "radius.csv", series_to_csv(series))
-    json_text = json.dumps(series_summary(series), indent=2, allow_nan=False) + "\n"
+    json_text = json.dumps(series_to_dict(series), indent=2, allow_nan=False) + "\n"
     json_path = write_text_atomic(out_dir / "measure.json", json_text)
     return csv_path, json_path
 
@@ -208,17 +245,35 @@ def _parse_float(text: str, *, path, line: int, column: str) -> float:
     return value
 
 
-def _check_row(values: dict, previous: dict | None, *, path, line: int) -> None:
-    """A row's cells against each other and against the row before it."""
+def _parse_row(row: list, previous: dict | None, *, path, line: int) -> dict:
+    """A row's cells, checked, and against each other and the row before it."""
+    if len(row) != len(CSV_COLUMNS):
+        raise DropkinError(
+            f"line {line}: has {len(row)} fields", path=path, expected=str(len(CSV_COLUMNS))
+        )
+    try:
+        values = {"frame": int(row[0])}
+    except ValueError:
+        raise DropkinError(
+            f"line {line}: frame is not a whole number", path=path, value=row[0]
+        ) from None
+    for column, text in zip(CSV_COLUMNS[1:5], row[1:5], strict=True):
+        values[column] = _parse_float(text, path=path, line=line, column=column)
+    values["status"] = row[5].strip()
+    if values["status"] not in STATUSES:
+        raise DropkinError(
+            f"line {line}: unknown status",
+            path=path,
+            value=values["status"],
+            expected=" | ".join(STATUSES),
+        )
     if math.isnan(values["time_s"]):
         raise DropkinError(f"line {line}: time_s is empty", path=path, expected="a time in s")
     if values["status"] == "ok" and not values["radius_m"] > 0:
         raise DropkinError(
             f"line {line}: status ok without a radius", path=path, expected="radius_m above 0"
         )
-    if previous is None:
-        return
-    for column in ("frame", "time_s"):
+    for column in ("frame", "time_s") if previous is not None else ():
         if not values[column] > previous[column]:
             raise DropkinError(
                 f"line {line}: {column} does not increase (line {line - 1} has "
@@ -227,28 +282,11 @@ def _check_row(values: dict, previous: dict | None, *, path, line: int) -> None:
                 value=values[column],
                 expected="rows in the order of the frames, one per frame",
             )
+    return values
 
 
-def read_radius_csv(path) -> dict:
-    """Read a ``radius.csv`` back into arrays.
-
-    Returns
-    -------
-    dict
-        ``frame`` (int array), ``time_s``, ``since_contact_s``, ``radius_m``,
-        ``radius_err_m`` (float arrays, NaN where empty) and ``status``
-        (tuple of str).
-
-    Raises
-    ------
-    DropkinError
-        If the file is missing, has other columns, or holds a value that is
-        not a number or not a known status, a NaN (the format leaves such
-        cells empty), a negative radius, uncertainty or time since contact, a
-        row without a time, an ``ok`` row without a radius, or rows whose
-        frames or times do not increase; the message names the line.
-    """
-    path = Path(path)
+def _read_columns(path: Path) -> dict:
+    """The columns of a ``radius.csv``, checked row by row (see :func:`read_radius_csv`)."""
     try:
         text = path.read_text(encoding="utf-8")
     except (OSError, UnicodeDecodeError) as exc:
@@ -264,36 +302,97 @@ def read_radius_csv(path) -> dict:
             path=path,
             expected=",".join(CSV_COLUMNS),
         )
-    data = {name: [] for name in CSV_COLUMNS}
-    previous = None
+    parsed, previous = [], None
     for line, row in enumerate(rows[1:], start=2):
-        if not row:
-            continue
-        if len(row) != len(CSV_COLUMNS):
-            raise DropkinError(
-                f"line {line}: has {len(row)} fields", path=path, expected=str(len(CSV_COLUMNS))
-            )
-        try:
-            values = {"frame": int(row[0])}
-        except ValueError:
-            raise DropkinError(
-                f"line {line}: frame is not a whole number", path=path, value=row[0]
-            ) from None
-        for column, text in zip(CSV_COLUMNS[1:5], row[1:5], strict=True):
-            values[column] = _parse_float(text, path=path, line=line, column=column)
-        values["status"] = row[5].strip()
-        if values["status"] not in STATUSES:
-            raise DropkinError(
-                f"line {line}: unknown status",
-                path=path,
-                value=values["status"],
-                expected=" | ".join(STATUSES),
-            )
-        _check_row(values, previous, path=path, line=line)
-        previous = values
-        for name in CSV_COLUMNS:
-            data[name].append(values[name])
-    out = {name: np.asarray(data[name], dtype=np.float64) for name in CSV_COLUMNS[1:5]}
-    out["frame"] = np.asarray(data["frame"], dtype=np.int64)
-    out["status"] = tuple(data["status"])
+        if row:
+            previous = _parse_row(row, previous, path=path, line=line)
+            parsed.append(previous)
+    out = {c: np.asarray([v[c] for v in parsed], dtype=np.float64) for c in CSV_COLUMNS[1:5]}
+    out["frame"] = np.asarray([v["frame"] for v in parsed], dtype=np.int64)
+    out["status"] = tuple(v["status"] for v in parsed)
     return out
+
+
+def read_radius_csv(path) -> RadiusSeries:
+    """Read a ``radius.csv`` alone into a :class:`RadiusSeries`.
+
+    The contact instant is the one ``since_contact_s`` implies (None when
+    that column is empty); what only ``measure.json`` knows (geometry, pixel
+    size, provenance...) is None or empty. :func:`read_series` reads both.
+
+    Raises
+    ------
+    DropkinError
+        If the file is missing, has other columns, or holds a value that is
+        not a number or not a known status, a NaN (the format leaves such
+        cells empty), a negative radius, uncertainty or time since contact, a
+        row without a time, an ``ok`` row without a radius, or rows whose
+        frames or times do not increase; the message names the line.
+    """
+    return series_from_dict({}, _read_columns(Path(path)))
+
+
+def _valid_number(value) -> bool:
+    return isinstance(value, int | float) and not isinstance(value, bool) and math.isfinite(value)
+
+
+def _valid_bracket(value) -> bool:
+    pair = isinstance(value, list) and len(value) == 2 and all(map(_valid_number, value))
+    return pair and value[0] <= value[1]
+
+
+# What the fit reads from measure.json: key -> (test, what it must be).
+_INFO_KEYS = {
+    "contact_time_s": (_valid_number, "a finite time in s"),
+    "contact_time_err_s": (lambda v: _valid_number(v) and v >= 0, "a finite time >= 0 in s"),
+    "contact_bracket_s": (_valid_bracket, "two finite times [lo, hi] in s, lo <= hi"),
+    "drop_radius_m": (lambda v: _valid_number(v) and v > 0, "a length above 0 in m"),
+    "geometry": (lambda v: v in ("coalescence", "spreading"), "coalescence or spreading"),
+}
+
+
+def _read_info(path: Path) -> dict:
+    """The content of a ``measure.json`` (empty when there is none), checked."""
+    if not path.is_file():
+        return {}
+    try:
+        info = json.loads(path.read_text(encoding="utf-8"))
+    except (OSError, UnicodeDecodeError, json.JSONDecodeError) as exc:
+        raise DropkinError(f"cannot be read as JSON ({exc})", path=path) from None
+    if not isinstance(info, dict):
+        raise DropkinError("is not a JSON object", path=path)
+    for key, (valid, expected) in _INFO_KEYS.items():
+        if info.get(key) is not None and not valid(info[key]):
+            raise DropkinError(
+                "has a bad value", path=path, key=key, value=info[key], expected=expected
+            )
+    provenance = info.get("provenance")
+    if provenance is not None and not isinstance(provenance, dict):
+        raise DropkinError("is not a JSON object", path=path, key="provenance")
+    named = (provenance or {}).get("experiment_file")
+    if named is not None and not isinstance(named, str):
+        raise DropkinError(
+            "has a bad value",
+            path=path,
+            key="provenance.experiment_file",
+            value=named,
+            expected="the path of an experiment file",
+        )
+    return info
+
+
+def read_series(radius_csv) -> RadiusSeries:
+    """Read a ``radius.csv`` and the ``measure.json`` beside it (if any) into one record.
+
+    Raises
+    ------
+    DropkinError
+        As :func:`read_radius_csv`; if the CSV has no rows; if
+        ``measure.json`` is not a JSON object or holds a bad contact instant,
+        uncertainty or bracket, drop radius, geometry or provenance.
+    """
+    path = Path(radius_csv)
+    columns = _read_columns(path)
+    if not len(columns["frame"]):
+        raise DropkinError("has no rows, only a header", path=path, expected="one row per frame")
+    return series_from_dict(_read_info(path.with_name("measure.json")), columns)

@@ -205,7 +205,7 @@ def test_reports_skip_a_temporary_overlay_and_the_next_run_removes_it(recording,
     stray = frame.with_name(f"{TEMPORARY_PREFIX}{frame.stem}.k2j4xq.png")
     stray.write_bytes(half)
 
-    from dropkin.report import write_analysis_outputs
+    from dropkin.pipeline import write_analysis_outputs
 
     write_analysis_outputs(out)  # the report and plots alone, as a script would redo them
     assert (out / "report.html").read_bytes() == reference

@@ -136,6 +136,16 @@ def test_radius_csv_reader_gives_arrays_or_one_dropkin_error(tmp_path_factory, t
         _one_line(exc)
         assert "radius.csv" in str(exc)
         return
+    # the record's columns, in the order of CSV_COLUMNS
+    columns = (
+        data.frame,
+        data.time,
+        data.since_contact,
+        data.radius,
+        data.radius_err,
+        data.status,
+    )
+    data = dict(zip(CSV_COLUMNS, columns, strict=True))
     n = len(data["frame"])
     assert all(len(data[c]) == n for c in CSV_COLUMNS)
     assert set(data["status"]) <= set(STATUSES)

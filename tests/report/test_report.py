@@ -3,6 +3,7 @@
 from __future__ import annotations
 
 import copy
+import dataclasses
 import json
 import re
 import xml.etree.ElementTree as ET
@@ -12,8 +13,10 @@ import pytest
 from click.testing import CliRunner
 
 import dropkin.cli
-from dropkin.report import write_analysis_outputs, write_plots, write_report
-from dropkin.series import read_radius_csv
+from dropkin.pipeline import read_fit, write_analysis_outputs
+from dropkin.report import write_plots, write_report
+from dropkin.scaling import verdict_from_dict
+from dropkin.series import read_series
 
 SAMPLES = Path(__file__).resolve().parents[2] / "sample_frames"
 PNG_SIGNATURE = b"\x89PNG\r\n\x1a\n"
@@ -28,8 +31,13 @@ def _analyze(sample: Path, out: Path) -> Path:
 
 
 def _inputs(out: Path):
+    """The records of an analysis folder, as the report takes them."""
+    return {"series": read_series(out / "radius.csv"), "verdict": read_fit(out / "fit.json")}
+
+
+def _files(out: Path):
+    """The contents of an analysis folder's ``measure.json`` and ``fit.json``."""
     return {
-        "series": read_radius_csv(out / "radius.csv"),
         "measure_info": json.loads((out / "measure.json").read_text(encoding="utf-8")),
         "fit": json.loads((out / "fit.json").read_text(encoding="utf-8")),
     }
@@ -37,11 +45,32 @@ def _inputs(out: Path):
 
 @pytest.fixture(scope="module", params=["fast_pair.tif", "spreading_drop"])
 def analysed(request, tmp_path_factory):
-    """One real `analyze` run per sample, then plots and report written from its files."""
+    """One real `analyze` run per sample, then plots and report written from its files.
+
+    The report of the run itself is kept beside the folder, as ``run_report.html``.
+    """
     out = tmp_path_factory.mktemp(request.param.replace(".", "_")) / "out"
     _analyze(SAMPLES / request.param, out)
+    (out.parent / "run_report.html").write_bytes((out / "report.html").read_bytes())
     report = write_analysis_outputs(out)
     return out, report
+
+
+def test_report_from_the_files_is_the_report_of_the_run(analysed):
+    # The run passes its records in memory; the files read back give the same ones.
+    out, report = analysed
+    assert report.read_bytes() == (out.parent / "run_report.html").read_bytes()
+
+
+def test_records_read_back_give_their_files_again(analysed):
+    from dropkin.scaling import verdict_to_dict
+    from dropkin.series import series_to_csv, series_to_dict
+
+    out, _ = analysed
+    inputs, files = _inputs(out), _files(out)
+    assert series_to_csv(inputs["series"]) == (out / "radius.csv").read_text(encoding="utf-8")
+    assert series_to_dict(inputs["series"]) == files["measure_info"]
+    assert verdict_to_dict(inputs["verdict"]) == files["fit"]
 
 
 def test_plots_are_valid_png_and_svg(analysed):
@@ -86,8 +115,8 @@ def test_report_is_self_contained(analysed):
 def test_report_states_verdict_regime_and_provenance(analysed):
     out, report = analysed
     html = report.read_text(encoding="utf-8")
-    inputs = _inputs(out)
-    fit, info = inputs["fit"], inputs["measure_info"]
+    files = _files(out)
+    fit, info = files["fit"], files["measure_info"]
     from markupsafe import escape
 
     assert str(escape(fit["sentence"])) in html
@@ -100,12 +129,13 @@ def test_report_states_verdict_regime_and_provenance(analysed):
 
 def test_input_strings_are_escaped(analysed, tmp_path):
     out, _ = analysed
-    inputs = _inputs(out)
-    info = copy.deepcopy(inputs["measure_info"])
-    info["provenance"]["input"] = "<script>x</script>"
-    fit = copy.deepcopy(inputs["fit"])
+    series = _inputs(out)["series"]
+    series = dataclasses.replace(
+        series, provenance={**series.provenance, "input": "<script>x</script>"}
+    )
+    fit = copy.deepcopy(_files(out)["fit"])
     fit["sentence"] = "a <b>bold</b> & <script>alert(1)</script> claim"
-    path = write_report(tmp_path, series=inputs["series"], measure_info=info, fit=fit)
+    path = write_report(tmp_path, series=series, verdict=verdict_from_dict(fit))
     html = path.read_text(encoding="utf-8")
     assert "<script>" not in html
     assert "&lt;script&gt;x&lt;/script&gt;" in html
@@ -115,24 +145,25 @@ def test_input_strings_are_escaped(analysed, tmp_path):
 def test_warnings_for_few_points_edge_frames_and_cut_regime(analysed, tmp_path):
     out, _ = analysed
     inputs = _inputs(out)
-    series = dict(inputs["series"])
-    fit = copy.deepcopy(inputs["fit"])
+    series = inputs["series"]
+    fit = copy.deepcopy(_files(out)["fit"])
     t0 = fit["contact"]["t0_s"]
     start, stop = fit["dominant"]["window_s"]
     # pretend the window stopped halfway because the drop left the field of view
     end = (start * stop) ** 0.5
     fit["dominant"]["window_s"] = [start, end]
-    status = list(series["status"])
-    late = [i for i, t in enumerate(series["time_s"]) if t - t0 > end]
+    status = list(series.status)
+    late = [i for i, t in enumerate(series.time) if t - t0 > end]
     assert late
     for i in late:
         status[i] = "at-edge"
     status[0] = "not-found"
-    series["status"] = tuple(status)
-    info = copy.deepcopy(inputs["measure_info"])
-    info["status_counts"] = {s: status.count(s) for s in set(status)}
-    info["status_counts"]["ok"] = 3
-    html = write_report(tmp_path, series=series, measure_info=info, fit=inputs["fit"]).read_text(
+    # only 3 frames left ok: the counts are the statuses' own (the record has no others)
+    ok = [i for i, s in enumerate(status) if s == "ok"]
+    for i in ok[3:]:
+        status[i] = "unresolved"
+    series = dataclasses.replace(series, status=tuple(status))
+    html = write_report(tmp_path, series=series, verdict=inputs["verdict"]).read_text(
         encoding="utf-8"
     )
     assert "Only 3 frames were measured as ok" in html
@@ -166,20 +197,20 @@ def test_dominant_curve_follows_the_ok_points_in_its_window(analysed):
 
     out, _ = analysed
     inputs = _inputs(out)
-    fit, series = inputs["fit"], inputs["series"]
-    tau = fit_times(series, fit)
-    lo, hi = fit["dominant"]["window_s"]
-    ok = np.array([s == "ok" for s in series["status"]]) & (tau >= lo * 0.999)
+    verdict, series = inputs["verdict"], inputs["series"]
+    tau = fit_times(series, verdict)
+    lo, hi = verdict.dominant.window
+    ok = np.array([s == "ok" for s in series.status]) & (tau >= lo * 0.999)
     ok &= tau <= hi * 1.001
     assert ok.sum() > 10
-    rel = series["radius_m"][ok] / dominant_curve(fit, tau[ok]) - 1
+    rel = series.radius[ok] / dominant_curve(verdict, tau[ok]) - 1
     assert np.max(np.abs(rel)) < 0.03
 
 
 def test_crossovers_are_plotted_and_listed(analysed, tmp_path):
     out, _ = analysed
     inputs = _inputs(out)
-    fit = copy.deepcopy(inputs["fit"])
+    fit = copy.deepcopy(_files(out)["fit"])
     lo, hi = fit["dominant"]["window_s"]
     fit["crossovers"] = [
         {
@@ -190,11 +221,10 @@ def test_crossovers_are_plotted_and_listed(analysed, tmp_path):
             "predicted_time_s": None,
         }
     ]
-    written = write_plots(
-        tmp_path, series=inputs["series"], measure_info=inputs["measure_info"], fit=fit
-    )
+    verdict = verdict_from_dict(fit)
+    written = write_plots(tmp_path, series=inputs["series"], verdict=verdict)
     assert tmp_path / "plots" / "radius.png" in written
-    html = write_report(
-        tmp_path, series=inputs["series"], measure_info=inputs["measure_info"], fit=fit
-    ).read_text(encoding="utf-8")
+    html = write_report(tmp_path, series=inputs["series"], verdict=verdict).read_text(
+        encoding="utf-8"
+    )
     assert "Crossover early-regime → late-regime at τ =" in html

@@ -14,12 +14,8 @@ its 95 % interval implies (which carries the contact-instant uncertainty).
 Put on another regime's scales (``regime=``), it is the weighted mean of
 ln(y / f(x)) over its ``ok`` points (f the law with C = 1), with the larger
 of the points' scatter and their own errors as its standard error.
-The collective prefactor combines the ln C_i with the random-
-effects model of DerSimonian & Laird (Control. Clin. Trials 7, 177, 1986),
-its 95 % interval with the Hartung–Knapp t-interval on k - 1 degrees of
-freedom, never narrower than the DerSimonian–Laird one (Hartung & Knapp,
-Stat. Med. 20, 3875, 2001; the "never narrower" rule as in Röver, Knapp &
-Friede, BMC Med. Res. Methodol. 15, 99, 2015). A recording does not collapse
+The collective prefactor combines the ln C_i with a random-effects model
+(:mod:`._pooling`). A recording does not collapse
 when its ln C_i lies more than three standard errors (its own and the
 collective's, without the between-recording spread) from the collective, or
 when its points do not have the law's shape: the slope of ln(y / f(x))
@@ -30,93 +26,19 @@ errors and the verdict's exponent tolerance.
 from __future__ import annotations
 
 import math
-from dataclasses import dataclass, field
+from dataclasses import dataclass, field, replace
 from pathlib import Path
 
 import numpy as np
 
 from ..errors import DropkinError
+from ..pipeline import read_fit
+from ..series import read_radius_csv
+from ._pooling import Pooled, pool_log_prefactors
 
-__all__ = [
-    "Pooled",
-    "Member",
-    "MasterCurve",
-    "pool_log_prefactors",
-    "master_curves",
-    "write_collapse",
-]
+__all__ = ["Member", "MasterCurve", "master_curves", "curve_to_dict", "write_collapse"]
 
 FLAG_SIGMAS = 3.0
-
-
-@dataclass(frozen=True)
-class Pooled:
-    """A random-effects combination of k estimates of ln C.
-
-    Attributes
-    ----------
-    log_value, log_se : float
-        Pooled ln C and its standard error (the larger of Hartung–Knapp's
-        and DerSimonian–Laird's).
-    log_ci : tuple of float
-        95 % interval of ln C.
-    tau2 : float
-        Between-recording variance of ln C (DerSimonian–Laird).
-    q : float
-        Cochran's Q.
-    k : int
-    """
-
-    log_value: float
-    log_se: float
-    log_ci: tuple[float, float]
-    tau2: float
-    q: float
-    k: int
-
-    @property
-    def value(self) -> float:
-        return math.exp(self.log_value)
-
-    @property
-    def ci(self) -> tuple[float, float]:
-        return (math.exp(self.log_ci[0]), math.exp(self.log_ci[1]))
-
-
-def pool_log_prefactors(log_c, se) -> Pooled:
-    """Combine estimates ``log_c`` (ln C_i) with standard errors ``se``.
-
-    Examples
-    --------
-    >>> p = pool_log_prefactors([0.0, 0.02, -0.01], [0.01, 0.01, 0.02])
-    >>> round(p.value, 4), p.k
-    (1.007, 3)
-    """
-    from scipy import stats
-
-    y = np.asarray(log_c, dtype=float)
-    s = np.asarray(se, dtype=float)
-    if y.ndim != 1 or y.shape != s.shape or y.size == 0:
-        raise DropkinError("needs one standard error per estimate, and at least one")
-    if not (np.all(np.isfinite(y)) and np.all(np.isfinite(s)) and np.all(s > 0)):
-        raise DropkinError("needs finite estimates and positive standard errors")
-    k = y.size
-    v = s**2
-    w = 1.0 / v
-    mean_fe = float(np.sum(w * y) / np.sum(w))
-    q = float(np.sum(w * (y - mean_fe) ** 2))
-    if k == 1:
-        half = 1.959963984540054 * s[0]
-        return Pooled(float(y[0]), float(s[0]), (y[0] - half, y[0] + half), 0.0, 0.0, 1)
-    c = float(np.sum(w) - np.sum(w**2) / np.sum(w))
-    tau2 = max(0.0, (q - (k - 1)) / c)
-    ws = 1.0 / (v + tau2)
-    mean = float(np.sum(ws * y) / np.sum(ws))
-    se_dl = math.sqrt(1.0 / float(np.sum(ws)))
-    se_hk = math.sqrt(float(np.sum(ws * (y - mean) ** 2)) / ((k - 1) * float(np.sum(ws))))
-    se_used = max(se_dl, se_hk)
-    half = float(stats.t.ppf(0.975, k - 1)) * se_used
-    return Pooled(mean, se_used, (mean - half, mean + half), tau2, q, k)
 
 
 @dataclass(frozen=True)
@@ -248,22 +170,18 @@ def _shape_slope(x, y, rel, regime) -> tuple[float, float]:
 
 
 def _member(row, out_dir: Path, regime) -> Member:
-    import json
-
-    from ..series import read_radius_csv
-
     folder = out_dir / (row.get("output") or row["label"])
     series = read_radius_csv(folder / "radius.csv")
-    fit = json.loads((folder / "fit.json").read_text(encoding="utf-8"))
-    t0 = (fit.get("contact") or {}).get("t0_s")
-    if t0 is None:
+    verdict = read_fit(folder / "fit.json")
+    t0 = verdict.t0 if verdict else math.nan  # fit.json has a contact instant when it succeeded
+    if not math.isfinite(t0):
         raise DropkinError("has no contact instant", path=folder / "fit.json")
     numbers = _numbers(row)
     tau = _time_scale(regime, numbers)
     radius = numbers.radius
-    since = series["time_s"] - t0
-    r, err = series["radius_m"], series["radius_err_m"]
-    ok = (np.asarray(series["status"]) == "ok") & (since > 0) & np.isfinite(r) & (r > 0)
+    since = series.time - t0
+    r, err = series.radius, series.radius_err
+    ok = (np.asarray(series.status) == "ok") & (since > 0) & np.isfinite(r) & (r > 0)
     x, y = since[ok] / tau, r[ok] / radius
     rel = np.where(np.isfinite(err[ok]) & (err[ok] > 0), err[ok] / r[ok], np.nan)
     lo, hi = row.get("window_start_s"), row.get("window_end_s")
@@ -299,6 +217,54 @@ def _member(row, out_dir: Path, regime) -> Member:
     )
 
 
+def _group_rows(rows, regime: str | None) -> tuple[dict[str, list[dict]], list]:
+    """The rows of each regime's curve, and the rows left out with the reason."""
+    left_out: list[tuple[str, str]] = []
+    groups: dict[str, list[dict]] = {}
+    for row in rows:
+        if row["status"] != "complete":
+            left_out.append((row["label"], f"failed: {row.get('error') or ''}"))
+        elif regime is None and (not row.get("decided") or not row.get("regime")):
+            left_out.append((row["label"], "no regime decided"))
+        else:
+            groups.setdefault(regime or row["regime"], []).append(row)
+    return groups, left_out
+
+
+def _members(rows, out_dir: Path, regime) -> tuple[list[Member], list[tuple[str, str]]]:
+    """The members of one regime's curve, and the recordings that could not join it."""
+    members, skipped = [], []
+    for row in rows:
+        try:
+            members.append(_member(row, out_dir, regime))
+        except (DropkinError, OSError, ValueError, KeyError) as exc:
+            skipped.append((row["label"], str(exc)))
+    return members, skipped
+
+
+def _judged(m: Member, pooled: Pooled, tolerance: float) -> Member:
+    """The member with its deviation from the collective, and whether it collapses."""
+    z = (math.log(m.prefactor) - pooled.log_value) / math.hypot(m.log_se, pooled.log_se)
+    off_c = abs(z) > FLAG_SIGMAS and pooled.k > 1
+    off_shape = (
+        math.isfinite(m.slope)
+        and abs(m.slope) > FLAG_SIGMAS * m.slope_se
+        and abs(m.slope) > tolerance
+    )
+    off = off_c or off_shape
+    reasons = []
+    if off_c:
+        reasons.append(
+            f"C = {m.prefactor:.3g} lies {abs(z):.1f} standard errors from the collective"
+        )
+    if off_shape:
+        reasons.append(
+            f"its exponent differs from the law's by {m.slope:+.3g} (± {m.slope_se:.2g})"
+        )
+    note = "; ".join(reasons) if off else m.note
+    return replace(m, deviation=z, collapses=not off, note=note)
+
+
 def master_curves(out_dir, *, regime: str | None = None) -> list[MasterCurve]:
     """The master curve of every regime a campaign's recordings were found in.
 
@@ -329,15 +295,7 @@ def master_curves(out_dir, *, regime: str | None = None) -> list[MasterCurve]:
             value=regime,
             expected=", ".join(sorted(by_key)),
         )
-    left_out: list[tuple[str, str]] = []
-    groups: dict[str, list[dict]] = {}
-    for row in rows:
-        if row["status"] != "complete":
-            left_out.append((row["label"], f"failed: {row.get('error') or ''}"))
-        elif regime is None and (not row.get("decided") or not row.get("regime")):
-            left_out.append((row["label"], "no regime decided"))
-        else:
-            groups.setdefault(regime or row["regime"], []).append(row)
+    groups, left_out = _group_rows(rows, regime)
     if not groups:
         raise DropkinError("has no recording with a decided regime", path=out_dir)
     curves = []
@@ -346,41 +304,13 @@ def master_curves(out_dir, *, regime: str | None = None) -> list[MasterCurve]:
         if reg is None:
             left_out += [(r["label"], f"unknown regime {key!r}") for r in members_rows]
             continue
-        members, skipped = [], []
-        for row in members_rows:
-            try:
-                members.append(_member(row, out_dir, reg))
-            except (DropkinError, OSError, ValueError, KeyError) as exc:
-                skipped.append((row["label"], str(exc)))
+        members, skipped = _members(members_rows, out_dir, reg)
         if not members:
             left_out += skipped
             continue
         pooled = pool_log_prefactors(
             [math.log(m.prefactor) for m in members], [m.log_se for m in members]
         )
-        judged = []
-        for m in members:
-            z = (math.log(m.prefactor) - pooled.log_value) / math.hypot(m.log_se, pooled.log_se)
-            off_c = abs(z) > FLAG_SIGMAS and pooled.k > 1
-            off_shape = (
-                math.isfinite(m.slope)
-                and abs(m.slope) > FLAG_SIGMAS * m.slope_se
-                and abs(m.slope) > EXPONENT_TOLERANCE
-            )
-            off = off_c or off_shape
-            reasons = []
-            if off_c:
-                reasons.append(
-                    f"C = {m.prefactor:.3g} lies {abs(z):.1f} standard errors from the collective"
-                )
-            if off_shape:
-                reasons.append(
-                    f"its exponent differs from the law's by {m.slope:+.3g} (± {m.slope_se:.2g})"
-                )
-            note = "; ".join(reasons) if off else m.note
-            judged.append(
-                Member(**{**m.__dict__, "deviation": z, "collapses": not off, "note": note})
-            )
         curves.append(
             MasterCurve(
                 regime=key,
@@ -388,7 +318,7 @@ def master_curves(out_dir, *, regime: str | None = None) -> list[MasterCurve]:
                 logarithmic=reg.logarithmic,
                 pooled=pooled,
                 published=reg.prefactor,
-                members=tuple(judged),
+                members=tuple(_judged(m, pooled, EXPONENT_TOLERANCE) for m in members),
                 left_out=tuple(left_out + skipped),
             )
         )

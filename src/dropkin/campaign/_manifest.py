@@ -40,7 +40,7 @@ from dataclasses import dataclass, field
 from pathlib import Path
 
 from ..errors import ExperimentError
-from ..pipeline._steps import AnalysisSettings
+from ..pipeline._steps import AnalysisSettings, parse_roi
 
 __all__ = ["Task", "Campaign", "read_manifest", "LABEL_PATTERN"]
 
@@ -157,8 +157,6 @@ def _analysis(table: dict, base: dict, path, where: str, resolve) -> dict:
 
 
 def _roi(value, path, key):
-    from ..pipeline._steps import parse_roi
-
     if not isinstance(value, str):
         _fail("is not a region", path, key, value=value, expected="'ROW0:ROW1,COL0:COL1'")
     r0, r1, c0, c1 = parse_roi(value, key=key, path=path)
@@ -171,6 +169,100 @@ def _label_from(path: Path) -> str:
     stem = path.name if path.is_dir() else path.stem
     label = re.sub(r"[^A-Za-z0-9._-]+", "-", stem).lstrip("._-") or "recording"
     return label[:100]
+
+
+def _read_document(path: Path) -> dict:
+    """The manifest's TOML, with only the top-level tables a manifest has."""
+    try:
+        document = tomllib.loads(path.read_text(encoding="utf-8"))
+    except OSError as exc:
+        raise ExperimentError(f"cannot be read ({exc.strerror or exc})", path=path) from None
+    except UnicodeDecodeError:
+        raise ExperimentError("is not UTF-8 text", path=path) from None
+    except tomllib.TOMLDecodeError as exc:
+        raise ExperimentError(f"is not valid TOML ({exc})", path=path) from None
+    for key in document:
+        if key not in ("campaign", "shared", "recordings"):
+            _fail("unknown key", path, key, expected="campaign, shared or recordings")
+    return document
+
+
+@dataclass(frozen=True)
+class _Place:
+    """Where a manifest is, and whether the paths it names may leave its folder."""
+
+    path: Path
+    base: Path
+    allow_outside: bool
+
+    def resolve(self, text, key, *, must="any") -> Path:
+        """A path the manifest names, made absolute and checked (see the module notes)."""
+        path = self.path
+        if not isinstance(text, str) or not text.strip():
+            _fail("must be a path", path, key, value=text)
+        given = Path(text)
+        if given.is_absolute() and not self.allow_outside:
+            _fail("is an absolute path", path, key, value=text, expected=_INSIDE)
+        full = (self.base / given).resolve()
+        if not self.allow_outside and not full.is_relative_to(self.base):
+            _fail("leads out of the manifest's folder", path, key, value=text, expected=_INSIDE)
+        if not full.exists():
+            _fail("does not exist", path, key, value=text)
+        if must == "file" and not full.is_file():
+            _fail("is not a file", path, key, value=text)
+        return full
+
+
+def _check_label(label, seen: dict, source, path, where: str) -> None:
+    """A usable label, used by no other recording (whatever its case)."""
+    if not isinstance(label, str) or not LABEL_PATTERN.match(label):
+        _fail(
+            "is not a usable label",
+            path,
+            f"{where}.label",
+            value=label,
+            expected="letters, digits, '.', '_' or '-', starting with a letter or digit",
+        )
+    if label.lower() in seen:
+        _fail(
+            f"is also the label of {seen[label.lower()]}",
+            path,
+            f"{where}.label",
+            value=label,
+            expected="a label of its own (labels name the output folders)",
+        )
+    seen[label.lower()] = str(source)
+
+
+def _entry_tasks(entry, where: str, shared: tuple[dict, dict], place: _Place, seen) -> list[Task]:
+    """The tasks of one ``[[recordings]]`` entry (one, or one per match of its glob)."""
+    path, resolve = place.path, place.resolve
+    entry = _table(entry, path, where)
+    for key in entry:
+        if key not in _ENTRY_KEYS:
+            _fail("unknown key", path, f"{where}.{key}", expected=", ".join(sorted(_ENTRY_KEYS)))
+    if ("path" in entry) == ("glob" in entry):
+        _fail("needs either path or glob", path, where)
+    if "glob" in entry and "label" in entry:
+        _fail("cannot label every match of a glob", path, f"{where}.label")
+    shared_values, shared_analysis = shared
+    values = {**shared_values, **_experiment_values(entry, path, where)}
+    settings = AnalysisSettings(
+        **_analysis(entry.get("analysis", {}), shared_analysis, path, where, resolve)
+    )
+    experiment = entry.get("experiment")
+    if experiment is not None:
+        experiment = str(resolve(experiment, f"{where}.experiment", must="file"))
+    if "path" in entry:
+        sources = [resolve(entry["path"], f"{where}.path")]
+    else:
+        sources = _glob(entry["glob"], place.base, path, f"{where}.glob", place.allow_outside)
+    tasks = []
+    for source in sources:
+        label = entry.get("label", _label_from(source))
+        _check_label(label, seen, source, path, where)
+        tasks.append(Task(label, str(source), experiment, values, settings, where))
+    return tasks
 
 
 def read_manifest(path, *, allow_outside: bool = False) -> Campaign:
@@ -190,34 +282,8 @@ def read_manifest(path, *, allow_outside: bool = False) -> Campaign:
         labels that clash.
     """
     path = Path(path)
-    try:
-        document = tomllib.loads(path.read_text(encoding="utf-8"))
-    except OSError as exc:
-        raise ExperimentError(f"cannot be read ({exc.strerror or exc})", path=path) from None
-    except UnicodeDecodeError:
-        raise ExperimentError("is not UTF-8 text", path=path) from None
-    except tomllib.TOMLDecodeError as exc:
-        raise ExperimentError(f"is not valid TOML ({exc})", path=path) from None
-    for key in document:
-        if key not in ("campaign", "shared", "recordings"):
-            _fail("unknown key", path, key, expected="campaign, shared or recordings")
-    base = path.parent.resolve()
-
-    def resolve(text, key, *, must="any") -> Path:
-        if not isinstance(text, str) or not text.strip():
-            _fail("must be a path", path, key, value=text)
-        given = Path(text)
-        if given.is_absolute() and not allow_outside:
-            _fail("is an absolute path", path, key, value=text, expected=_INSIDE)
-        full = (base / given).resolve()
-        if not allow_outside and not full.is_relative_to(base):
-            _fail("leads out of the manifest's folder", path, key, value=text, expected=_INSIDE)
-        if not full.exists():
-            _fail("does not exist", path, key, value=text)
-        if must == "file" and not full.is_file():
-            _fail("is not a file", path, key, value=text)
-        return full
-
+    document = _read_document(path)
+    place = _Place(path, path.parent.resolve(), allow_outside)
     campaign = _table(document.get("campaign", {}), path, "campaign")
     for key in campaign:
         if key not in ("name", "description"):
@@ -227,65 +293,15 @@ def read_manifest(path, *, allow_outside: bool = False) -> Campaign:
         if key not in (*_SECTIONS, "analysis"):
             _fail("unknown key", path, f"shared.{key}", expected="experiment tables or analysis")
     shared_values = _experiment_values(shared, path, "shared")
-    shared_analysis = _analysis(shared.get("analysis", {}), {}, path, "shared", resolve)
-
+    shared_analysis = _analysis(shared.get("analysis", {}), {}, path, "shared", place.resolve)
     entries = document.get("recordings")
     if not isinstance(entries, list) or not entries:
         _fail("lists no recordings", path, "recordings", expected="[[recordings]] entries")
     tasks: list[Task] = []
     seen: dict[str, str] = {}
     for i, entry in enumerate(entries):
-        where = f"recordings[{i + 1}]"
-        entry = _table(entry, path, where)
-        for key in entry:
-            if key not in _ENTRY_KEYS:
-                _fail(
-                    "unknown key", path, f"{where}.{key}", expected=", ".join(sorted(_ENTRY_KEYS))
-                )
-        if ("path" in entry) == ("glob" in entry):
-            _fail("needs either path or glob", path, where)
-        if "glob" in entry and "label" in entry:
-            _fail("cannot label every match of a glob", path, f"{where}.label")
-        values = {**shared_values, **_experiment_values(entry, path, where)}
-        settings = AnalysisSettings(
-            **_analysis(entry.get("analysis", {}), shared_analysis, path, where, resolve)
-        )
-        experiment = entry.get("experiment")
-        if experiment is not None:
-            experiment = str(resolve(experiment, f"{where}.experiment", must="file"))
-        if "path" in entry:
-            sources = [resolve(entry["path"], f"{where}.path")]
-        else:
-            sources = _glob(entry["glob"], base, path, f"{where}.glob", allow_outside)
-        for source in sources:
-            label = entry.get("label", _label_from(source))
-            if not isinstance(label, str) or not LABEL_PATTERN.match(label):
-                _fail(
-                    "is not a usable label",
-                    path,
-                    f"{where}.label",
-                    value=label,
-                    expected="letters, digits, '.', '_' or '-', starting with a letter or digit",
-                )
-            if label.lower() in seen:
-                _fail(
-                    f"is also the label of {seen[label.lower()]}",
-                    path,
-                    f"{where}.label",
-                    value=label,
-                    expected="a label of its own (labels name the output folders)",
-                )
-            seen[label.lower()] = str(source)
-            tasks.append(
-                Task(
-                    label=label,
-                    source=str(source),
-                    experiment_file=experiment,
-                    overrides=values,
-                    settings=settings,
-                    where=where,
-                )
-            )
+        shared_pair = (shared_values, shared_analysis)
+        tasks += _entry_tasks(entry, f"recordings[{i + 1}]", shared_pair, place, seen)
     name = campaign.get("name", path.stem)
     return Campaign(path=path, name=str(name), tasks=tuple(tasks))
 

@@ -1,5 +1,8 @@
 """One recording from frames to report: open, check, measure, fit, report."""
 
+from ._outputs import read_fit as read_fit
+from ._outputs import write_analysis_outputs as write_analysis_outputs
+from ._outputs import write_fit as write_fit
 from ._steps import Analysis as Analysis
 from ._steps import AnalysisSettings as AnalysisSettings
 from ._steps import analyze_into as analyze_into
@@ -16,4 +19,7 @@ __all__ = [
     "measure_into",
     "fit_into",
     "analyze_into",
+    "write_fit",
+    "read_fit",
+    "write_analysis_outputs",
 ]

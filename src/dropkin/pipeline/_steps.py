@@ -1,9 +1,12 @@
 """One recording from frames to report: the steps ``analyze`` and ``batch`` share.
 
-:func:`open_source` reads the experiment and opens the recording it
-describes; :func:`measure_into` measures it and writes ``radius.csv``,
-``measure.json`` and ``overlays/``; :func:`fit_into` writes ``fit.json``;
-:func:`analyze_into` does all of it and adds ``plots/`` and ``report.html``.
+:func:`analyze_into` is open → check → measure → fit → report, each step
+handing its records (the experiment, the :class:`~dropkin.series.RadiusSeries`,
+the :class:`~dropkin.scaling.RegimeVerdict`) to the next in memory; the files
+are outputs only. :func:`open_source` reads the experiment and opens the
+recording it describes; :func:`measure_into` measures it and writes
+``radius.csv``, ``measure.json`` and ``overlays/``; :func:`fit_into` fits a
+``radius.csv`` read from disk and writes ``fit.json`` (``dropkin fit``).
 Nothing here prints: the command line and the batch runner report progress
 their own way.
 """
@@ -11,10 +14,12 @@ their own way.
 from __future__ import annotations
 
 from collections.abc import Callable
-from dataclasses import dataclass
+from dataclasses import dataclass, replace
 from pathlib import Path
 
 from ..errors import MeasurementError
+from ._fit import Measurement, check_sample, fit_measurement, load_measurement, sample_of
+from ._outputs import write_fit
 
 __all__ = [
     "parse_roi",
@@ -189,7 +194,8 @@ def measure_into(
     -------
     series : RadiusSeries
         With ``contact_time`` None when no contact was seen (the outputs are
-        written all the same).
+        written all the same); its provenance names the recording's SHA-256
+        and the experiment file.
     contact_method : str
     """
     from .._atomic import remove_temporaries
@@ -209,10 +215,14 @@ def measure_into(
         jobs=settings.jobs,
         background=background,
     )
-    series, extras = measure(rec, exp, options=options, progress=progress, keep_edges=True)
-    series.provenance["sha256"] = recording_sha256(rec)
+    measured, extras = measure(rec, exp, options=options, progress=progress, keep_edges=True)
     named = experiment_file if experiment_file is not None else exp.path
-    series.provenance["experiment_file"] = None if named is None else str(Path(named).resolve())
+    provenance = {
+        **measured.provenance,
+        "sha256": recording_sha256(rec),
+        "experiment_file": None if named is None else str(Path(named).resolve()),
+    }
+    series = replace(measured, provenance=provenance)
     out = Path(out)
     remove_temporaries(out, out / "overlays")  # left by a run that was killed
     write_series(series, out)
@@ -221,8 +231,21 @@ def measure_into(
     return series, extras["contact"].method
 
 
+def _fit_and_write(measurement, out, *, t0, seed: int, bootstrap: int):
+    """The verdict of a measurement, written to ``OUT/fit.json``; the verdict and the numbers."""
+    from .._atomic import remove_temporaries
+
+    verdict, numbers = fit_measurement(measurement, t0=t0, seed=seed, bootstrap=bootstrap)
+    remove_temporaries(out, Path(out) / "plots")  # left by a run that was killed
+    write_fit(verdict, out)
+    return verdict, numbers
+
+
 def fit_into(radius_csv, out, *, experiment=None, t0=None, seed: int = 0, bootstrap: int = 200):
     """Fit the regimes to a ``radius.csv``; write ``OUT/fit.json``.
+
+    The series is read with the ``measure.json`` beside it (see
+    :func:`~dropkin.pipeline._fit.load_measurement`).
 
     Returns
     -------
@@ -233,14 +256,22 @@ def fit_into(radius_csv, out, *, experiment=None, t0=None, seed: int = 0, bootst
     experiment : Experiment
         The sample as used.
     """
-    from .._atomic import remove_temporaries
-    from ._fit import fit_measurement, load_measurement, write_fit
-
     measurement = load_measurement(radius_csv, experiment=experiment)
-    verdict, numbers = fit_measurement(measurement, t0=t0, seed=seed, bootstrap=bootstrap)
-    remove_temporaries(out, Path(out) / "plots")  # left by a run that was killed
-    write_fit(verdict, out)
+    verdict, numbers = _fit_and_write(measurement, out, t0=t0, seed=seed, bootstrap=bootstrap)
     return verdict, numbers, measurement.experiment
+
+
+def _write_experiment_copy(out: Path, exp, source, published_dir) -> Path:
+    """``OUT/experiment.toml``, the experiment as used; the path the provenance names."""
+    from .._atomic import write_text_atomic
+    from ..experiment import experiment_to_toml
+
+    out.mkdir(parents=True, exist_ok=True)
+    write_text_atomic(
+        out / "experiment.toml",
+        experiment_to_toml(exp, header=f"The experiment as analysed, for {source}"),
+    )
+    return Path(published_dir if published_dir is not None else out) / "experiment.toml"
 
 
 def analyze_into(
@@ -275,34 +306,23 @@ def analyze_into(
     DropkinError
         For any other input that cannot be read or measured.
     """
-    from .._atomic import write_text_atomic
-    from ..experiment import experiment_to_toml
-    from ..report import write_analysis_outputs
-    from ._fit import check_sample
+    from ..report import write_analysis_report
 
     out = Path(out)
     exp, rec = open_source(source, experiment=experiment, overrides=overrides, origin=origin)
-    check_sample(exp)  # a bad sample description fails before the frames are measured
-    copy = None
-    if experiment_copy:
-        out.mkdir(parents=True, exist_ok=True)
-        write_text_atomic(
-            out / "experiment.toml",
-            experiment_to_toml(exp, header=f"The experiment as analysed, for {source}"),
-        )
-        copy = Path(published_dir if published_dir is not None else out) / "experiment.toml"
+    sample = check_sample(exp)  # a bad sample description fails before the frames are measured
+    copy = _write_experiment_copy(out, exp, source, published_dir) if experiment_copy else None
     series, method = measure_into(out, exp, rec, settings, progress=progress, experiment_file=copy)
     if series.contact_time is None:
         raise MeasurementError(method, path=rec.path)
-    verdict, numbers, used = fit_into(
-        out / "radius.csv",
-        out,
-        experiment=exp,
-        t0=settings.t0,
-        seed=settings.seed,
-        bootstrap=settings.bootstrap,
+    measurement = Measurement(series, sample_of(sample, series), out / "radius.csv")
+    verdict, numbers = _fit_and_write(
+        measurement, out, t0=settings.t0, seed=settings.seed, bootstrap=settings.bootstrap
     )
-    report = write_analysis_outputs(out, experiment=used) if verdict else None
+    used = measurement.experiment
+    report = None
+    if verdict:
+        report = write_analysis_report(out, series=series, verdict=verdict, experiment=used)
     return Analysis(
         series=series,
         contact_method=method,

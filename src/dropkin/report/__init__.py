@@ -1,8 +1,9 @@
-"""Figures and the self-contained HTML report of one analysis; master-curve figures."""
+"""Figures and the self-contained HTML report of one analysis, from its records;
+master-curve figures."""
 
 from ._collapse import write_master_curve as write_master_curve
-from ._html import write_analysis_outputs as write_analysis_outputs
+from ._html import write_analysis_report as write_analysis_report
 from ._html import write_report as write_report
 from ._plots import write_plots as write_plots
 
-__all__ = ["write_plots", "write_report", "write_analysis_outputs", "write_master_curve"]
+__all__ = ["write_plots", "write_report", "write_analysis_report", "write_master_curve"]

@@ -6,7 +6,7 @@ from pathlib import Path
 
 import numpy as np
 
-from ._plots import _RC, OKABE_ITO, _exponent_text, _log_axis, _new_figure, _save
+from ._style import _RC, OKABE_ITO, _exponent_text, _log_axis, _new_figure, _save
 
 __all__ = ["write_master_curve"]
 

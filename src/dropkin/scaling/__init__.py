@@ -52,6 +52,8 @@ from .regimes._numbers import sample_numbers_from_experiment as sample_numbers_f
 from .regimes._numbers import viscosity_ratio as viscosity_ratio
 from .regimes._numbers import viscous_length as viscous_length
 from .regimes._numbers import viscous_time as viscous_time
+from .verdict._dict import verdict_from_dict as verdict_from_dict
+from .verdict._dict import verdict_to_dict as verdict_to_dict
 from .verdict._evidence import CrossoverFit as CrossoverFit
 from .verdict._evidence import predicted_crossover as predicted_crossover
 from .verdict._judge import EXPONENT_TOLERANCE as EXPONENT_TOLERANCE
@@ -61,7 +63,6 @@ from .verdict._materials import DEFAULT_MATERIAL_UNCERTAINTY as DEFAULT_MATERIAL
 from .verdict._materials import group_relative_uncertainty as group_relative_uncertainty
 from .verdict._materials import resolve_material_uncertainty as resolve_material_uncertainty
 from .verdict._text import format_verdict as format_verdict
-from .verdict._text import verdict_to_dict as verdict_to_dict
 from .verdict._verdict import RegimeVerdict as RegimeVerdict
 from .verdict._verdict import analyze_series as analyze_series
 
@@ -117,5 +118,6 @@ __all__ = [
     "group_relative_uncertainty",
     "predicted_crossover",
     "resolve_material_uncertainty",
+    "verdict_from_dict",
     "verdict_to_dict",
 ]

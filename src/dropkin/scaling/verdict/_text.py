@@ -1,41 +1,17 @@
-"""The verdict as words, as a terminal table and as ``fit.json`` (docs/architecture.md).
+"""The verdict in words and as a terminal table (docs/architecture.md).
 
-Results and their printing are kept apart: :func:`verdict_to_dict` gives
-plain JSON-ready values (SI; every time counted from the contact instant;
-NaN written as null), :func:`format_verdict` a short table.
-
-Examples
---------
->>> from dropkin.scaling import RegimeVerdict
->>> verdict_to_dict(RegimeVerdict(False, "Too few points: 3 after contact, at least 8 needed."))
-... # doctest: +NORMALIZE_WHITESPACE
-{'success': False, 'reason': 'Too few points: 3 after contact, at least 8 needed.',
- 'decidable': False, 'sentence': '', 'numbers': {}, 'candidates': [], 'dominant': None,
- 'crossovers': []}
+Results and their printing are kept apart: :func:`verdict_sentence` says the
+verdict in one line, :func:`format_verdict` gives a short table; the
+verdict's dict form, ``fit.json``, is in :mod:`._dict`.
 """
 
 from __future__ import annotations
 
 import math
 
-from ...fitting._local import exponent_plateaus
 from ._judge import exponent_text
 
-__all__ = ["verdict_to_dict", "format_verdict", "verdict_sentence"]
-
-
-def _num(x):
-    if x is None:
-        return None
-    x = float(x)
-    return x if math.isfinite(x) else None
-
-
-def _pair(p):
-    if p is None:
-        return None
-    a, b = (_num(v) for v in p)
-    return None if a is None and b is None else [a, b]
+__all__ = ["format_verdict", "verdict_sentence"]
 
 
 def _g(x, digits=3) -> str:
@@ -128,149 +104,6 @@ def verdict_sentence(verdict, decisions) -> str:
         text = f"{head}{sep}early — {parts[0]}; late — {parts[1]}"
     text = text[0].upper() + text[1:]
     return " ".join(text.split()) + "."
-
-
-def _candidate_dict(c) -> dict:
-    return {
-        "regime": c.key,
-        "exponent_theory": c.exponent_theory,
-        "prefactor_theory": _num(c.prefactor_theory),
-        "prefactor_fit": _num(c.prefactor_fit),
-        "exponent_fit": _num(c.exponent_fit),
-        "exponent_ci": _pair(c.exponent_ci),
-        "window_s": _pair(c.window),
-        "aic": _num(c.aic),
-        "consistent": c.consistent,
-        "segment": c.segment,
-        "rank": c.rank,
-        "logarithmic": c.regime.logarithmic,
-        "exponent_expected": _num(c.exponent_expected),
-        "prefactor_fit_ci": _pair(c.prefactor_fit_ci),
-        "prefactor_theory_rel_err": _num(c.prefactor_theory_rel_err),
-        "prefactor_ratio": _num(c.prefactor_ratio),
-        "prefactor_placeholder": c.prefactor_placeholder,
-        "coefficient_fit": _num(c.coefficient_fit),
-        "in_published_range": c.in_published_range,
-        "delta_aic": _num(c.delta_aic),
-        "checks": {
-            "exponent": c.exponent_ok,
-            "prefactor": c.prefactor_ok,
-            "numbers": c.numbers_ok,
-        },
-        "numbers_reason": c.reason,
-        "note": c.note,
-    }
-
-
-def _numbers_dict(n) -> dict:
-    return {
-        "ohnesorge": _num(n.ohnesorge),
-        "bond": _num(n.bond),
-        "viscosity_ratio": _num(n.viscosity_ratio),
-        "ohnesorge_outer": _num(n.ohnesorge_outer),
-        "density_ratio": _num(n.density_ratio),
-        "viscous_time_s": _num(n.viscous_time),
-        "inertial_time_s": _num(n.inertial_time),
-        "capillary_length_m": _num(n.capillary_length),
-        "capillary_speed_m_per_s": _num(n.capillary_speed),
-    }
-
-
-def verdict_to_dict(verdict) -> dict:
-    """The ``fit.json`` structure of docs/architecture.md, plus extra keys (JSON-ready).
-
-    Keys: ``numbers``, ``candidates`` (regime, exponent_theory,
-    prefactor_theory, prefactor_fit, exponent_fit, exponent_ci, window_s,
-    aic, consistent, and more), ``dominant``, ``crossovers`` (from, to,
-    time_s, radius_m, predicted_time_s, and more); extra: ``success``,
-    ``reason``, ``decidable``, ``sentence``, ``regimes``, ``two_regime``,
-    ``delta_aic``, ``contact``, ``pivot``, ``local_exponent``, ``models``,
-    ``settings``. SI units; times count from the contact instant
-    (``contact.t0_s`` itself counts from the first frame).
-    """
-    out = {
-        "success": verdict.success,
-        "reason": verdict.reason,
-        "decidable": verdict.decidable,
-        "sentence": verdict.sentence,
-        "numbers": {} if verdict.numbers is None else _numbers_dict(verdict.numbers),
-        "candidates": [_candidate_dict(c) for c in verdict.candidates],
-        "dominant": None,
-        "crossovers": [],
-    }
-    if not verdict:
-        return out
-    d = verdict.dominant
-    if d is not None:
-        out["dominant"] = {
-            "regime": d.key,
-            "exponent_theory": d.exponent_theory,
-            "exponent_fit": _num(d.exponent_fit),
-            "exponent_ci": _pair(d.exponent_ci),
-            "prefactor_fit": _num(d.prefactor_fit),
-            "prefactor_theory": _num(d.prefactor_theory),
-            "window_s": _pair(d.window),
-            "segment": d.segment,
-            "consistent": d.consistent,
-        }
-    out["crossovers"] = [
-        {
-            "from": x.early,
-            "to": x.late,
-            "time_s": _num(x.time),
-            "radius_m": _num(x.radius),
-            "predicted_time_s": _num(x.predicted_time),
-            "time_ci_s": _pair(x.time_ci),
-            "predicted_formula": x.predicted_formula,
-            "sharpness": _num(x.sharpness),
-            "delta_aic": _num(x.delta_aic),
-            "model": x.model,
-        }
-        for x in verdict.crossovers
-    ]
-    out["regimes"] = list(verdict.regimes)
-    out["two_regime"] = verdict.two_regime
-    out["delta_aic"] = _num(verdict.delta_aic)
-    out["model_reason"] = verdict.model_reason
-    out["contact"] = {
-        "t0_s": _num(verdict.t0),
-        "bracket_s": _pair(verdict.t0_bracket),
-        "fixed": verdict.t0_fixed,
-        "note": "t0_s and bracket_s count from the first frame; all other times from t0",
-    }
-    out["n_points"] = verdict.n_points
-    out["time_range_s"] = _pair(verdict.time_range)
-    fit = getattr(d, "fit", None) if d is not None else None
-    if fit is not None and hasattr(fit, "pivot_time"):
-        out["pivot"] = {
-            "time_s": _num(fit.pivot_time),
-            "radius_m": _num(fit.pivot_radius),
-            "radius_ci_m": _pair(fit.pivot_radius_ci),
-            "exponent": _num(fit.exponent),
-            "prefactor_raw": _num(fit.prefactor),
-            "correlation_raw": _num(fit.correlation_raw),
-            "correlation_pivot": _num(fit.correlation_pivot),
-        }
-    loc = verdict.local
-    if loc:
-        out["local_exponent"] = {
-            "method": loc.method,
-            "time_s": [_num(v) for v in loc.time],
-            "exponent": [_num(v) for v in loc.exponent],
-            "lower": [_num(v) for v in loc.lower],
-            "upper": [_num(v) for v in loc.upper],
-            "plateaus": [
-                {"start_s": a, "end_s": b, "exponent": n} for a, b, n in exponent_plateaus(loc)
-            ],
-        }
-    out["models"] = [
-        {"model": m.name, "regimes": m.regimes, "aic": _num(m.aic), "n_params": m.n_params}
-        for m in verdict.models
-    ]
-    settings = dict(verdict.settings)
-    settings["prefactor_band"] = list(settings.get("prefactor_band", ()))
-    out["settings"] = settings
-    return out
 
 
 def _mark(flag) -> str:

@@ -1,0 +1,153 @@
+"""One recording of a campaign: analysed into its folder, and its catalogue row.
+
+:func:`run_task` is what every way of running a batch (this process, a
+process pool, a Dask cluster) calls for each recording. The outputs are made
+in a hidden work folder ``OUT/.work-<label>-*`` and renamed to
+``OUT/<label>`` when done, so an interrupted batch leaves either a
+recording's whole folder or none of it. A recording that fails gets a row
+with its error.
+"""
+
+from __future__ import annotations
+
+import dataclasses
+import hashlib
+import json
+import os
+import shutil
+import tempfile
+import time
+from datetime import UTC, datetime
+from pathlib import Path
+
+from .._version import __version__
+from ..errors import DropkinError
+from ..pipeline import analyze_into, open_source
+from ._manifest import Task
+from ._row import sample_columns, series_columns, verdict_columns
+
+__all__ = ["run_task", "settings_sha256", "input_fingerprint", "WORK_PREFIX", "OLD_PREFIX"]
+
+WORK_PREFIX = ".work-"
+OLD_PREFIX = ".old-"
+
+
+def input_fingerprint(source) -> list:
+    """Name, size and modification time of every file of a recording.
+
+    A cheap stand-in for reading the whole recording: when it is unchanged, the
+    input hash stored in the catalogue is reused.
+    """
+    path = Path(source)
+    files = sorted(p for p in path.iterdir() if p.is_file()) if path.is_dir() else [path]
+    out = []
+    for f in files:
+        st = f.stat()
+        out.append([f.name, st.st_size, st.st_mtime_ns])
+    return out
+
+
+def settings_sha256(experiment, settings) -> str:
+    """SHA-256 of everything but the frames that decides a recording's result.
+
+    That is the experiment as merged (every value, in SI) and the analysis
+    settings that change outputs (not the number of jobs or the chunk size).
+    A background image enters by its content.
+    """
+    exp = dataclasses.asdict(experiment)
+    exp.pop("path", None)
+    analysis = settings.result_settings()
+    if analysis["background"] is not None:
+        with open(analysis["background"], "rb") as handle:
+            analysis["background"] = hashlib.file_digest(handle, "sha256").hexdigest()
+    text = json.dumps({"experiment": exp, "analysis": analysis}, sort_keys=True)
+    return hashlib.sha256(text.encode("utf-8")).hexdigest()
+
+
+def _now() -> str:
+    return datetime.now(UTC).isoformat(timespec="milliseconds")
+
+
+def _publish(work: Path, target: Path) -> None:
+    """Put a finished work folder in place of `target` (two renames)."""
+    old = None
+    if target.exists():
+        old = target.with_name(f"{OLD_PREFIX}{target.name}-{os.getpid()}-{time.time_ns()}")
+        os.replace(target, old)
+    os.replace(work, target)
+    if old is not None:
+        shutil.rmtree(old, ignore_errors=True)
+
+
+def _measured_sha256(folder: Path) -> str | None:
+    """The input hash a measurement wrote before its analysis failed, if any."""
+    try:
+        info = json.loads((folder / "measure.json").read_text(encoding="utf-8"))
+        return info["provenance"]["sha256"]
+    except (OSError, ValueError, KeyError, TypeError):
+        return None
+
+
+def run_task(task: Task, out_dir) -> dict:
+    """Analyse one recording of a campaign into ``OUT/<label>``; its catalogue row.
+
+    Never raises for the recording's own faults: a :class:`DropkinError` (and,
+    so that one bad recording cannot stop a campaign, any other exception)
+    becomes a row with status ``failed`` and the message. Whatever was written
+    (the frames measured before a failure, say) is published all the same.
+    """
+    out_dir = Path(out_dir)
+    start, clock = _now(), time.perf_counter()
+    row: dict = {
+        "label": task.label,
+        "source": task.source,
+        "dropkin_version": __version__,
+        "output": task.label,
+        "started_utc": start,
+    }
+    work = Path(tempfile.mkdtemp(prefix=f"{WORK_PREFIX}{task.label}-", dir=out_dir))
+    try:
+        row["input_stat"] = input_fingerprint(task.source)
+        exp, _ = open_source(
+            task.source,
+            experiment=task.experiment_file,
+            overrides=task.overrides,
+            origin="campaign manifest",
+        )
+        row["settings_sha256"] = settings_sha256(exp, task.settings)
+        row["settings"] = task.settings.result_settings()
+        row.update(sample_columns(exp))
+        result = analyze_into(
+            task.source,
+            work,
+            task.settings,
+            experiment=task.experiment_file,
+            overrides=task.overrides,
+            origin="campaign manifest",
+            experiment_copy=True,
+            published_dir=out_dir / task.label,
+        )
+        row.update(sample_columns(result.experiment))
+        row.update(series_columns(result.series))
+        row.update(verdict_columns(result.verdict))
+        if result.verdict:
+            row["status"] = "complete"
+        else:
+            row["status"], row["error"] = "failed", f"no verdict: {result.verdict.reason}"
+    except DropkinError as exc:
+        row["status"], row["error"] = "failed", str(exc)
+        row["input_sha256"] = _measured_sha256(work)
+    except Exception as exc:  # noqa: BLE001 - one recording must not stop a campaign
+        row["status"] = "failed"
+        row["error"] = f"internal error, please report it: {type(exc).__name__}: {exc}"
+        row["error"] = row["error"].replace("\n", " ")
+    except BaseException:  # interrupted: a partial folder is never published
+        shutil.rmtree(work, ignore_errors=True)
+        raise
+    if any(work.iterdir()):
+        _publish(work, out_dir / task.label)
+    else:
+        shutil.rmtree(work, ignore_errors=True)
+    row["finished_utc"] = _now()
+    row["seconds"] = round(time.perf_counter() - clock, 3)
+    return row

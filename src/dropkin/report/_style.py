@@ -1,0 +1,103 @@
+"""The figures' style and the number helpers the figures and the page share.
+
+Every figure is one journal column wide (3.4 in), fonts of 8 pt, written as a
+300 dpi PNG and as an SVG. Colours come from the Okabe–Ito palette, which
+colour-blind readers can tell apart; each series also has its own line style
+or marker, so the figures survive a grey-scale print.
+
+matplotlib is imported inside the functions (the command line stays fast) and
+only through `matplotlib.figure.Figure`, without pyplot, so no global state is
+touched beyond a temporary `matplotlib.rc_context`.
+"""
+
+from __future__ import annotations
+
+import math
+from pathlib import Path
+
+from .._atomic import atomic_path
+
+__all__ = ["OKABE_ITO"]
+
+#: The Okabe–Ito colour-blind-safe palette (name → hex).
+OKABE_ITO = {
+    "black": "#000000",
+    "orange": "#E69F00",
+    "sky blue": "#56B4E9",
+    "bluish green": "#009E73",
+    "yellow": "#F0E442",
+    "blue": "#0072B2",
+    "vermillion": "#D55E00",
+    "reddish purple": "#CC79A7",
+}
+_CYCLE = ("vermillion", "bluish green", "orange", "reddish purple", "sky blue")
+_DASHES = ("--", (0, (5, 1.5, 1, 1.5)), ":", (0, (3, 1, 1, 1, 1, 1)), (0, (8, 2)))
+_GREY = "#9A9A9A"
+
+_WIDTH_IN = 3.4
+_DPI = 300
+_RC = {
+    "font.size": 8,
+    "axes.labelsize": 8,
+    "axes.titlesize": 8,
+    "legend.fontsize": 7,
+    "xtick.labelsize": 7,
+    "ytick.labelsize": 7,
+    "lines.linewidth": 1.2,
+    "axes.linewidth": 0.6,
+    "xtick.major.width": 0.6,
+    "ytick.major.width": 0.6,
+    "legend.frameon": False,
+    "svg.hashsalt": "dropkin",
+    "savefig.bbox": "tight",
+    "savefig.pad_inches": 0.02,
+}
+
+
+def _finite(value) -> bool:
+    return isinstance(value, (int, float)) and not isinstance(value, bool) and math.isfinite(value)
+
+
+def _num(value) -> float | None:
+    """A number of a record as a float; None where it is None or not finite.
+
+    The records hold NaN or None where there is no value, as their files hold
+    null: the figures and the page treat both alike.
+    """
+    if value is None:
+        return None
+    value = float(value)
+    return value if math.isfinite(value) else None
+
+
+def _exponent_text(n) -> str:
+    for num, den in ((1, 2), (1, 3), (2, 3), (1, 4), (1, 8), (1, 10), (1, 7)):
+        if _finite(n) and abs(n - num / den) < 1e-9:
+            return f"{num}/{den}"
+    return f"{n:.3g}" if _finite(n) else "?"
+
+
+def _log_axis(axis):
+    """Log scale with plain tick labels at 1, 2, 5 × 10^k (no minor labels)."""
+    from matplotlib.ticker import FuncFormatter, LogLocator, NullFormatter
+
+    axis.set_major_locator(LogLocator(base=10, subs=(1.0, 2.0, 5.0)))
+    axis.set_major_formatter(FuncFormatter(lambda v, _pos: f"{v:g}"))
+    axis.set_minor_formatter(NullFormatter())
+
+
+def _new_figure(height):
+    from matplotlib.figure import Figure
+
+    return Figure(figsize=(_WIDTH_IN, height), dpi=_DPI, layout="constrained")
+
+
+def _save(fig, plots_dir: Path, stem: str) -> list[Path]:
+    written = []
+    for ext in ("png", "svg"):
+        path = plots_dir / f"{stem}.{ext}"
+        meta = {"Software": None} if ext == "png" else {"Date": None}
+        with atomic_path(path) as tmp:
+            fig.savefig(tmp, format=ext, dpi=_DPI, metadata=meta)
+        written.append(path)
+    return written
