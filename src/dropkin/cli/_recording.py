@@ -28,7 +28,7 @@ MEASURE_SETTINGS = ("roi", "threshold", "background", "jobs", "chunk_size", "ove
 @click.pass_context
 def info_command(ctx, source, as_json, **options):
     """Describe the recording SOURCE (a folder of frames, a TIFF stack or a video)."""
-    from ..liquids._library import resolve_fluids
+    from ..liquids import resolve_fluids
     from ..pipeline._steps import open_source
     from ..recording._describe import describe, format_description
 

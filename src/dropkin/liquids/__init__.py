@@ -1,18 +1,57 @@
-"""The liquid library: built-in liquids and user files, with sources, validity ranges
-and stated uncertainties, resolved to SI values for an experiment."""
+"""The liquid library: material values as functions of temperature, with sources.
 
-from ._library import DEFAULT_TEMPERATURE as DEFAULT_TEMPERATURE
-from ._library import LiquidInfo as LiquidInfo
-from ._library import LiquidLibrary as LiquidLibrary
-from ._library import LiquidProperties as LiquidProperties
-from ._library import UserLiquid as UserLiquid
-from ._library import liquid_catalogue as liquid_catalogue
-from ._library import liquid_info as liquid_info
-from ._library import liquid_library_from_toml as liquid_library_from_toml
-from ._library import liquid_names as liquid_names
-from ._library import liquid_properties as liquid_properties
-from ._library import load_liquid_library as load_liquid_library
-from ._library import resolve_fluids as resolve_fluids
+Each built-in liquid has a validity range and refuses temperatures outside
+it; every value carries the name of the formula or table it comes from (see
+``LiquidProperties.sources``). Users add their own liquids in a TOML file
+(:func:`load_liquid_library`); an entry there takes precedence over a
+built-in liquid of the same name.
+
+Built-in liquids (surface tensions are against air or the liquid's vapour):
+
+- ``water``: IAPWS R1-76(2014) surface tension, Kell (1975) density, IAPWS
+  2008 viscosity; 0–100 °C at 0.1 MPa.
+- ``glycerol-water`` (needs ``glycerol_mass_fraction``) and ``glycerol``:
+  Cheng (2008) viscosity, Volk & Kähler (2018) density, surface tension from
+  memory of a 1963 table (±1.5 mN/m); 0–100 °C.
+- ``ethanol``: two-point forms through handbook and CoolProp values; 0–60 °C.
+- ``silicone-oil-10cSt``, ``-100cSt``, ``-1000cSt``: nominal grades (±5–10 %),
+  15–35 °C. Enter measured values when you have them.
+- ``air``: Sutherland's law and the ideal gas at 101.325 kPa; -40–150 °C;
+  the default surrounding medium.
+
+:func:`resolve_fluids` fills the missing values of an experiment's liquid
+and medium from here; values written in the experiment file always win.
+
+This package's public face. The lookup and the values at a
+temperature are in :mod:`._lookup`, the built-in liquids in :mod:`._builtin`
+(formulas in :mod:`._water` and :mod:`._mixtures`), a user's own file in
+:mod:`._user`, and the completion of an experiment's fluids in :mod:`._resolve`.
+
+Examples
+--------
+>>> water = liquid_properties("water", 293.15)
+>>> round(water.surface_tension * 1e3, 2), round(water.density, 1)
+(72.74, 998.2)
+>>> water.sources["surface_tension"]
+'IAPWS R1-76(2014)'
+>>> mix = liquid_properties("glycerol-water", 293.15, glycerol_mass_fraction=0.8)
+>>> round(mix.viscosity * 1e3, 2)
+60.86
+"""
+
+from ._lookup import LiquidInfo as LiquidInfo
+from ._lookup import LiquidProperties as LiquidProperties
+from ._lookup import celsius_text as celsius_text
+from ._lookup import liquid_catalogue as liquid_catalogue
+from ._lookup import liquid_info as liquid_info
+from ._lookup import liquid_names as liquid_names
+from ._lookup import liquid_properties as liquid_properties
+from ._resolve import DEFAULT_TEMPERATURE as DEFAULT_TEMPERATURE
+from ._resolve import resolve_fluids as resolve_fluids
+from ._user import LiquidLibrary as LiquidLibrary
+from ._user import UserLiquid as UserLiquid
+from ._user import liquid_library_from_toml as liquid_library_from_toml
+from ._user import load_liquid_library as load_liquid_library
 
 __all__ = [
     "DEFAULT_TEMPERATURE",
@@ -27,4 +66,5 @@ __all__ = [
     "liquid_library_from_toml",
     "load_liquid_library",
     "resolve_fluids",
+    "celsius_text",
 ]

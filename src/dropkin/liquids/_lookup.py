@@ -204,7 +204,7 @@ def _user_sources(user: UserLiquid) -> dict[str, str]:
     }
 
 
-def _celsius(kelvin: float) -> str:
+def celsius_text(kelvin: float) -> str:
     return f"{kelvin - ZERO_CELSIUS:.4g} °C"
 
 
@@ -217,9 +217,9 @@ def _check_temperature(name, temperature, low, high, *, key):
         )
     if low is not None and not low <= temperature <= high:
         raise ExperimentError(
-            f"{name} at {_celsius(temperature)} is outside the range of its values",
+            f"{name} at {celsius_text(temperature)} is outside the range of its values",
             key=key,
-            expected=f"a temperature from {_celsius(low)} to {_celsius(high)}",
+            expected=f"a temperature from {celsius_text(low)} to {celsius_text(high)}",
         )
 
 

@@ -7,7 +7,7 @@ prediction can show what was assumed.
 
 from __future__ import annotations
 
-from ._library import _celsius, liquid_info
+from ._lookup import celsius_text, liquid_info
 
 __all__ = ["fill_notes"]
 
@@ -44,7 +44,7 @@ def fill_notes(before, after, *, user_library=None) -> list[str]:
             if name == "temperature":
                 given = section == "medium" and before.liquid.temperature is not None
                 how = "the liquid's" if given else "assumed"
-                celsius = _celsius(new.temperature)
+                celsius = celsius_text(new.temperature)
                 notes.append(f"{section}.temperature not given: {celsius} ({how})")
             else:
                 notes.append(

@@ -6,7 +6,7 @@ one line per liquid (the catalogue) or per property (one liquid).
 
 from __future__ import annotations
 
-from ._library import _celsius
+from ._lookup import celsius_text
 
 __all__ = ["catalogue_to_dicts", "format_catalogue", "properties_to_dict", "format_properties"]
 
@@ -35,7 +35,7 @@ def format_catalogue(entries) -> str:
         if e.temperature_min is None:
             span = "any temperature"
         else:
-            span = f"{_celsius(e.temperature_min)} to {_celsius(e.temperature_max)}"
+            span = f"{celsius_text(e.temperature_min)} to {celsius_text(e.temperature_max)}"
         lines.append(f"{e.name.ljust(width)}  {span:<20}  {e.description}")
     return "\n".join(lines)
 
@@ -67,7 +67,7 @@ def format_properties(props, *, assumed_temperature: bool = False) -> str:
     if props.glycerol_mass_fraction is not None:
         what += f", glycerol mass fraction {props.glycerol_mass_fraction:g}"
     note = " (not given: 20 °C assumed)" if assumed_temperature else ""
-    lines = [f"{what} at {_celsius(props.temperature)}{note}"]
+    lines = [f"{what} at {celsius_text(props.temperature)}{note}"]
     sigma = "—" if props.surface_tension is None else f"{props.surface_tension * 1e3:.4g} mN/m"
     rows = (
         ("surface tension", sigma, props.sources.get("surface_tension", "")),

@@ -62,7 +62,7 @@ def check_sample(experiment: Experiment) -> Experiment:
     ExperimentError
         Naming the experiment file and the key.
     """
-    from ..liquids._library import resolve_fluids
+    from ..liquids import resolve_fluids
     from ..scaling import sample_numbers_from_experiment
 
     full = resolve_fluids(experiment)
@@ -105,7 +105,7 @@ def load_measurement(radius_csv, *, experiment=None, overrides=None) -> Measurem
     DropkinError
         If a file cannot be read or the sample is not described.
     """
-    from ..liquids._library import resolve_fluids
+    from ..liquids import resolve_fluids
 
     path = Path(radius_csv)
     series = read_series(path)

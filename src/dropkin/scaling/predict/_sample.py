@@ -12,8 +12,7 @@ import math
 from dataclasses import dataclass
 
 from ...experiment import Experiment, load_experiment
-from ...liquids import LiquidLibrary, load_liquid_library, resolve_fluids
-from ...liquids._library import _celsius
+from ...liquids import LiquidLibrary, celsius_text, load_liquid_library, resolve_fluids
 from ...liquids._notes import fill_notes
 from ..regimes._numbers import sample_numbers_from_experiment
 from ._predict import Prediction, predict
@@ -43,7 +42,7 @@ class SamplePrediction:
         if liquid.glycerol_mass_fraction is not None:
             text += f" ({100 * liquid.glycerol_mass_fraction:.4g} wt % glycerol)"
         if liquid.temperature is not None:
-            text += f" at {_celsius(liquid.temperature)}"
+            text += f" at {celsius_text(liquid.temperature)}"
         return f"{text} in {medium.name or 'a medium given by value'}"
 
     def to_dict(self) -> dict:
