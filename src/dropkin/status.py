@@ -27,12 +27,15 @@ __all__ = [
     "UNRESOLVED",
     "NOT_FOUND",
     "AT_EDGE",
+    "IN_CONTACT",
     "status_names",
 ]
 
 #: Allowed per-frame statuses; the integer codes below index this tuple.
 STATUSES = ("ok", "before-contact", "unresolved", "not-found", "at-edge")
 OK, BEFORE_CONTACT, UNRESOLVED, NOT_FOUND, AT_EDGE = range(len(STATUSES))
+#: The statuses of frames that show the drops in contact.
+IN_CONTACT = ("ok", "unresolved", "at-edge")
 
 
 def status_names(codes) -> tuple[str, ...]:

@@ -33,11 +33,10 @@ from dataclasses import dataclass
 
 import numpy as np
 
+from ..status import IN_CONTACT
 from ._extrapolate import from_gap, from_radius
 
 __all__ = ["ContactEstimate", "estimate_contact"]
-
-_IN_CONTACT = ("ok", "unresolved", "at-edge")
 
 
 @dataclass(frozen=True)
@@ -251,7 +250,7 @@ def estimate_contact(
     time = np.asarray(time, dtype=np.float64)
     radius = np.asarray(radius, dtype=np.float64)
     radius_err = np.asarray(radius_err, dtype=np.float64)
-    touching = np.array([s in _IN_CONTACT for s in status], dtype=bool)
+    touching = np.array([s in IN_CONTACT for s in status], dtype=bool)
     before = np.array([s == "before-contact" for s in status], dtype=bool)
     first = next((int(i) for i in np.nonzero(touching)[0] if touching[i : i + 3].all()), None)
     if first is None:
