@@ -5,6 +5,7 @@ from __future__ import annotations
 import csv
 import io
 import json
+import re
 import struct
 import xml.etree.ElementTree as ET
 import zlib
@@ -15,8 +16,10 @@ import pytest
 
 # PNG: ISO/IEC 15948 (the signature, then length-type-data-CRC chunks ending in IEND).
 PNG_SIGNATURE = b"\x89PNG\r\n\x1a\n"
-# The columns of radius.csv, as docs/architecture.md fixes them.
+# The columns of radius.csv, as docs/architecture.md fixes them: these first,
+# then only radii at other edge levels (radius_level_<level>_m).
 RADIUS_COLUMNS = "frame,time_s,since_contact_s,radius_m,radius_err_m,status"
+LEVEL_COLUMN = re.compile(r"radius_level_0?\.[0-9]+_m")
 
 
 def png_problem(data: bytes) -> str:
@@ -57,6 +60,15 @@ class _Tags(HTMLParser):
             self.closed_html = True
 
 
+def _radius_header(header) -> bool:
+    """The header of radius.csv: the contract's columns, then edge-level radii only."""
+    first = len(RADIUS_COLUMNS.split(","))
+    rest = header[first:]
+    return ",".join(header[:first]) == RADIUS_COLUMNS and all(
+        LEVEL_COLUMN.fullmatch(name) for name in rest
+    )
+
+
 def file_problem(path: Path) -> str:
     """Why an output file is not complete ('' if it is), judged by its kind.
 
@@ -84,7 +96,7 @@ def file_problem(path: Path) -> str:
         widths = {len(r) for r in rows if r}
         if len(widths) != 1:
             return f"rows of {sorted(widths)} fields"
-        if path.name == "radius.csv" and ",".join(rows[0]) != RADIUS_COLUMNS:
+        if path.name == "radius.csv" and not _radius_header(rows[0]):
             return f"header {rows[0]}"
         return "" if text.endswith("\n") else "no final newline"
     if suffix == ".svg":

@@ -238,7 +238,9 @@ def test_measure_command_writes_the_contract(tmp_path):
     result = CliRunner().invoke(main, ["measure", str(src), "-o", str(out), "--overlays", "4"])
     assert result.exit_code == 0, result.output
     header = (out / "radius.csv").read_text().splitlines()[0]
-    assert tuple(header.split(",")) == CSV_COLUMNS
+    # The contract's columns first, unchanged; then the radius at the two other
+    # edge levels (default: the main level 0.5 plus and minus 0.1).
+    assert tuple(header.split(",")) == (*CSV_COLUMNS, "radius_level_0.4_m", "radius_level_0.6_m")
     csv = read_radius_csv(out / "radius.csv")
     assert len(csv.frame) == 30
     # since_contact_s = time_s - contact_time_s, empty before contact.
@@ -261,6 +263,8 @@ def test_measure_command_writes_the_contract(tmp_path):
     ):
         assert key in info
     assert info["frames"] == 30 and info["geometry"] == "coalescence"
+    assert info["edge_levels"] == [0.4, 0.5, 0.6] and info["edge_level"] == 0.5
+    assert sorted(csv.level_radii) == [0.4, 0.6]
     # Provenance: SHA-256 of the frame files in order (hashlib as the reference).
     digest = hashlib.sha256()
     for f in sorted(src.glob("frame_*.png")):

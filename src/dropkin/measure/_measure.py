@@ -44,6 +44,8 @@ class _PixelFrames:
         Gap before contact (px).
     angles : (F, 2) ndarray or None
         Apparent contact angles (degrees), side-view spreading only.
+    level_radius : (F, L) ndarray
+        The radius (px) at each of the other edge levels.
     """
 
     radius: np.ndarray
@@ -52,6 +54,7 @@ class _PixelFrames:
     edges: np.ndarray
     gap: np.ndarray
     angles: np.ndarray | None
+    level_radius: np.ndarray
 
 
 def measure(
@@ -108,7 +111,8 @@ def measure(
     status, early = relabel_before_contact(recording.times, status_names(px.codes), contact.time)
     radius, radius_err, edges = px.radius.copy(), px.radius_err.copy(), px.edges.copy()
     angles = None if px.angles is None else px.angles.copy()
-    for values in (radius, radius_err, edges, angles):
+    level_radius = px.level_radius.copy()
+    for values in (radius, radius_err, edges, angles, level_radius):
         if values is not None:
             values[early] = np.nan
     if options.roi is not None:
@@ -129,6 +133,9 @@ def measure(
         provenance=_provenance(recording, options),
         details=_details(recording, experiment, prep, options, contact, pixel),
         angles=angles,
+        level_radii={
+            level: level_radius[:, i] * pixel for i, level in enumerate(options.other_levels)
+        },
     )
     extras = {"preparation": prep, "contact": contact}
     if keep_edges:
@@ -167,6 +174,7 @@ def _collect(recording, prep: Preparation, options, progress) -> _PixelFrames:
     gap = np.full(n, np.nan)
     side_spreading = prep.spreading is not None and prep.spreading.view == "side"
     angles = np.full((n, 2), np.nan) if side_spreading else None
+    level_radius = np.full((n, len(options.other_levels)), np.nan)
     for start, result in stream(recording, prep, options, progress):
         stop = start + len(result.radius)
         radius[start:stop] = result.radius
@@ -176,7 +184,8 @@ def _collect(recording, prep: Preparation, options, progress) -> _PixelFrames:
         gap[start:stop] = result.gap
         if angles is not None:
             angles[start:stop] = result.angles
-    return _PixelFrames(radius, radius_err, codes, edges, gap, angles)
+        level_radius[start:stop] = result.level_radius
+    return _PixelFrames(radius, radius_err, codes, edges, gap, angles, level_radius)
 
 
 def _drop_radii_px(prep) -> np.ndarray:
@@ -213,6 +222,7 @@ def _details(recording, experiment, prep, options, contact, pixel: float) -> dic
         "contact_bracket_s": None if contact.bracket is None else list(contact.bracket),
         "contact_method": contact.method,
         "edge_level": options.level,
+        "edge_levels": sorted([options.level, *options.other_levels]),
         "noise_transmission": prep.noise,
         "edge_blur_px": prep.blur,
         "unresolved_criterion": _unresolved_criterion(prep, options),
@@ -232,6 +242,7 @@ def _provenance(recording, options) -> dict:
             "chunk_size": options.chunk_size,
             "jobs": options.jobs,
             "gap_blurs": options.gap_blurs,
+            "level_spread": options.level_spread,
             "background": "given image" if options.background is not None else "fitted",
         },
     }

@@ -35,6 +35,12 @@ class MeasureOptions:
         An image of the empty field of view (full frame), used as the
         backlight instead of the model fitted to each recording's first
         frames.
+    level_spread : float
+        Every frame is measured in the same pass at two more edge levels,
+        ``level - level_spread`` and ``level + level_spread`` (each clipped
+        to [0.05, 0.95]; a level equal to `level` after clipping is
+        dropped), for the systematic interval of the fit; 0 measures at
+        `level` only. See :attr:`other_levels`.
     """
 
     roi: tuple[int, int, int, int] | None = None
@@ -43,6 +49,18 @@ class MeasureOptions:
     jobs: int = 1
     gap_blurs: float = 3.0
     background: np.ndarray | None = dataclasses.field(default=None, repr=False, compare=False)
+    level_spread: float = 0.1
+
+    @property
+    def other_levels(self) -> tuple[float, ...]:
+        """The other edge levels measured besides `level`, in increasing order."""
+        if not self.level_spread > 0:
+            return ()
+        levels = {
+            round(min(max(self.level + sign * self.level_spread, 0.05), 0.95), 12)
+            for sign in (-1.0, 1.0)
+        }
+        return tuple(sorted(v for v in levels if v != round(self.level, 12)))
 
 
 #: The settings used when none are given.
@@ -87,5 +105,12 @@ def checked_options(options: MeasureOptions, shape) -> MeasureOptions:
             f"is {np.shape(options.background)}, the frames are {shape}",
             key="--background",
             expected="an image of the same size as the frames",
+        )
+    if not 0.0 <= options.level_spread < 1.0:
+        raise ExperimentError(
+            "is not between 0 and 1",
+            key="level_spread",
+            value=options.level_spread,
+            expected="a fraction of rim-to-background, e.g. 0.1",
         )
     return options

@@ -55,6 +55,7 @@ def _chunk_result(frames, prep, options, cache, hint=None):
             noise=prep.noise,
             level=options.level,
             gap_blurs=options.gap_blurs,
+            levels=options.other_levels,
         )
     return vision.measure_necks(
         frames,
@@ -67,6 +68,7 @@ def _chunk_result(frames, prep, options, cache, hint=None):
         gap_blurs=options.gap_blurs,
         cache=cache,
         hint=hint,
+        levels=options.other_levels,
     )
 
 

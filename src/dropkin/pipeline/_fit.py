@@ -167,5 +167,6 @@ def fit_measurement(measurement: Measurement, *, t0=None, seed: int = 0, bootstr
         t0=t0,
         seed=seed,
         bootstrap=bootstrap,
+        radius_levels=dict(series.level_radii) or None,
     )
     return verdict, numbers

@@ -63,6 +63,11 @@ class NeckResult:
         transmission summed along the axis, which blur and pixel averaging
         conserve, so that gaps narrower than a pixel still show. About zero
         (within noise) once the drops touch.
+    level_radius : (K, L) ndarray
+        The neck radius (px) at each of the other edge levels asked for (L of
+        them, in their order; L = 0 if none), on the narrowest column of the
+        main level and its neighbours; NaN where the main level has no
+        radius or the crossings at that level are not all found.
     """
 
     radius: np.ndarray
@@ -71,6 +76,7 @@ class NeckResult:
     edges: np.ndarray
     status: np.ndarray
     gap: np.ndarray
+    level_radius: np.ndarray
 
 
 @dataclass(frozen=True)
@@ -112,21 +118,69 @@ def _edge_outward(side, valid_side, level, pos) -> _Edges:
     bright = side >= level
     if not valid_side.all():
         bright &= valid_side[:, :, None]
-    bright[0] = False
-    j = np.argmax(bright, axis=0)  # (S, K): first bright sample, 0 if none
-    none = j == 0
+    j, none, dist, rise, spacing = _first_crossing(side, bright, level, pos)
     outside = ~valid_side
     first_out = np.where(outside.any(axis=0), np.argmax(outside, axis=0), side.shape[0])
     left_frame = np.where(none, first_out[:, None] < side.shape[0], first_out[:, None] < j)
+    coarse = spacing > 1.0 + 1e-9
+    border = pos[np.maximum(first_out - 1, 0)]
+    return _Edges(dist, rise / spacing, none, left_frame, coarse, border)
+
+
+def _first_crossing(side, bright, level, pos):
+    """The first sample of `bright` going outward (row 0, on the axis, never
+    counts) and the sub-pixel crossing of `level` before it, linearly
+    interpolated: (j, none, dist, rise, spacing), each (S, K) (j at least 1)."""
+    bright[0] = False
+    j = np.argmax(bright, axis=0)  # (S, K): first bright sample, 0 if none
+    none = j == 0
     j = np.maximum(j, 1)
     t_in = np.take_along_axis(side, (j - 1)[None], axis=0)[0]
     t_out = np.take_along_axis(side, j[None], axis=0)[0]
     rise = np.maximum(t_out - t_in, 1e-6)
     spacing = pos[j] - pos[j - 1]
     dist = pos[j - 1] + np.clip((level - t_in) / rise, 0.0, 1.0) * spacing
-    coarse = spacing > 1.0 + 1e-9
-    border = pos[np.maximum(first_out - 1, 0)]
-    return _Edges(dist, rise / spacing, none, left_frame, coarse, border)
+    return j, none, dist, rise, spacing
+
+
+def _level_widths(t, valid, c, m, level, pos, allow_coarse):
+    """Bridge width (3, K) at another edge level on the columns m - 1, m, m + 1
+    of each frame (the main level's narrowest and its neighbours), infinite
+    where a crossing is missing, coarse, or the axis is not dark at `level`.
+
+    `t` is the (U, S, K) transmission, `valid` (U, S), `c` the axis row, `pos`
+    the rows' distances from the axis on one side.
+    """
+    n_s, k = t.shape[1], t.shape[2]
+    cols = np.clip(m[None, :] + np.arange(-1, 2)[:, None], 0, n_s - 1)  # (3, K)
+    frames = np.arange(k)[None, :]
+    width = np.zeros((3, k))
+    bad = (cols != m[None, :] + np.arange(-1, 2)[:, None]) | ~(t[c][cols, frames] < level)
+    for rows in (slice(c, None), slice(c, None, -1)):
+        side = t[rows][:, cols, frames]  # (H, 3, K)
+        inside = valid[rows][:, cols]
+        j, none, dist, _, spacing = _first_crossing(side, (side >= level) & inside, level, pos)
+        # The search leaves the frame before the crossing: no edge here.
+        left = np.where(inside.all(axis=0), False, np.argmax(~inside, axis=0) < j)
+        bad |= none | left
+        if not allow_coarse:
+            bad |= spacing > 1.0 + 1e-9
+        width += dist
+    return np.where(bad, np.inf, width)
+
+
+def _level_radius(t, valid, c, m, levels, pos, allow_coarse, measured):
+    """Neck radius (K, L) at each of `levels`: half the width at the parabola's
+    vertex through the three columns of :func:`_level_widths` (NaN where the
+    main level has no radius or the narrowest column is not measured)."""
+    k = t.shape[2]
+    out = np.full((k, len(levels)), np.nan)
+    rows, middle = np.arange(k), np.ones(k, dtype=np.intp)
+    for i, level in enumerate(levels):
+        width = _level_widths(t, valid, c, m, float(level), pos, allow_coarse)
+        w_min, _, w_ref = _vertex(width, middle, rows)
+        out[:, i] = np.where(measured & np.isfinite(w_min), 0.5 * w_ref, np.nan)
+    return out
 
 
 def gap_on_axis(on_axis, valid, s_step: float):
@@ -226,6 +280,7 @@ def neck_from_band(
     err_floor: float = 0.1,
     allow_coarse: bool = False,
     with_gap: bool = True,
+    levels=(),
 ) -> NeckResult:
     """Measure the neck in a chunk of frames sampled on a band.
 
@@ -253,6 +308,9 @@ def neck_from_band(
     with_gap : bool, optional
         Measure the gap on the axis (``gap`` is NaN otherwise); callers that
         measure it on a band of their own skip it.
+    levels : sequence of float, optional
+        Other edge levels at which the neck is measured too, on the same
+        samples (see ``level_radius`` in :class:`NeckResult`).
 
     Returns
     -------
@@ -294,4 +352,5 @@ def neck_from_band(
     radius_err[measured] = np.hypot(err, err_floor)[measured]
     s_neck[measured] = band.s[m[measured]] + offset[measured] * s_step
     edges = _neck_edges(band, s_neck, up.dist[m, rows], down.dist[m, rows], measured)
-    return NeckResult(radius, radius_err, s_neck, edges, status, gap_width)
+    others = _level_radius(t, band.valid, c, m, levels, band.u[c:], allow_coarse, measured)
+    return NeckResult(radius, radius_err, s_neck, edges, status, gap_width, others)

@@ -32,9 +32,11 @@ class _Bands:
         As for :func:`measure_necks` and :func:`neck_from_band`.
     cache : dict or None
         Bands and their illumination, kept between calls (a new dict if None).
+    levels : tuple of float
+        Other edge levels measured too (see :func:`neck_from_band`).
     """
 
-    def __init__(self, shape, pair, illumination, dark, noise, level, min_gap, cache):
+    def __init__(self, shape, pair, illumination, dark, noise, level, min_gap, cache, levels=()):
         self.shape = shape
         self.pair = pair
         self.illum = illumination[None]
@@ -43,6 +45,7 @@ class _Bands:
         self.level = level
         self.min_gap = min_gap
         self.cache = {} if cache is None else cache
+        self.levels = tuple(levels)
 
     def band(self, s_centre, s_half, u_lo, u_hi, step, sparse=None):
         """A band (cached) and the inverse of its illumination span: the axis,
@@ -80,6 +83,7 @@ class _Bands:
             min_gap=self.min_gap,
             allow_coarse=rough,
             with_gap=False,  # measured once, on a fixed stretch of the axis
+            levels=() if rough else self.levels,
         )
         ends = np.isin(result.s_neck, (band.s[0], band.s[-1]))
         return result, ends
@@ -97,6 +101,7 @@ def measure_necks(
     gap_blurs: float = 3.0,
     cache: dict | None = None,
     hint: float | None = None,
+    levels=(),
 ) -> NeckResult:
     """Neck radius in each frame of a chunk, looking only at a band around the neck.
 
@@ -137,6 +142,9 @@ def measure_necks(
         chunk's last one); it saves a look at the chunk's first frame. The
         result does not depend on it: every band samples the same grid, and
         frames whose edge falls outside the dense rows are measured again.
+    levels : sequence of float, optional
+        Other edge levels at which the neck is measured too, in the same
+        pass (``level_radius`` of the result; see :func:`neck_from_band`).
 
     Returns
     -------
@@ -146,7 +154,9 @@ def measure_necks(
     if frames.ndim != 3:
         raise ValueError(f"frames must be (K, M, N), got shape {frames.shape}")
     min_gap = gap_blurs * blur
-    bands = _Bands(frames.shape[1:], pair, illumination, dark, noise, level, min_gap, cache)
+    bands = _Bands(
+        frames.shape[1:], pair, illumination, dark, noise, level, min_gap, cache, levels
+    )
     r_small = float(min(pair.radii))
     full_s = 0.25 * r_small + 6.0
     full_u = 1.1 * r_small + 4.0
@@ -190,5 +200,6 @@ def _bounded(bands: _Bands, frames, hint, full_s, full_u, step):
 def _merged(first: NeckResult, again: NeckResult | None, redo, gap) -> NeckResult:
     """The chunk's result: `first`, with the frames `redo` from `again` (see
     :func:`dropkin.vision._band.redone`) and the gap on the axis `gap`."""
-    values = redone(first, again, redo, ("radius", "radius_err", "s_neck", "edges", "status"))
+    names = ("radius", "radius_err", "s_neck", "edges", "status", "level_radius")
+    values = redone(first, again, redo, names)
     return NeckResult(**values, gap=np.asarray(gap, dtype=np.float64))

@@ -55,6 +55,9 @@ class SideChunk:
         the left and right; NaN if none.
     limit : (K, 2) ndarray of bool
         The drop reaches the strip's left or right end in the fit window.
+    level_radius : (K, L) ndarray
+        The contact radius (px) at each of the other edge levels asked for,
+        from the same strip; NaN where the main level has none.
     """
 
     radius: np.ndarray
@@ -66,6 +69,7 @@ class SideChunk:
     wedge: np.ndarray
     extent: np.ndarray
     limit: np.ndarray
+    level_radius: np.ndarray
 
 
 @dataclass(frozen=True)
@@ -107,25 +111,26 @@ def measure_side(
     gap_blurs: float,
     wedge_distance: Callable,
     col_range=None,
+    levels=(),
 ) -> SideChunk:
     """Contact points of every frame of a chunk in side view (internal; see
     :func:`dropkin.vision.measure_contact_lines`).
 
     `wedge_distance` gives, from the contact radii (K,), the distance beyond
     each contact point at which the air wedge is judged; `col_range` is
-    (first, stop) of the columns looked at (all if None).
+    (first, stop) of the columns looked at (all if None); `levels` are other
+    edge levels at which the contact radius is measured too, on the same strip.
     """
     k, n = frames.shape[0], frames.shape[2]
     sigma = float(setup.blur)
     line = SubstrateLine(float(setup.centre[0]), float(setup.centre[1]), float(setup.tilt))
     strip = cut_strip(frames, illumination, dark, line, sigma, col_range)
     thr_map, bg_left, bg_right = edge_levels(strip, setup, level)
-    points, limits, extent, inner = row_crossings(strip, thr_map, line)
-    points.append(column_crossings(strip, thr_map, float(setup.centre[1]), inner))
     # Scatter of one point: at least the image noise over the edge's largest
     # slope (the step over sigma sqrt(2 pi)).
     step = np.maximum(np.stack([bg_left, bg_right], axis=1) - float(setup.drop_level), 1e-6)
-    sides = _fit_sides(line, points, wedge_distance, noise * sigma * np.sqrt(2 * np.pi) / step)
+    floor = noise * sigma * np.sqrt(2 * np.pi) / step
+    sides, limits, extent = _sides_at(strip, thr_map, line, setup, wedge_distance, floor)
     has_dark, before, gap = axis_contact(
         frames, illumination, dark, line, setup, 0.5 * (bg_left + bg_right), level
     )
@@ -143,7 +148,22 @@ def measure_side(
     edges[measured, :, 0] = sides.foot_r[measured]
     edges[measured, :, 1] = sides.foot_c[measured]
     angles[measured] = sides.angles[measured]
-    return SideChunk(radius, radius_err, edges, status, gap, angles, sides.wedge, extent, limits)
+    others = np.full((k, len(levels)), np.nan)
+    for i, other in enumerate(levels):
+        thr_other = edge_levels(strip, setup, float(other))[0]
+        at_other = _sides_at(strip, thr_other, line, setup, wedge_distance, floor)[0]
+        others[:, i] = np.where(measured, at_other.radius, np.nan)
+    return SideChunk(
+        radius, radius_err, edges, status, gap, angles, sides.wedge, extent, limits, others
+    )
+
+
+def _sides_at(strip, thr_map, line, setup, wedge_distance, floor):
+    """The outline's crossings of the edge levels `thr_map` and the circles fitted
+    to them: (_Sides, limits, extent) (see :func:`_fit_sides`)."""
+    points, limits, extent, inner = row_crossings(strip, thr_map, line)
+    points.append(column_crossings(strip, thr_map, float(setup.centre[1]), inner))
+    return _fit_sides(line, points, wedge_distance, floor), limits, extent
 
 
 def _fit_sides(line: SubstrateLine, points, wedge_distance, floor) -> _Sides:

@@ -227,6 +227,7 @@ def measure_contact_lines(
     noise: float,
     level: float = 0.5,
     gap_blurs: float = 3.0,
+    levels=(),
 ) -> ContactLineResult:
     # Long only by its notes (statuses, resolution, bottom view); the code dispatches.
     """Contact radius in each frame of a chunk, looking only near the contact line.
@@ -250,6 +251,11 @@ def measure_contact_lines(
     gap_blurs : float, optional
         Side view: the contact point counts as resolved once the air wedge
         beside it is this many blur sigmas high (see Notes).
+    levels : sequence of float, optional
+        Other edge levels at which the contact radius is measured too, in
+        the same pass (``level_radius`` of the result): side view, the
+        outline's crossings of each level in the same strip, fitted alike;
+        bottom view, the area's model at each level on the same profiles.
 
     Returns
     -------
@@ -315,9 +321,16 @@ def measure_contact_lines(
             noise=noise,
             level=level,
             gap_blurs=gap_blurs,
+            levels=tuple(levels),
         )
     return measure_bottom_chunk(
-        frames, setup, illumination=illumination, dark=dark, noise=noise, level=level
+        frames,
+        setup,
+        illumination=illumination,
+        dark=dark,
+        noise=noise,
+        level=level,
+        levels=tuple(levels),
     )
 
 
@@ -349,5 +362,5 @@ def _measure_side_chunk(frames, setup, **settings):
     result = run(frames, (c0, c1))
     redo = result.status == BAND_LIMIT
     again = run(frames[redo], None) if redo.any() else None
-    names = ("radius", "radius_err", "edges", "status", "gap", "angles")
+    names = ("radius", "radius_err", "edges", "status", "gap", "angles", "level_radius")
     return ContactLineResult(**redone(result, again, redo, names))

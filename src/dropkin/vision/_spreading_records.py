@@ -115,6 +115,10 @@ class ContactLineResult:
         Side view: apparent contact angle (degrees, inside the liquid) at the
         left and right contact points, from the local fit of the outline;
         NaN where there is no measurement and in bottom view.
+    level_radius : (K, L) ndarray
+        The contact radius (px) at each of the other edge levels asked for (L
+        of them, in their order; L = 0 if none), measured in the same pass;
+        NaN where the main level has none or that level's is not found.
     """
 
     radius: np.ndarray
@@ -123,6 +127,7 @@ class ContactLineResult:
     status: np.ndarray
     gap: np.ndarray
     angles: np.ndarray
+    level_radius: np.ndarray
 
 
 def check_view(view):

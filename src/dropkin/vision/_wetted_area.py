@@ -93,9 +93,10 @@ class _Profiles:
     start: np.ndarray
 
 
-def measure_bottom_chunk(frames, setup, *, illumination, dark, noise, level):
+def measure_bottom_chunk(frames, setup, *, illumination, dark, noise, level, levels=()):
     """Bottom view: the wetted disc in every frame of a chunk (see
-    :func:`dropkin.vision.measure_contact_lines`)."""
+    :func:`dropkin.vision.measure_contact_lines`); at the other edge `levels`
+    too, from the same radial profiles."""
     k, m, n = frames.shape
     centre = np.asarray(setup.centre, dtype=np.float64)
     ill = np.asarray(illumination, dtype=np.float32).ravel()
@@ -105,9 +106,11 @@ def measure_bottom_chunk(frames, setup, *, illumination, dark, noise, level):
     radius_err = np.full(k, np.nan)
     edges = np.full((k, 2, 2), np.nan)
     nan2 = np.full((k, 2), np.nan)
+    others = np.full((k, len(levels)), np.nan)
     if reach < 4:
         status[:] = AT_EDGE
-        return ContactLineResult(radius, radius_err, edges, status, np.full(k, np.nan), nan2)
+        gap = np.full(k, np.nan)
+        return ContactLineResult(radius, radius_err, edges, status, gap, nan2, others)
     flat = frames.reshape(k, -1)
     coarse = _coarse_pass(flat, ill, dark, setup, (m, n), reach, level, noise)
     status[coarse.nothing] = NOT_FOUND
@@ -115,16 +118,24 @@ def measure_bottom_chunk(frames, setup, *, illumination, dark, noise, level):
     status[~coarse.nothing & coarse.wet_seen & ~coarse.measure] = AT_EDGE
     gap = np.full(k, np.nan)
     if not coarse.measure.any():
-        return ContactLineResult(radius, radius_err, edges, status, gap, nan2)
+        return ContactLineResult(radius, radius_err, edges, status, gap, nan2, others)
     idx = np.nonzero(coarse.measure)[0]
-    a_all, err, good = _wetted_radius(frames, ill, dark, noise, level, setup, coarse, idx)
+    prof = _wetted_profiles(frames, ill, dark, setup, coarse, idx)
+    a_all, err, good = _area(
+        prof, setup, noise, level, coarse.wet[idx], coarse.hi[idx], coarse.clear[idx]
+    )
     radius[idx] = np.where(good, a_all, np.nan)
     radius_err[idx] = np.where(good, np.hypot(err, 0.1), np.nan)
     status[idx[~good]] = NOT_FOUND
     edges[idx, 0, 0] = edges[idx, 1, 0] = centre[0]
     edges[idx, 0, 1] = centre[1] - radius[idx]
     edges[idx, 1, 1] = centre[1] + radius[idx]
-    return ContactLineResult(radius, radius_err, edges, status, gap, nan2)
+    for i, other in enumerate(levels):
+        a_other, _, good_other = _area(
+            prof, setup, noise, float(other), coarse.wet[idx], coarse.hi[idx], coarse.clear[idx]
+        )
+        others[idx, i] = np.where(good & good_other, a_other, np.nan)
+    return ContactLineResult(radius, radius_err, edges, status, gap, nan2, others)
 
 
 def _coarse_pass(flat, ill, dark, setup, shape, reach, level, noise) -> _Coarse:
@@ -159,9 +170,9 @@ def _coarse_pass(flat, ill, dark, setup, shape, reach, level, noise) -> _Coarse:
     return _Coarse(nothing, wet_seen, wet_coarse, measure, lo, hi, hi_in, out0, clear, margin)
 
 
-def _wetted_radius(frames, ill, dark, noise, level, setup, coarse: _Coarse, idx):
-    """The wetted disc's equivalent radius (F,) in the frames `idx`, its
-    uncertainty, and whether it was measured."""
+def _wetted_profiles(frames, ill, dark, setup, coarse: _Coarse, idx) -> _Profiles:
+    """The radial profiles of the frames `idx` over the annuli around their
+    wetted edge and outline (see :func:`_area` for the radius from them)."""
     # Every pixel of an annulus around each frame's wetted edge, and one
     # around the outline (the two merge when the ring is narrow).
     lo, hi, clear = coarse.lo[idx], coarse.hi[idx], coarse.clear[idx]
@@ -173,8 +184,7 @@ def _wetted_radius(frames, ill, dark, noise, level, setup, coarse: _Coarse, idx)
     b_lo_out = np.maximum(np.floor(lo_out / BIN).astype(np.intp), b_hi_in)
     b_hi = np.maximum(np.ceil(hi / BIN).astype(np.intp), b_lo_out)
     bins = (b_lo, b_hi_in, b_lo_out, b_hi)
-    prof = _profiles(frames, ill, dark, np.asarray(setup.centre, dtype=np.float64), idx, bins)
-    return _area(prof, setup, noise, level, coarse.wet[idx], hi, clear)
+    return _profiles(frames, ill, dark, np.asarray(setup.centre, dtype=np.float64), idx, bins)
 
 
 def _profiles(frames, ill, dark, centre, idx, bins) -> _Profiles:

@@ -214,6 +214,7 @@ def analyze_series(
     material_uncertainty=None,
     seed=0,
     bootstrap=200,
+    radius_levels=None,
 ) -> RegimeVerdict:
     # Over 80 lines only by its signature and numpydoc docstring; the body is 36 lines.
     """Decide which scaling regime governs a radius series.
@@ -254,6 +255,10 @@ def analyze_series(
         Seed of the bootstrap.
     bootstrap : int
         Bootstrap resamples (default 200; 0 gives normal-approximation intervals).
+    radius_levels : Mapping[float, array_like], optional
+        The radii (m) of the same frames measured at other edge levels (NaN
+        where not measured), by level; used for the systematic interval
+        (accepted and not used yet on this branch).
 
     Returns
     -------

@@ -8,7 +8,9 @@ The CSV columns are a contract (docs/architecture.md), in this order:
 ``frame, time_s, since_contact_s, radius_m, radius_err_m, status``. Times
 count from the first frame; ``since_contact_s`` is empty before contact (and
 everywhere when the contact instant is unknown); ``radius_m`` and
-``radius_err_m`` are empty where a frame has no measurement.
+``radius_err_m`` are empty where a frame has no measurement. After them come
+the radii at the other edge levels (``radius_level_0.4_m``...; see
+:mod:`dropkin.series._csv`), empty where not measured.
 """
 
 from __future__ import annotations
@@ -23,9 +25,10 @@ from pathlib import Path
 
 import numpy as np
 
-from ._atomic import write_text_atomic
-from .errors import DropkinError
-from .status import STATUSES
+from .._atomic import write_text_atomic
+from ..errors import DropkinError
+from ..status import STATUSES
+from ._csv import CSV_COLUMNS, level_column, read_columns
 
 __all__ = [
     "STATUSES",
@@ -37,9 +40,8 @@ __all__ = [
     "write_series",
     "read_radius_csv",
     "read_series",
+    "level_column",
 ]
-
-CSV_COLUMNS = ("frame", "time_s", "since_contact_s", "radius_m", "radius_err_m", "status")
 
 
 @dataclass(frozen=True)
@@ -80,6 +82,12 @@ class RadiusSeries:
     angles : (F, 2) ndarray or None
         Apparent contact angle (degrees) at the left and right contact
         points (spreading, side view); None otherwise.
+    level_radii : Mapping of float to (F,) ndarray
+        The radius (m) of the same frames measured at other edge levels (the
+        fraction of the way from the dark rim to the background at which the
+        outline lies, as ``details["edge_level"]`` for `radius`), by level,
+        in increasing order; NaN where not measured. Their spread is the
+        fit's systematic interval. Empty when only one level was measured.
     """
 
     frame: np.ndarray
@@ -97,12 +105,18 @@ class RadiusSeries:
     provenance: dict = field(default_factory=dict)
     details: dict = field(default_factory=dict)
     angles: np.ndarray | None = None
+    level_radii: Mapping = field(default_factory=dict)
 
     def __post_init__(self):
         n = len(self.frame)
         for name in ("time", "radius", "radius_err", "status"):
             if len(getattr(self, name)) != n:
                 raise ValueError(f"{name} has {len(getattr(self, name))} values, frame has {n}")
+        for level, values in self.level_radii.items():
+            if not 0.0 < level < 1.0 or np.shape(values) != (n,):
+                raise ValueError(
+                    f"level_radii[{level!r}] must be {n} radii at a level between 0 and 1"
+                )
         bad = set(self.status) - set(STATUSES)
         if bad:
             raise ValueError(f"unknown status {sorted(bad)[0]!r}; allowed: {', '.join(STATUSES)}")
@@ -170,7 +184,9 @@ def series_from_dict(info: Mapping, columns: Mapping) -> RadiusSeries:
         alone), and then the contact instant is the one ``since_contact_s``
         implies.
     columns : Mapping
-        Arrays by the names of :data:`CSV_COLUMNS`, as the CSV holds them.
+        Arrays by the names of :data:`CSV_COLUMNS`, as the CSV holds them,
+        and optionally ``level_radii`` (radii by edge level, as the
+        ``radius_level_*_m`` columns hold them).
     """
     values = {name: info.get(key) for key, name in _INFO_FIELDS.items()}
     if values["contact_time"] is None:
@@ -184,6 +200,7 @@ def series_from_dict(info: Mapping, columns: Mapping) -> RadiusSeries:
         status=tuple(columns["status"]),
         provenance=dict(info.get("provenance") or {}),
         details=details,
+        level_radii=dict(sorted((columns.get("level_radii") or {}).items())),
         **values,
     )
 
@@ -201,10 +218,19 @@ def _csv_text(header, rows) -> str:
 
 
 def series_to_csv(series: RadiusSeries) -> str:
-    """The text of ``radius.csv``."""
+    """The text of ``radius.csv``: the columns of :data:`CSV_COLUMNS`, then the
+    radius at each other edge level."""
     columns = (series.time, series.since_contact, series.radius, series.radius_err)
-    rows = zip(series.frame, *columns, series.status, strict=True)
-    return _csv_text(CSV_COLUMNS, ([int(f), *map(_number, v), s] for f, *v, s in rows))
+    levels = sorted(series.level_radii)
+    header = (*CSV_COLUMNS, *map(level_column, levels))
+    others = np.column_stack(
+        [series.level_radii[v] for v in levels] or [np.empty((len(series), 0))]
+    )
+    rows = zip(series.frame, *columns, series.status, others, strict=True)
+    return _csv_text(
+        header,
+        ([int(f), *map(_number, v), s, *map(_number, o)] for f, *v, s, o in rows),
+    )
 
 
 ANGLE_COLUMNS = ("frame", "time_s", "angle_left_deg", "angle_right_deg")
@@ -225,94 +251,6 @@ def write_series(series: RadiusSeries, out_dir) -> tuple[Path, Path]:
     return csv_path, json_path
 
 
-def _parse_float(text: str, *, path, line: int, column: str) -> float:
-    if text.strip() == "":
-        return math.nan
-    try:
-        value = float(text)
-    except ValueError:
-        raise DropkinError(
-            f"line {line}: {column} is not a number", path=path, value=text
-        ) from None
-    if math.isinf(value):
-        raise DropkinError(f"line {line}: {column} is infinite", path=path, value=text)
-    if math.isnan(value):  # the format leaves a cell empty where there is no value
-        raise DropkinError(
-            f"line {line}: {column} is NaN", path=path, value=text, expected="a number, or nothing"
-        )
-    if value < 0 and column != "time_s":
-        raise DropkinError(f"line {line}: {column} is negative", path=path, value=text)
-    return value
-
-
-def _parse_row(row: list, previous: dict | None, *, path, line: int) -> dict:
-    """A row's cells, checked, and against each other and the row before it."""
-    if len(row) != len(CSV_COLUMNS):
-        raise DropkinError(
-            f"line {line}: has {len(row)} fields", path=path, expected=str(len(CSV_COLUMNS))
-        )
-    try:
-        values = {"frame": int(row[0])}
-    except ValueError:
-        raise DropkinError(
-            f"line {line}: frame is not a whole number", path=path, value=row[0]
-        ) from None
-    for column, text in zip(CSV_COLUMNS[1:5], row[1:5], strict=True):
-        values[column] = _parse_float(text, path=path, line=line, column=column)
-    values["status"] = row[5].strip()
-    if values["status"] not in STATUSES:
-        raise DropkinError(
-            f"line {line}: unknown status",
-            path=path,
-            value=values["status"],
-            expected=" | ".join(STATUSES),
-        )
-    if math.isnan(values["time_s"]):
-        raise DropkinError(f"line {line}: time_s is empty", path=path, expected="a time in s")
-    if values["status"] == "ok" and not values["radius_m"] > 0:
-        raise DropkinError(
-            f"line {line}: status ok without a radius", path=path, expected="radius_m above 0"
-        )
-    for column in ("frame", "time_s") if previous is not None else ():
-        if not values[column] > previous[column]:
-            raise DropkinError(
-                f"line {line}: {column} does not increase (line {line - 1} has "
-                f"{previous[column]!r})",
-                path=path,
-                value=values[column],
-                expected="rows in the order of the frames, one per frame",
-            )
-    return values
-
-
-def _read_columns(path: Path) -> dict:
-    """The columns of a ``radius.csv``, checked row by row (see :func:`read_radius_csv`)."""
-    try:
-        text = path.read_text(encoding="utf-8")
-    except (OSError, UnicodeDecodeError) as exc:
-        raise DropkinError(f"cannot be read ({exc})", path=path) from None
-    rows = list(csv.reader(io.StringIO(text)))
-    if not rows:
-        raise DropkinError(
-            "is empty", path=path, expected="a header line " + ",".join(CSV_COLUMNS)
-        )
-    if tuple(c.strip() for c in rows[0]) != CSV_COLUMNS:
-        raise DropkinError(
-            "has other columns than a radius series",
-            path=path,
-            expected=",".join(CSV_COLUMNS),
-        )
-    parsed, previous = [], None
-    for line, row in enumerate(rows[1:], start=2):
-        if row:
-            previous = _parse_row(row, previous, path=path, line=line)
-            parsed.append(previous)
-    out = {c: np.asarray([v[c] for v in parsed], dtype=np.float64) for c in CSV_COLUMNS[1:5]}
-    out["frame"] = np.asarray([v["frame"] for v in parsed], dtype=np.int64)
-    out["status"] = tuple(v["status"] for v in parsed)
-    return out
-
-
 def read_radius_csv(path) -> RadiusSeries:
     """Read a ``radius.csv`` alone into a :class:`RadiusSeries`.
 
@@ -329,7 +267,7 @@ def read_radius_csv(path) -> RadiusSeries:
         row without a time, an ``ok`` row without a radius, or rows whose
         frames or times do not increase; the message names the line.
     """
-    return series_from_dict({}, _read_columns(Path(path)))
+    return series_from_dict({}, read_columns(Path(path)))
 
 
 def _valid_number(value) -> bool:
@@ -392,7 +330,7 @@ def read_series(radius_csv) -> RadiusSeries:
         uncertainty or bracket, drop radius, geometry or provenance.
     """
     path = Path(radius_csv)
-    columns = _read_columns(path)
+    columns = read_columns(path)
     if not len(columns["frame"]):
         raise DropkinError("has no rows, only a header", path=path, expected="one row per frame")
     return series_from_dict(_read_info(path.with_name("measure.json")), columns)

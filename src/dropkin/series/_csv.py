@@ -1,0 +1,156 @@
+"""The text of ``radius.csv``: its columns, their names, and reading them back.
+
+The first columns are a contract (docs/architecture.md), in this order:
+:data:`CSV_COLUMNS`. After them come the radii at the other edge levels, one
+column per level, named by :func:`level_column` (``radius_level_0.4_m``);
+a file without them (written before they existed) still reads.
+"""
+
+from __future__ import annotations
+
+import csv
+import io
+import math
+import re
+from pathlib import Path
+
+import numpy as np
+
+from ..errors import DropkinError
+from ..status import STATUSES
+
+__all__ = ["CSV_COLUMNS", "level_column", "level_of_column", "read_columns"]
+
+CSV_COLUMNS = ("frame", "time_s", "since_contact_s", "radius_m", "radius_err_m", "status")
+
+_LEVEL_COLUMN = re.compile(r"radius_level_([0-9]*\.?[0-9]+)_m")
+
+
+def level_column(level: float) -> str:
+    """The name of the column of the radius (m) at edge level `level`.
+
+    Examples
+    --------
+    >>> level_column(0.4), level_of_column("radius_level_0.4_m")
+    ('radius_level_0.4_m', 0.4)
+    """
+    return f"radius_level_{float(level):g}_m"
+
+
+def level_of_column(name: str) -> float | None:
+    """The edge level a column holds the radius at, or None if it is no such column."""
+    match = _LEVEL_COLUMN.fullmatch(name.strip())
+    if match is None:
+        return None
+    level = float(match.group(1))
+    return level if 0.0 < level < 1.0 else None
+
+
+def _parse_float(text: str, *, path, line: int, column: str) -> float:
+    if text.strip() == "":
+        return math.nan
+    try:
+        value = float(text)
+    except ValueError:
+        raise DropkinError(
+            f"line {line}: {column} is not a number", path=path, value=text
+        ) from None
+    if math.isinf(value):
+        raise DropkinError(f"line {line}: {column} is infinite", path=path, value=text)
+    if math.isnan(value):  # the format leaves a cell empty where there is no value
+        raise DropkinError(
+            f"line {line}: {column} is NaN", path=path, value=text, expected="a number, or nothing"
+        )
+    if value < 0 and column != "time_s":
+        raise DropkinError(f"line {line}: {column} is negative", path=path, value=text)
+    return value
+
+
+def _parse_row(row: list, previous: dict | None, *, path, line: int, width: int) -> dict:
+    """A row's first cells (those of :data:`CSV_COLUMNS`), checked, and against
+    each other and the row before it; `width` is the header's length."""
+    if len(row) != width:
+        raise DropkinError(f"line {line}: has {len(row)} fields", path=path, expected=str(width))
+    try:
+        values = {"frame": int(row[0])}
+    except ValueError:
+        raise DropkinError(
+            f"line {line}: frame is not a whole number", path=path, value=row[0]
+        ) from None
+    for column, text in zip(CSV_COLUMNS[1:5], row[1:5], strict=True):
+        values[column] = _parse_float(text, path=path, line=line, column=column)
+    values["status"] = row[5].strip()
+    if values["status"] not in STATUSES:
+        raise DropkinError(
+            f"line {line}: unknown status",
+            path=path,
+            value=values["status"],
+            expected=" | ".join(STATUSES),
+        )
+    if math.isnan(values["time_s"]):
+        raise DropkinError(f"line {line}: time_s is empty", path=path, expected="a time in s")
+    if values["status"] == "ok" and not values["radius_m"] > 0:
+        raise DropkinError(
+            f"line {line}: status ok without a radius", path=path, expected="radius_m above 0"
+        )
+    for column in ("frame", "time_s") if previous is not None else ():
+        if not values[column] > previous[column]:
+            raise DropkinError(
+                f"line {line}: {column} does not increase (line {line - 1} has "
+                f"{previous[column]!r})",
+                path=path,
+                value=values[column],
+                expected="rows in the order of the frames, one per frame",
+            )
+    return values
+
+
+def _header_levels(header, *, path) -> list[float]:
+    """The edge levels of the columns after :data:`CSV_COLUMNS` in a header."""
+    names = tuple(c.strip() for c in header)
+    expected = ",".join(CSV_COLUMNS) + "[,radius_level_<level>_m ...]"
+    if names[: len(CSV_COLUMNS)] != CSV_COLUMNS:
+        raise DropkinError("has other columns than a radius series", path=path, expected=expected)
+    levels = [level_of_column(name) for name in names[len(CSV_COLUMNS) :]]
+    if None in levels or len(set(levels)) != len(levels):
+        raise DropkinError("has other columns than a radius series", path=path, expected=expected)
+    return levels
+
+
+def read_columns(path: Path) -> dict:
+    """The columns of a ``radius.csv``, checked row by row.
+
+    Returns
+    -------
+    dict
+        Arrays by the names of :data:`CSV_COLUMNS`, and ``level_radii``: the
+        radii (m) at the other edge levels by level (empty without them).
+    """
+    try:
+        text = path.read_text(encoding="utf-8")
+    except (OSError, UnicodeDecodeError) as exc:
+        raise DropkinError(f"cannot be read ({exc})", path=path) from None
+    rows = list(csv.reader(io.StringIO(text)))
+    if not rows:
+        raise DropkinError(
+            "is empty", path=path, expected="a header line " + ",".join(CSV_COLUMNS)
+        )
+    levels = _header_levels(rows[0], path=path)
+    width = len(CSV_COLUMNS) + len(levels)
+    parsed, extra, previous = [], [], None
+    for line, row in enumerate(rows[1:], start=2):
+        if row:
+            previous = _parse_row(row, previous, path=path, line=line, width=width)
+            parsed.append(previous)
+            extra.append(
+                [
+                    _parse_float(text, path=path, line=line, column=level_column(level))
+                    for level, text in zip(levels, row[len(CSV_COLUMNS) :], strict=True)
+                ]
+            )
+    out = {c: np.asarray([v[c] for v in parsed], dtype=np.float64) for c in CSV_COLUMNS[1:5]}
+    out["frame"] = np.asarray([v["frame"] for v in parsed], dtype=np.int64)
+    out["status"] = tuple(v["status"] for v in parsed)
+    values = np.asarray(extra, dtype=np.float64).reshape(len(parsed), len(levels))
+    out["level_radii"] = {level: values[:, i] for i, level in enumerate(levels)}
+    return out
