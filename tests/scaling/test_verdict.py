@@ -267,7 +267,13 @@ def test_origin_fixed_by_the_user_or_bracketed_by_default():
     first_ok = t[status == "ok"][0]
     wide = analyze(t, r, err, status, (bracket[0], first_ok + 1e-4), WATER, bootstrap=0)
     assert bracket[0] <= wide.t0 < wide.t0_bracket[1] < first_ok
-    assert wide.n_points == int((status == "ok").sum()) and wide.regimes == ("inertial",)
+    # Issue 13: frames beyond the inertial law's validity, r > 0.5 R (docs/physics.md §2 A3,
+    # an M bound), are left out and counted; every ok frame within it is used.
+    ok = status == "ok"
+    within = ok & (r <= 0.5 * WATER.radius)
+    assert wide.validity_ratio == 0.5 and wide.validity_regime == "inertial"
+    assert wide.n_points == int(within.sum()) and wide.regimes == ("inertial",)
+    assert wide.n_beyond_validity == int((ok & ~within).sum()) > 0
 
 
 def test_series_the_data_cannot_support_give_a_falsy_verdict_with_a_reason():
