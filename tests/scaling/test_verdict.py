@@ -103,7 +103,9 @@ def test_inertial_water_verdict_names_the_regime_and_the_evidence():
     assert bracket[0] <= v.t0 <= bracket[1] and abs(v.t0 - t0) < 0.2 * 2e-6
     s = v.sentence
     assert "\n" not in s and s.count(". ") == 0 and s.endswith(".")
-    assert s.startswith("Inertial:") and "agrees with 1/2" in s and "C = 1.2" in s
+    assert s.startswith("Inertial over") and "agrees with 1/2" in s and "C = 1.2" in s
+    # Issue 13: the dimensionless coefficient and the dimensional prefactor, named apart.
+    assert "coefficient C = 1.20" in s and "prefactor A = 0.0197" in s and "m s^-1/2" in s
     assert "Oh = 0.00372" in s and "viscous-outer" in s  # the same-exponent rival it beat
     top = [c for c in v.candidates if c.rank == 1]
     assert [c.key for c in top] == ["inertial"] and top[0].consistent

@@ -6,7 +6,8 @@ report's Warnings section. The codes:
 
 - ``t0-at-bracket-end``: the fitted contact instant lies within 1e-6 of the
   bracket's width from one of its ends (the bracket, not the data, set it);
-- ``short-window``: a regime's window spans less than half a decade;
+- ``short-window``: the fitted points, or a regime's window, span less
+  than half a decade;
 - ``unresolved-frames``: more than 30 % of the frames after contact have no
   resolved radius;
 - ``edge-level``: an exponent moves with the edge level by more than its
@@ -92,8 +93,18 @@ def verdict_warnings(verdict, decisions, status, time) -> tuple[VerdictWarning, 
             )
         )
     tops = [c for c in verdict.candidates if c.rank == 1]
+    a, b = verdict.time_range
+    span = math.log10(b / a) if a > 0 and b > a else 0.0
+    if span < MIN_WINDOW_DECADES:
+        out.append(
+            VerdictWarning(
+                "short-window",
+                f"the fitted points span {span:.2f} decades only, less than "
+                f"{MIN_WINDOW_DECADES:g}",
+            )
+        )
     for c in tops:
-        if c.window is not None and c.window_decades < MIN_WINDOW_DECADES:
+        if c.window is not None and c.window_decades < MIN_WINDOW_DECADES <= span:
             out.append(
                 VerdictWarning(
                     "short-window",
