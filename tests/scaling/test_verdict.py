@@ -103,7 +103,9 @@ def test_inertial_water_verdict_names_the_regime_and_the_evidence():
     assert bracket[0] <= v.t0 <= bracket[1] and abs(v.t0 - t0) < 0.2 * 2e-6
     s = v.sentence
     assert "\n" not in s and s.count(". ") == 0 and s.endswith(".")
-    assert s.startswith("Inertial:") and "agrees with 1/2" in s and "C = 1.2" in s
+    assert s.startswith("Inertial over") and "agrees with 1/2" in s and "C = 1.2" in s
+    # Issue 13: the dimensionless coefficient and the dimensional prefactor, named apart.
+    assert "coefficient C = 1.20" in s and "prefactor A = 0.0197" in s and "m s^-1/2" in s
     assert "Oh = 0.00372" in s and "viscous-outer" in s  # the same-exponent rival it beat
     top = [c for c in v.candidates if c.rank == 1]
     assert [c.key for c in top] == ["inertial"] and top[0].consistent
@@ -267,7 +269,13 @@ def test_origin_fixed_by_the_user_or_bracketed_by_default():
     first_ok = t[status == "ok"][0]
     wide = analyze(t, r, err, status, (bracket[0], first_ok + 1e-4), WATER, bootstrap=0)
     assert bracket[0] <= wide.t0 < wide.t0_bracket[1] < first_ok
-    assert wide.n_points == int((status == "ok").sum()) and wide.regimes == ("inertial",)
+    # Issue 13: frames beyond the inertial law's validity, r > 0.5 R (docs/physics.md §2 A3,
+    # an M bound), are left out and counted; every ok frame within it is used.
+    ok = status == "ok"
+    within = ok & (r <= 0.5 * WATER.radius)
+    assert wide.validity_ratio == 0.5 and wide.validity_regime == "inertial"
+    assert wide.n_points == int(within.sum()) and wide.regimes == ("inertial",)
+    assert wide.n_beyond_validity == int((ok & ~within).sum()) > 0
 
 
 def test_series_the_data_cannot_support_give_a_falsy_verdict_with_a_reason():

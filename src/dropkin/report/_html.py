@@ -80,7 +80,8 @@ def report_warnings(*, series, verdict) -> list[str]:
 
     Few ok frames, frames whose drop was not found or touched the image edge,
     a dominant regime whose window ends where at-edge frames begin (the field
-    of view cut it), a failed or undecided verdict.
+    of view cut it), a failed or undecided verdict, and the verdict's own
+    warnings (``verdict.warnings``, each with its code).
     """
     out = []
     counts = series.status_counts
@@ -110,10 +111,12 @@ def report_warnings(*, series, verdict) -> list[str]:
                 f"ends at τ = {end * 1e3:.3g} ms and {len(after)} later frame(s) are "
                 "at-edge; the regime may last longer than the data show."
             )
+    said = [f"{w.message[0].upper()}{w.message[1:]} [{w.code}]." for w in verdict.warnings]
     if not verdict.success:
         out.append(f"The fit did not succeed: {verdict.reason or 'no reason given'}.")
-    elif not verdict.decidable:
+    elif not verdict.decidable and not any(w.code == "undecidable" for w in verdict.warnings):
         out.append("The data do not decide between the candidate regimes.")
+    out += said
     if not dom:
         out.append("No dominant regime was found.")
     return out
@@ -154,15 +157,24 @@ def _dominant_row(verdict) -> dict | None:
     dom = verdict.dominant if verdict else None
     if not dom:
         return None
-    match = next((c for c in verdict.candidates if c.key == dom.key), None)
     return {
         "regime": dom.key,
         "exponent_fit": _g(_num(dom.exponent_fit)),
         "exponent_ci": _pair(dom.exponent_ci),
+        "exponent_sys_ci": _pair(dom.exponent_sys_ci),
+        "exponent_combined_ci": _pair(dom.exponent_combined_ci),
         "exponent_theory": _g(_num(dom.exponent_theory)),
+        "exponent_inside": bool(dom.exponent_inside),
+        "coefficient_fit": _g(_num(dom.coefficient_fit)),
+        "coefficient_ci": _pair(dom.coefficient_ci),
+        "coefficient_sys_ci": _pair(dom.coefficient_sys_ci),
+        "coefficient_combined_ci": _pair(dom.coefficient_combined_ci),
+        "coefficient_theory": _g(None if dom.regime.prefactor is None else dom.regime.prefactor),
         "prefactor_fit": _g(_num(dom.prefactor_fit)),
-        "prefactor_ci": _pair(None if match is None else match.prefactor_fit_ci),
-        "prefactor_theory": _g(_num(dom.prefactor_theory)),
+        "prefactor_ci": _pair(dom.prefactor_fit_ci),
+        "prefactor_sys_ci": _pair(dom.prefactor_sys_ci),
+        "prefactor_combined_ci": _pair(dom.prefactor_combined_ci),
+        "prefactor_unit": dom.prefactor_unit,
         "window": _ms_window(dom.window),
     }
 
@@ -174,8 +186,12 @@ def _candidate_row(c) -> dict:
         "regime": c.key,
         "exponent_theory": "ELS log" if c.regime.logarithmic else _g(_num(c.exponent_theory)),
         "exponent_fit": "—" if n is None else f"{_g(n)} {_pair(c.exponent_ci, 3)}",
-        "prefactor_fit": _g(_num(c.prefactor_fit)),
-        "prefactor_theory": _g(_num(c.prefactor_theory)),
+        "exponent_combined": _pair(c.exponent_combined_ci, 3),
+        "coefficient_fit": (
+            f"{_g(_num(c.coefficient_fit), 3)} {_pair(c.coefficient_combined_ci, 3)}"
+        ),
+        "coefficient_theory": _g(None if c.regime.prefactor is None else c.regime.prefactor, 3),
+        "prefactor_fit": f"{_g(_num(c.prefactor_fit))} {c.prefactor_unit}".strip(),
         "window": _ms_window(c.window),
         "aic": _g(_num(c.aic)),
         "consistent": bool(c.consistent),

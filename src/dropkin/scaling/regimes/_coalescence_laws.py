@@ -42,6 +42,9 @@ COALESCENCE_LAWS: tuple[Regime, ...] = (
         status="V",
         note="a pure power-law fit of this law returns n ≈ 0.8–0.9",
         condition=_c.viscous,
+        max_radius_ratio=1.0 / (math.e * math.pi),
+        validity_source="the ELS formula peaks at r/R = 1/(eπ) ≈ 0.12 (D; J. Fluid Mech. 401, "
+        "293, 1999)",
     ),
     Regime(
         key="viscous-equal-outer",
@@ -63,6 +66,9 @@ COALESCENCE_LAWS: tuple[Regime, ...] = (
         reference=_ELS + " (a toroidal bubble of outer fluid forms)",
         status="V",
         condition=_c.viscous_equal_outer,
+        max_radius_ratio=1.0 / (math.e * math.pi),
+        validity_source="the ELS formula peaks at r/R = 1/(eπ) ≈ 0.12 (D; J. Fluid Mech. 401, "
+        "293, 1999)",
     ),
     Regime(
         key="inertially-limited-viscous",
@@ -85,6 +91,8 @@ COALESCENCE_LAWS: tuple[Regime, ...] = (
         status="M",
         note="C is O(1) and not verified here: fit it",
         condition=_c.always_first,
+        max_radius_ratio=1.0 / (math.e * math.pi),
+        validity_source="an early stage, r ≪ R; A1's bound 1/(eπ) ≈ 0.12 is used (D)",
     ),
     Regime(
         key="inertial",
@@ -108,6 +116,9 @@ COALESCENCE_LAWS: tuple[Regime, ...] = (
         status="V",
         note="same n as viscous-outer, inertial-outer, inertial-spreading: rank on C",
         condition=_c.inertial_free_or_right_angle,
+        max_radius_ratio=0.5,
+        validity_source="the gap argument needs r ≪ R; the t^1/2 law is reported to hold up "
+        "to r/R of order 0.3–0.5 (M), the upper end is used",
     ),
     Regime(
         key="viscous-outer",
@@ -129,6 +140,8 @@ COALESCENCE_LAWS: tuple[Regime, ...] = (
         reference="Nat. Commun. 5, 3182 (2014), Fig. 2 (explicit form reconstructed, D)",
         status="D",
         condition=_c.viscous_outer,
+        max_radius_ratio=0.5,
+        validity_source="as A3, r/R of order 0.3–0.5 (M), the upper end is used",
     ),
     Regime(
         key="inertial-outer",
@@ -150,5 +163,7 @@ COALESCENCE_LAWS: tuple[Regime, ...] = (
         reference="Nat. Commun. 5, 3182 (2014), Fig. 2 (explicit form reconstructed, D)",
         status="D",
         condition=_c.inertial_outer,
+        max_radius_ratio=0.5,
+        validity_source="as A3, r/R of order 0.3–0.5 (M), the upper end is used",
     ),
 )

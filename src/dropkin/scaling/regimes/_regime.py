@@ -82,6 +82,12 @@ class Regime:
         Status label of the law's form and exponent.
     note : str
         What else a user should know (may be empty).
+    max_radius_ratio : float or None
+        Validity limit in r/R (R the drop radius): the law is fitted only to
+        frames with r ≤ this × R (docs/physics.md §4.8); None when no limit
+        in r/R is published.
+    validity_source : str
+        Where `max_radius_ratio` comes from, with its status label.
     """
 
     key: str
@@ -104,6 +110,8 @@ class Regime:
     status: str
     angle_power: int = 0
     note: str = ""
+    max_radius_ratio: float | None = None
+    validity_source: str = ""
     condition: Callable[[SampleNumbers], tuple[bool, str]] = field(
         default=lambda n: (True, ""), repr=False, compare=False
     )

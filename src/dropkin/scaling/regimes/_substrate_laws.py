@@ -109,6 +109,9 @@ SUBSTRATE_LAWS: tuple[Regime, ...] = (
         status="V",
         note="fit n freely on hydrophobic surfaces (Bird et al.)",
         condition=_c.inertial_spreading,
+        max_radius_ratio=1.0,
+        validity_source="the t^1/2 stage ends as the contact radius approaches the drop "
+        "radius, a ≈ R (M; Phys. Rev. E 69, 016301, 2004)",
     ),
     Regime(
         key="viscous-spreading",
@@ -131,6 +134,9 @@ SUBSTRATE_LAWS: tuple[Regime, ...] = (
         status="V",
         note="C taken as in ELS by analogy (D); fit it",
         condition=_c.viscous_spreading,
+        max_radius_ratio=1.0 / (math.e * math.pi),
+        validity_source="the ELS formula peaks at r/R = 1/(eπ) ≈ 0.12 (D; J. Fluid Mech. 401, "
+        "293, 1999)",
     ),
     Regime(
         key="hertz-like-spreading",

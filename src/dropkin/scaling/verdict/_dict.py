@@ -30,58 +30,23 @@ from ...errors import FitError
 from ...fitting._local import LocalExponent, exponent_plateaus
 from ...fitting._power import LawFit
 from ...fitting._windows import ModelScore
-from ..regimes._catalogue import regime
+from ._dict_candidate import (
+    candidate_dict,
+    candidate_from_dict,
+    floats,
+    num,
+    pair,
+    to_float,
+    warning_dicts,
+)
 from ._evidence import CrossoverFit
-from ._judge import CandidateFit
 from ._verdict import RegimeVerdict
+from ._warnings import VerdictWarning
 
 __all__ = ["verdict_to_dict", "verdict_from_dict", "SavedNumbers"]
 
 
-def _num(x):
-    if x is None:
-        return None
-    x = float(x)
-    return x if math.isfinite(x) else None
-
-
-def _pair(p):
-    if p is None:
-        return None
-    a, b = (_num(v) for v in p)
-    return None if a is None and b is None else [a, b]
-
-
-def _candidate_dict(c) -> dict:
-    return {
-        "regime": c.key,
-        "exponent_theory": c.exponent_theory,
-        "prefactor_theory": _num(c.prefactor_theory),
-        "prefactor_fit": _num(c.prefactor_fit),
-        "exponent_fit": _num(c.exponent_fit),
-        "exponent_ci": _pair(c.exponent_ci),
-        "window_s": _pair(c.window),
-        "aic": _num(c.aic),
-        "consistent": c.consistent,
-        "segment": c.segment,
-        "rank": c.rank,
-        "logarithmic": c.regime.logarithmic,
-        "exponent_expected": _num(c.exponent_expected),
-        "prefactor_fit_ci": _pair(c.prefactor_fit_ci),
-        "prefactor_theory_rel_err": _num(c.prefactor_theory_rel_err),
-        "prefactor_ratio": _num(c.prefactor_ratio),
-        "prefactor_placeholder": c.prefactor_placeholder,
-        "coefficient_fit": _num(c.coefficient_fit),
-        "in_published_range": c.in_published_range,
-        "delta_aic": _num(c.delta_aic),
-        "checks": {
-            "exponent": c.exponent_ok,
-            "prefactor": c.prefactor_ok,
-            "numbers": c.numbers_ok,
-        },
-        "numbers_reason": c.reason,
-        "note": c.note,
-    }
+_num, _pair, _float, _floats = num, pair, to_float, floats
 
 
 # fit.json's names of the sample's numbers -> the attributes of SampleNumbers.
@@ -142,6 +107,13 @@ def _evidence_dict(verdict) -> dict:
         },
         "n_points": verdict.n_points,
         "time_range_s": _pair(verdict.time_range),
+        "validity": {
+            "max_radius_ratio": _num(verdict.validity_ratio),
+            "regime": verdict.validity_regime,
+            "n_left_out": verdict.n_beyond_validity,
+        },
+        "edge_levels": list(verdict.edge_levels),
+        "warnings": warning_dicts(verdict.warnings),
     }
     fit = getattr(verdict.dominant, "fit", None)  # with a pivot point when a power-law fit
     if fit is not None and hasattr(fit, "pivot_time"):
@@ -184,9 +156,10 @@ def verdict_to_dict(verdict) -> dict:
     aic, consistent, and more), ``dominant``, ``crossovers`` (from, to,
     time_s, radius_m, predicted_time_s, and more); extra: ``success``,
     ``reason``, ``decidable``, ``sentence``, ``regimes``, ``two_regime``,
-    ``delta_aic``, ``contact``, ``pivot``, ``local_exponent``, ``models``,
-    ``settings``. SI units; times count from the contact instant
-    (``contact.t0_s`` itself counts from the first frame).
+    ``delta_aic``, ``contact``, ``validity``, ``edge_levels``, ``warnings``,
+    ``pivot``, ``local_exponent``, ``models``, ``settings``. SI units; times
+    count from the contact instant (``contact.t0_s`` itself counts from the
+    first frame).
     """
     n = verdict.numbers
     out = {
@@ -195,7 +168,7 @@ def verdict_to_dict(verdict) -> dict:
         "decidable": verdict.decidable,
         "sentence": verdict.sentence,
         "numbers": {} if n is None else {k: _num(getattr(n, a)) for k, a in _NUMBERS.items()},
-        "candidates": [_candidate_dict(c) for c in verdict.candidates],
+        "candidates": [candidate_dict(c) for c in verdict.candidates],
         "dominant": None,
         "crossovers": [],
     }
@@ -226,50 +199,6 @@ class SavedNumbers:
     inertial_time: float | None = None
     capillary_length: float | None = None
     capillary_speed: float | None = None
-
-
-def _float(value) -> float:  # a number of the file, NaN where it holds null
-    return math.nan if value is None else float(value)
-
-
-def _floats(pair) -> tuple[float, float]:
-    return (math.nan, math.nan) if pair is None else (_float(pair[0]), _float(pair[1]))
-
-
-def _candidate_from_dict(c: Mapping) -> CandidateFit:
-    checks = c.get("checks") or {}
-    window = None if c.get("window_s") is None else _floats(c["window_s"])
-    flags = (checks.get("exponent"), checks.get("prefactor"), checks.get("numbers"))
-    return CandidateFit(
-        regime=regime(c["regime"]),
-        key=c["regime"],
-        segment=c.get("segment", "all"),
-        shape=None,  # not in the file
-        exponent_theory=c["exponent_theory"],
-        exponent_expected=_float(c.get("exponent_expected")),
-        exponent_fit=_float(c.get("exponent_fit")),
-        exponent_ci=_floats(c.get("exponent_ci")),
-        window=window,
-        window_decades=0.0 if window is None else math.log10(window[1]) - math.log10(window[0]),
-        prefactor_fit=_float(c.get("prefactor_fit")),
-        prefactor_fit_ci=_floats(c.get("prefactor_fit_ci")),
-        prefactor_theory=c.get("prefactor_theory"),
-        prefactor_placeholder=c.get("prefactor_placeholder", False),
-        prefactor_theory_rel_err=c.get("prefactor_theory_rel_err"),
-        prefactor_ratio=c.get("prefactor_ratio"),
-        coefficient_fit=c.get("coefficient_fit"),
-        in_published_range=c.get("in_published_range"),
-        exponent_ok=flags[0],
-        prefactor_ok=flags[1],
-        numbers_ok=flags[2],
-        aic=_float(c.get("aic")),
-        delta_aic=_float(c.get("delta_aic")),
-        checks=sum(flag is True for flag in flags),
-        consistent=c.get("consistent", False),
-        rank=c.get("rank", 0),
-        reason=c.get("numbers_reason", ""),
-        note=c.get("note", ""),
-    )
 
 
 def _crossover_from_dict(x: Mapping) -> CrossoverFit:
@@ -364,12 +293,13 @@ def verdict_from_dict(data: Mapping) -> RegimeVerdict:
         "decidable": data.get("decidable", False),
         "sentence": data.get("sentence", ""),
         "numbers": numbers,
-        "candidates": tuple(_candidate_from_dict(c) for c in data.get("candidates") or ()),
+        "candidates": tuple(candidate_from_dict(c) for c in data.get("candidates") or ()),
     }
     if not data.get("success"):
         return RegimeVerdict(False, data.get("reason", ""), **base)
     dominant, base["candidates"] = _dominant_from_dict(data, base["candidates"])
     contact = data.get("contact") or {}
+    validity = data.get("validity") or {}
     local = data.get("local_exponent")
     models = data.get("models") or ()
     settings = dict(data.get("settings") or {})
@@ -394,6 +324,13 @@ def verdict_from_dict(data: Mapping) -> RegimeVerdict:
         t0_fixed=contact.get("fixed", False),
         n_points=data.get("n_points", 0),
         time_range=_floats(data.get("time_range_s")),
+        validity_ratio=validity.get("max_radius_ratio"),
+        validity_regime=validity.get("regime", ""),
+        n_beyond_validity=validity.get("n_left_out", 0),
+        edge_levels=tuple(data.get("edge_levels") or ()),
+        warnings=tuple(
+            VerdictWarning(w["code"], w["message"]) for w in data.get("warnings") or ()
+        ),
         settings=settings,
         **base,
     )

@@ -36,6 +36,7 @@ from ...fitting._windows import consistent_window, points_in
 from ..regimes._crossovers import crossovers, power_law_crossing
 from ._judge import EXPONENT_TOLERANCE, judge, rank
 from ._materials import group_relative_uncertainty
+from ._systematics import edge_interval
 
 __all__ = ["CrossoverFit", "predicted_crossover", "evaluate_one_regime", "evaluate_two_regimes"]
 
@@ -123,7 +124,23 @@ def _expected_exponent(shape, points, t0, f_scale):
     return fit.exponent if fit else apparent_exponent(shape, points.time - t0, 1.0 / points.s**2)
 
 
-def _shape_evidence(data, shape, local, t0, lo, hi, f_scale, search, bootstrap, seed):
+def _level_estimates(levels, first, last, shape, with_free, lo, hi, fit_kw):
+    """Point estimates (n free, A at the law's n) on each edge level's points in [first, last]."""
+    ns, prefactors = [], []
+    for level in levels:
+        on = level.subset((level.time >= first) & (level.time <= last))
+        if len(on) < 3:
+            continue
+        if with_free:
+            free = linear_fit(on, LinearModel(None), lo, hi, **fit_kw)
+            ns.append(free.exponent if free else math.nan)
+        fixed = linear_fit(on, LinearModel(shape), lo, hi, **fit_kw)
+        prefactors.append(fixed.prefactor if fixed else math.nan)
+    return ns, prefactors
+
+
+def _shape_evidence(data, shape, local, t0, lo, hi, f_scale, search, bootstrap, seed, levels):
+    # Over 80 lines only by the evidence dict it returns (one key a line).
     window = consistent_window(local, shape, tolerance=EXPONENT_TOLERANCE)
     pts = points_in(data, t0, window) if window is not None else None
     fit_kw = {"loss": "soft_l1", "f_scale": f_scale}
@@ -150,6 +167,13 @@ def _shape_evidence(data, shape, local, t0, lo, hi, f_scale, search, bootstrap, 
             on, LinearModel(shape), fixed, f_scale=f_scale, n=bootstrap, seed=seed, **redraw
         )
     expected = _expected_exponent(shape, on, free.t0 if free else t0, f_scale)
+    n_sys = a_sys = _NAN2
+    if levels:
+        ns, prefactors = _level_estimates(
+            levels, on.time[0], on.time[-1], shape, bool(free), lo, hi, fit_kw
+        )
+        n_sys = edge_interval(free.exponent, ns) if free else _NAN2
+        a_sys = edge_interval(fixed.prefactor, prefactors) if fixed else _NAN2
     return {
         "exponent_expected": expected,
         "exponent_fit": free.exponent if free else math.nan,
@@ -157,6 +181,8 @@ def _shape_evidence(data, shape, local, t0, lo, hi, f_scale, search, bootstrap, 
         "window": None if pts is None else (float(pts.time[0] - t0), float(pts.time[-1] - t0)),
         "prefactor_fit": fixed.prefactor if fixed else math.nan,
         "prefactor_fit_ci": fixed.prefactor_ci if fixed else _NAN2,
+        "exponent_sys_ci": n_sys,
+        "prefactor_sys_ci": a_sys,
         "aic": search.singles[shape].aic,
         "fit": free,
         "law_fit": fixed,
@@ -164,7 +190,20 @@ def _shape_evidence(data, shape, local, t0, lo, hi, f_scale, search, bootstrap, 
 
 
 def evaluate_one_regime(
-    *, data, lo, hi, f_scale, cands, shapes, search, relative, bootstrap, seed, numbers, geometry
+    *,
+    data,
+    lo,
+    hi,
+    f_scale,
+    cands,
+    shapes,
+    search,
+    relative,
+    bootstrap,
+    seed,
+    numbers,
+    geometry,
+    levels=(),
 ):
     """Ranked candidates of a one-regime series."""
     t0 = search.free.t0
@@ -172,7 +211,7 @@ def evaluate_one_regime(
     evidence = {}
     for shape in dict.fromkeys(shapes.values()):
         evidence[shape] = _shape_evidence(
-            data, shape, local, t0, lo, hi, f_scale, search, bootstrap, seed
+            data, shape, local, t0, lo, hi, f_scale, search, bootstrap, seed, levels
         )
     fits = [
         judge(
@@ -220,8 +259,49 @@ def _side_exponent(data, lo, hi, side, context, pair_key, f_scale, bootstrap, se
     return fit
 
 
+def _side_levels(levels, lo, hi, context, pair_key, f_scale, seed):
+    """Per side, the edge levels' point estimates: ([n], [A of the context pair's law])."""
+    out = {"early": ([], []), "late": ([], [])}
+    if pair_key is None:
+        return out
+    for level in levels:
+        pair = blend_fit(
+            level,
+            lo,
+            hi,
+            kind="blend",
+            early=pair_key[0],
+            late=pair_key[1],
+            sharpness=context.sharpness,
+            direction=context.direction,
+            loss="soft_l1",
+            f_scale=f_scale,
+            t0_start=context.t0,
+        )
+        for side in ("early", "late"):
+            free = _side_exponent(level, lo, hi, side, context, pair_key, f_scale, 0, seed)
+            n = free.early_exponent if side == "early" else free.late_exponent
+            a = pair.early_prefactor if side == "early" else pair.late_prefactor
+            out[side][0].append(n if free else math.nan)
+            out[side][1].append(a if pair else math.nan)
+    return out
+
+
 def evaluate_two_regimes(
-    *, data, lo, hi, f_scale, cands, shapes, search, relative, bootstrap, seed, numbers, geometry
+    *,
+    data,
+    lo,
+    hi,
+    f_scale,
+    cands,
+    shapes,
+    search,
+    relative,
+    bootstrap,
+    seed,
+    numbers,
+    geometry,
+    levels=(),
 ):
     """Ranked candidates on each side of the crossover, and the crossover itself."""
     pair_key, context = search.context, search.context_fit
@@ -244,6 +324,7 @@ def evaluate_two_regimes(
         )
     tc = context.crossover_time
     tau = data.time - t0
+    at_levels = _side_levels(levels, lo, hi, context, pair_key, f_scale, seed)
     sides = []
     for side in ("early", "late"):
         taus = tau[tau < tc] if side == "early" else tau[tau > tc]
@@ -257,6 +338,7 @@ def evaluate_two_regimes(
             ci = free.early_exponent_ci if side == "early" else free.late_exponent_ci
         else:
             n_fit, ci = math.nan, _NAN2
+        n_sys = edge_interval(n_fit, at_levels[side][0]) if levels else _NAN2
         fits = []
         for c in cands:
             shape = shapes[c.regime.key]
@@ -264,9 +346,11 @@ def evaluate_two_regimes(
             if pair_key is not None:
                 key = (shape, pair_key[1]) if side == "early" else (pair_key[0], shape)
                 pf = context if key == pair_key else search.pairs.get(key)
-            prefactor = math.nan
+            prefactor, a_sys = math.nan, _NAN2
             if pf:
                 prefactor = pf.early_prefactor if side == "early" else pf.late_prefactor
+            if pf and levels and key == pair_key:
+                a_sys = edge_interval(prefactor, at_levels[side][1])
             fits.append(
                 judge(
                     c,
@@ -277,7 +361,11 @@ def evaluate_two_regimes(
                     exponent_ci=ci,
                     window=window,
                     prefactor_fit=prefactor,
+                    # Issue 13 merge point, the one place: the blend's prefactor intervals
+                    # (BlendFit.early_prefactor_ci / late_prefactor_ci of `pf`) go here.
                     prefactor_fit_ci=_NAN2,
+                    exponent_sys_ci=n_sys,
+                    prefactor_sys_ci=a_sys,
                     aic=pf.aic if pf else math.nan,
                     group_rel_err=group_relative_uncertainty(c.regime, relative),
                     fit=free,

@@ -3,16 +3,15 @@
 For each candidate regime of the sample:
 
 - (a) exponent: the law's exponent (for the log law, what a power-law fit
-  of that law over the same points reports) lies inside the fitted 95 %
-  interval, widened by :data:`EXPONENT_TOLERANCE` (0.02: the accuracy the
-  issue asks of a fitted exponent, and an allowance for what the model
-  leaves out, such as a small radius offset, docs/physics.md §4.2);
+  of that law over the same points reports) lies inside the combined 95 %
+  interval of the fitted exponent (statistical ⊕ systematic,
+  :mod:`._systematics`); no tolerance is added (:data:`EXPONENT_TOLERANCE`
+  only sets how far the local exponent may stray inside a window);
 - (b) prefactor: the fitted prefactor divided by the published one (C times
   the group; C = 1 where no C is published) lies in :data:`PREFACTOR_BAND`
   (0.3–3, "of order one"), and the fitted C overlaps the published range
   when there is one whose status is not M (docs/physics.md: values from memory
-  are priors, never hard checks); the interval of C carries the fit's
-  interval and twice the material uncertainty;
+  are priors, never hard checks); the combined interval of C is used;
 - (c) numbers: the sample's dimensionless numbers allow the regime
   (:meth:`Regime.check`);
 - (d) information: the AIC of the candidate's law over the common points.
@@ -38,6 +37,7 @@ from dataclasses import dataclass, field
 from ...fitting._core import LawShape
 from ...fitting._windows import EXPONENT_TOLERANCE
 from ..regimes._catalogue import Candidate, Regime
+from ._systematics import coefficient_systematic, combine
 
 __all__ = ["EXPONENT_TOLERANCE", "PREFACTOR_BAND", "CandidateFit", "order_one"]
 
@@ -113,6 +113,26 @@ class CandidateFit:
         The fit behind `exponent_fit` (n free; a blend across a crossover).
     law_fit : LawFit or BlendFit or None
         The fit behind `prefactor_fit` (the law at its own exponent).
+    exponent_sys_ci, prefactor_sys_ci : tuple of float
+        Systematic intervals of n and A: the range of the estimates at the
+        edge levels measured (the estimate itself at both ends when only one
+        was); NaN when not estimated.
+    exponent_combined_ci, prefactor_combined_ci : tuple of float
+        Statistical ⊕ systematic (:func:`._systematics.combine`).
+    coefficient_ci, coefficient_sys_ci, coefficient_combined_ci : tuple of float
+        The intervals of the dimensionless C: statistical (A's over the
+        group), systematic (A's edge-level range ⊕ the group's material
+        uncertainty at 95 %), combined; NaN when C is not known.
+    exponent_inside : bool
+        Whether `exponent_expected` lies inside the combined interval itself
+        (check (a) adds the stated tolerance).
+    exponent_gap : float
+        ``exponent_expected - exponent_fit``.
+    exponent_gap_widths : float
+        ``|exponent_gap|`` over the combined interval's half-width on that
+        side (≤ 1 when the candidate's exponent lies inside).
+    prefactor_unit : str
+        SI unit of A (``"m s^-1/2"``; ``"m s^-1"`` for the log law's ``C u``).
     """
 
     regime: Regime
@@ -145,6 +165,17 @@ class CandidateFit:
     note: str
     fit: object = field(default=None, repr=False, compare=False)
     law_fit: object = field(default=None, repr=False, compare=False)
+    exponent_sys_ci: tuple[float, float] = (math.nan, math.nan)
+    exponent_combined_ci: tuple[float, float] = (math.nan, math.nan)
+    prefactor_sys_ci: tuple[float, float] = (math.nan, math.nan)
+    prefactor_combined_ci: tuple[float, float] = (math.nan, math.nan)
+    coefficient_ci: tuple[float, float] = (math.nan, math.nan)
+    coefficient_sys_ci: tuple[float, float] = (math.nan, math.nan)
+    coefficient_combined_ci: tuple[float, float] = (math.nan, math.nan)
+    exponent_inside: bool = False
+    exponent_gap: float = math.nan
+    exponent_gap_widths: float = math.nan
+    prefactor_unit: str = ""
 
 
 def order_one(fitted: float, predicted: float) -> bool:
@@ -164,28 +195,41 @@ def _g(x, digits=3) -> str:
     return "—" if x is None or not math.isfinite(x) else f"{x:.{digits}g}"
 
 
-def _prefactor_check(candidate: Candidate, prefactor_fit, prefactor_fit_ci, group_rel_err):
-    """Check (b): (theory, placeholder, ratio, coefficient, in_range, passed, notes)."""
+def prefactor_unit(regime: Regime) -> str:
+    """SI unit of the dimensional prefactor A (``m s^-1/2``; ``m s^-1`` for the log laws)."""
+    return "m s^-1" if regime.logarithmic else f"m s^-{regime.exponent}"
+
+
+def _coefficient_intervals(group, prefactor_fit, prefactor_ci, prefactor_sys, group_rel_err):
+    """(C, statistical, systematic, combined) of the dimensionless C = A / group."""
+    nan2 = (math.nan, math.nan)
+    if group is None or not math.isfinite(prefactor_fit):
+        return None, nan2, nan2, nan2
+    coefficient = prefactor_fit / group
+    stat = tuple(v / group for v in prefactor_ci)
+    sys = coefficient_systematic(coefficient, prefactor_fit, prefactor_sys, group_rel_err)
+    return coefficient, stat, sys, combine(coefficient, stat, sys)
+
+
+def _prefactor_check(candidate: Candidate, prefactor_fit, coefficient, c_combined):
+    """Check (b): (theory, placeholder, ratio, in_range, passed, notes)."""
     reg = candidate.regime
     group = candidate.group
     placeholder = reg.prefactor is None
     c_pub = 1.0 if placeholder else reg.prefactor
     theory = None if group is None else c_pub * group
-    ratio = coefficient = in_range = None
+    ratio = in_range = None
     b = None
     notes = []
     if theory is not None and math.isfinite(prefactor_fit):
         ratio = prefactor_fit / theory
-        coefficient = prefactor_fit / group
         b = order_one(prefactor_fit, theory)
         if not b:
             notes.append(f"C/C_pub = {_g(ratio)} (b)")
         if reg.prefactor_range is not None:
-            spread = 2.0 * (group_rel_err or 0.0)
-            c_lo, c_hi = (v / group for v in prefactor_fit_ci)
+            c_lo, c_hi = c_combined
             if not (math.isfinite(c_lo) and math.isfinite(c_hi)):
                 c_lo = c_hi = coefficient
-            c_lo, c_hi = c_lo * (1.0 - spread), c_hi * (1.0 + spread)
             in_range = c_hi >= reg.prefactor_range[0] and c_lo <= reg.prefactor_range[1]
             if reg.prefactor_status != "M" and not in_range:
                 b = False
@@ -193,7 +237,17 @@ def _prefactor_check(candidate: Candidate, prefactor_fit, prefactor_fit_ci, grou
                     f"C = {_g(coefficient)} outside the published "
                     f"{reg.prefactor_range[0]:g}–{reg.prefactor_range[1]:g} (b)"
                 )
-    return theory, placeholder, ratio, coefficient, in_range, b, notes
+    return theory, placeholder, ratio, in_range, b, notes
+
+
+def _exponent_gap(expected, fit, combined) -> tuple[float, float]:
+    """(expected − fit, that distance over the combined half-width on its side)."""
+    gap = expected - fit
+    lo, hi = combined
+    half = (hi - fit) if gap > 0 else (fit - lo)
+    if not (math.isfinite(gap) and math.isfinite(half)):
+        return gap, math.nan
+    return gap, (abs(gap) / half if half > 0 else math.inf)
 
 
 def judge(
@@ -209,24 +263,29 @@ def judge(
     prefactor_fit_ci,
     aic,
     group_rel_err,
+    exponent_sys_ci=(math.nan, math.nan),
+    prefactor_sys_ci=(math.nan, math.nan),
     fit=None,
     law_fit=None,
 ) -> CandidateFit:
+    # Over 80 lines by its keyword signature and the record it fills (one field a line).
     """Make checks (a)–(c) for one candidate (ranking fields are filled in by :func:`rank`)."""
     reg = candidate.regime
+    combined = combine(exponent_fit, exponent_ci, exponent_sys_ci)
+    lo, hi = combined
     tol = EXPONENT_TOLERANCE
-    lo, hi = exponent_ci
     in_domain = window is None or window[1] <= shape.domain_end * (1.0 + 1e-9)
-    a = bool(
-        window is not None
-        and in_domain
-        and math.isfinite(lo)
-        and math.isfinite(hi)
-        and lo - tol <= exponent_expected <= hi + tol
+    usable = window is not None and in_domain and math.isfinite(lo) and math.isfinite(hi)
+    inside = bool(usable and lo <= exponent_expected <= hi)
+    a = bool(usable and lo - tol <= exponent_expected <= hi + tol)
+    a_combined = combine(prefactor_fit, prefactor_fit_ci, prefactor_sys_ci)
+    coefficient, c_stat, c_sys, c_comb = _coefficient_intervals(
+        candidate.group, prefactor_fit, prefactor_fit_ci, prefactor_sys_ci, group_rel_err
     )
-    theory, placeholder, ratio, coefficient, in_range, b, notes = _prefactor_check(
-        candidate, prefactor_fit, prefactor_fit_ci, group_rel_err
+    theory, placeholder, ratio, in_range, b, notes = _prefactor_check(
+        candidate, prefactor_fit, coefficient, c_comb
     )
+    gap, widths = _exponent_gap(exponent_expected, exponent_fit, combined)
     if not a:
         if not in_domain:
             notes.insert(
@@ -238,7 +297,9 @@ def judge(
             )
         else:
             notes.insert(
-                0, f"n = {_g(exponent_fit)} [{_g(lo)}, {_g(hi)}] vs {exponent_expected:.3g} (a)"
+                0,
+                f"n = {_g(exponent_fit)} [{_g(lo)}, {_g(hi)}] (combined) vs "
+                f"{exponent_expected:.3g}, beyond the tolerance ±{tol:g} (a)",
             )
     if not candidate.plausible:
         notes.append(f"numbers: {candidate.reason} (c)")
@@ -252,7 +313,7 @@ def judge(
         exponent_theory=float(reg.exponent),
         exponent_expected=float(exponent_expected),
         exponent_fit=float(exponent_fit),
-        exponent_ci=(float(lo), float(hi)),
+        exponent_ci=tuple(float(v) for v in exponent_ci),
         window=window,
         window_decades=decades,
         prefactor_fit=float(prefactor_fit),
@@ -275,6 +336,17 @@ def judge(
         note="; ".join(notes),
         fit=fit,
         law_fit=law_fit,
+        exponent_sys_ci=tuple(float(v) for v in exponent_sys_ci),
+        exponent_combined_ci=combined,
+        prefactor_sys_ci=tuple(float(v) for v in prefactor_sys_ci),
+        prefactor_combined_ci=a_combined,
+        coefficient_ci=c_stat,
+        coefficient_sys_ci=c_sys,
+        coefficient_combined_ci=c_comb,
+        exponent_inside=inside,
+        exponent_gap=float(gap),
+        exponent_gap_widths=float(widths),
+        prefactor_unit=prefactor_unit(reg),
     )
 
 

@@ -33,26 +33,26 @@ import math
 from collections.abc import Mapping
 from dataclasses import dataclass, field
 
-import numpy as np
-
-from ...contact._bracket import bracket_before_first_point, default_bracket
-from ...errors import FitError
+from ...contact._bracket import bracket_before_first_point
 from ...fitting._core import (
     ROBUST_SCALE,
     LawShape,
-    as_array,
     data_problem,
     make_series,
     noise_scale,
 )
 from ...fitting._local import LocalExponent
-from ...fitting._windows import AIC_THRESHOLD, ModelScore, search_crossover
-from ..regimes._catalogue import SCALING_GEOMETRIES, candidates
+from ...fitting._windows import AIC_THRESHOLD, EXPONENT_TOLERANCE, ModelScore, search_crossover
+from ..regimes._catalogue import candidates
 from ..regimes._numbers import SampleNumbers
 from ._evidence import CrossoverFit, evaluate_one_regime, evaluate_two_regimes
-from ._judge import EXPONENT_TOLERANCE, PREFACTOR_BAND, CandidateFit, decide
+from ._inputs import check_call, check_levels, finite, t0_bracket
+from ._judge import PREFACTOR_BAND, CandidateFit, decide
 from ._materials import resolve_material_uncertainty
+from ._systematics import Z95
 from ._text import verdict_sentence
+from ._validity import validity_limit, within_validity
+from ._warnings import VerdictWarning, verdict_warnings
 
 __all__ = ["RegimeVerdict", "CrossoverFit", "CandidateFit", "analyze_series"]
 
@@ -107,9 +107,22 @@ class RegimeVerdict:
     geometry, view : str
         As given.
     settings : Mapping
-        Tolerances and thresholds used (``exponent_tolerance``,
+        Tolerances and thresholds used (``exponent_tolerance``, stated
+        in the sentence whenever a verdict needs it,
         ``prefactor_band``, ``aic_threshold``, ``bootstrap``, ``seed``,
-        ``material_uncertainty``, ``loss``, ``robust_scale``).
+        ``material_uncertainty``, ``material_z``, ``loss``, ``robust_scale``,
+        ``interval_combination``).
+    edge_levels : tuple of float
+        The other edge levels whose radii gave the systematic intervals
+        (empty when only the main level was measured).
+    validity_ratio : float or None
+        The r/R bound the series was cut at (:mod:`._validity`); None: no cut.
+    validity_regime : str
+        The regime whose bound it is.
+    n_beyond_validity : int
+        Measured points after contact left out because r > validity_ratio × R.
+    warnings : tuple of VerdictWarning
+        What a reader of the numbers must know (:mod:`._warnings`).
     """
 
     success: bool
@@ -134,68 +147,14 @@ class RegimeVerdict:
     geometry: str = ""
     view: str = ""
     settings: Mapping = field(default_factory=dict)
+    edge_levels: tuple[float, ...] = ()
+    validity_ratio: float | None = None
+    validity_regime: str = ""
+    n_beyond_validity: int = 0
+    warnings: tuple[VerdictWarning, ...] = ()
 
     def __bool__(self) -> bool:
         return self.success
-
-
-def _finite(name, value, *, allow_none=False, positive=False):
-    if value is None and allow_none:
-        return None
-    ok = isinstance(value, int | float | np.floating) and not isinstance(value, bool)
-    if not (ok and math.isfinite(value)) or (positive and value < 0):
-        what = "a finite time ≥ 0 in s" if positive else "a finite time in s"
-        raise FitError("must be a number", key=name, value=value, expected=what)
-    return float(value)
-
-
-def _bracket(time, contact_time, contact_time_err, contact_bracket, t0):
-    """(t0, t0) when fixed; the given bracket, checked; else the contact package's default."""
-    if t0 is not None:
-        return t0, t0
-    if contact_bracket is not None:
-        try:
-            lo, hi = (float(v) for v in contact_bracket)
-        except (TypeError, ValueError):
-            raise FitError(
-                "must be two times (lo, hi) in s", key="contact_bracket", value=contact_bracket
-            ) from None
-        if not (math.isfinite(lo) and math.isfinite(hi) and lo <= hi):
-            raise FitError("must be finite with lo <= hi", key="contact_bracket", value=(lo, hi))
-        return lo, hi
-    return default_bracket(time, contact_time, contact_time_err)
-
-
-def _check_call(time, radius, radius_err, status, numbers, geometry, view, seed, bootstrap):
-    t = as_array("time", time)
-    r = as_array("radius", radius, len(t))
-    e = (
-        np.full(len(t), np.nan)
-        if radius_err is None
-        else as_array("radius_err", radius_err, len(t))
-    )
-    try:
-        st = [str(s) for s in status]
-    except TypeError:
-        raise FitError("must be a sequence of status strings", key="status") from None
-    if len(st) != len(t):
-        raise FitError(f"has {len(st)} values, time has {len(t)}", key="status")
-    if not isinstance(numbers, SampleNumbers):
-        raise FitError("must be a SampleNumbers record (see sample_numbers)", key="numbers")
-    if geometry not in SCALING_GEOMETRIES:
-        raise FitError(
-            "is not a known choice",
-            key="geometry",
-            value=geometry,
-            expected=" or ".join(SCALING_GEOMETRIES),
-        )
-    if view not in ("side", "bottom"):
-        raise FitError("is not a known choice", key="view", value=view, expected="side or bottom")
-    if isinstance(bootstrap, bool) or not isinstance(bootstrap, int) or bootstrap < 0:
-        raise FitError("must be a whole number ≥ 0", key="bootstrap", value=bootstrap)
-    if isinstance(seed, bool) or not isinstance(seed, int):
-        raise FitError("must be a whole number", key="seed", value=seed)
-    return t, r, e, np.array([s == "ok" for s in st], dtype=bool)
 
 
 def analyze_series(
@@ -216,7 +175,7 @@ def analyze_series(
     bootstrap=200,
     radius_levels=None,
 ) -> RegimeVerdict:
-    # Over 80 lines only by its signature and numpydoc docstring; the body is 36 lines.
+    # Over 80 lines only by its signature and numpydoc docstring; the body is 40 lines.
     """Decide which scaling regime governs a radius series.
 
     Parameters
@@ -255,10 +214,11 @@ def analyze_series(
         Seed of the bootstrap.
     bootstrap : int
         Bootstrap resamples (default 200; 0 gives normal-approximation intervals).
-    radius_levels : Mapping[float, array_like], optional
-        The radii (m) of the same frames measured at other edge levels (NaN
-        where not measured), by level; used for the systematic interval
-        (accepted and not used yet on this branch).
+    radius_levels : Mapping[float, (F,) array_like], optional
+        Radii of the same frames measured at other edge levels (level → radii,
+        NaN where not measured). The fits are repeated on each (point
+        estimates, same window and bracket); the range of the estimates is
+        the systematic interval (:mod:`._systematics`).
 
     Returns
     -------
@@ -273,19 +233,20 @@ def analyze_series(
         For a bad call: arrays of different lengths, an unknown geometry or
         view, a bad bracket, bootstrap count or material uncertainty.
     """
-    t, r, e, ok = _check_call(
+    t, r, e, ok = check_call(
         time, radius, radius_err, status, numbers, geometry, view, seed, bootstrap
     )
-    t0 = _finite("t0", t0, allow_none=True)
+    levels = check_levels(radius_levels, len(t))
+    t0 = finite("t0", t0, allow_none=True)
     if t0 is None:
-        contact_time = _finite("contact_time", contact_time)
-    contact_time_err = _finite(
-        "contact_time_err", contact_time_err, allow_none=True, positive=True
-    )
+        contact_time = finite("contact_time", contact_time)
+    contact_time_err = finite("contact_time_err", contact_time_err, allow_none=True, positive=True)
     relative = resolve_material_uncertainty(material_uncertainty)
-    lo, hi = _bracket(t, contact_time, contact_time_err, contact_bracket, t0)
+    lo, hi = t0_bracket(t, contact_time, contact_time_err, contact_bracket, t0)
     settings = {
         "exponent_tolerance": EXPONENT_TOLERANCE,
+        "interval_combination": "statistical ⊕ systematic: each side's distance in quadrature",
+        "material_z": Z95,
         "prefactor_band": PREFACTOR_BAND,
         "aic_threshold": AIC_THRESHOLD,
         "bootstrap": bootstrap,
@@ -301,28 +262,57 @@ def analyze_series(
         "geometry": geometry,
         "view": view,
         "settings": settings,
+        "edge_levels": tuple(level for level, _ in levels),
     }
     series = make_series(t[ok], r[ok], e[ok])
+    level_series = tuple(make_series(t[ok], radii[ok], e[ok]) for _, radii in levels)
     lo, hi = bracket_before_first_point(lo, hi, series.time, t)
     base["t0_bracket"] = (lo, hi)
     problem = data_problem(series, lo, hi, reference=t0 if t0 is not None else contact_time)
     if problem:
         return RegimeVerdict(False, problem[0].upper() + problem[1:] + ".", **base)
-    return _judged(series, lo, hi, relative, bootstrap, seed, base)
-
-
-def _judged(series, lo, hi, relative, bootstrap, seed, base) -> RegimeVerdict:
-    """The verdict on points that can support a fit, t0 in (lo, hi); `base` fields as given."""
-    numbers, geometry, view = base["numbers"], base["geometry"], base["view"]
-    data = series.subset(series.time > hi)
-    f_scale = ROBUST_SCALE * noise_scale(data)
     cands = candidates(numbers, geometry, view)
+    ratio, which = validity_limit(cands)
+    keep = within_validity(series, ratio, numbers.radius)
+    base.update(
+        validity_ratio=ratio,
+        validity_regime=which,
+        n_beyond_validity=int((~keep & (series.time > hi)).sum()),
+    )
+    if not keep.all():
+        last = series.time[keep].max() if keep.any() else -math.inf
+        series = series.subset(keep)
+        level_series = tuple(s.subset(s.time <= last) for s in level_series)
+        problem = data_problem(series, lo, hi, reference=t0 if t0 is not None else contact_time)
+        if problem:
+            why = f"after leaving out the {base['n_beyond_validity']} points beyond r/R = "
+            return RegimeVerdict(
+                False, f"{problem[0].upper()}{problem[1:]} ({why}{ratio:.2g}).", **base
+            )
+    verdict, decisions = _judged(
+        series, level_series, lo, hi, relative, bootstrap, seed, cands, base
+    )
+    if not verdict:
+        return verdict
+    return dataclasses.replace(
+        verdict,
+        sentence=verdict_sentence(verdict, decisions),
+        warnings=verdict_warnings(verdict, decisions, [str(x) for x in status], t),
+    )
+
+
+def _judged(series, levels, lo, hi, relative, bootstrap, seed, cands, base):
+    """(verdict, decisions) on points that can support a fit, t0 in (lo, hi); `base` as given."""
+    numbers, geometry = base["numbers"], base["geometry"]
+    data = series.subset(series.time > hi)
+    levels = tuple(s.subset(s.time > hi) for s in levels)
+    f_scale = ROBUST_SCALE * noise_scale(data)
     shapes = {c.regime.key: _shape(c, numbers) for c in cands}
     search = search_crossover(
         data, list(dict.fromkeys(shapes.values())), lo, hi, loss="soft_l1", f_scale=f_scale
     )
     if not search.free:
-        return RegimeVerdict(False, search.free.message, **base)
+        return RegimeVerdict(False, search.free.message, **base), ()
     context = dict(
         data=data,
         lo=lo,
@@ -336,6 +326,7 @@ def _judged(series, lo, hi, relative, bootstrap, seed, base) -> RegimeVerdict:
         seed=seed,
         numbers=numbers,
         geometry=geometry,
+        levels=levels,
     )
     if search.two_regime:
         result = evaluate_two_regimes(**context)
@@ -365,7 +356,7 @@ def _judged(series, lo, hi, relative, bootstrap, seed, base) -> RegimeVerdict:
         time_range=(float(data.time[0] - result["t0"]), float(data.time[-1] - result["t0"])),
         **base,
     )
-    return dataclasses.replace(verdict, sentence=verdict_sentence(verdict, decisions))
+    return verdict, decisions
 
 
 def _shape(candidate, numbers) -> LawShape:
