@@ -25,7 +25,6 @@ from __future__ import annotations
 import math
 from dataclasses import dataclass
 
-from ...contact._bracket import redraw_interval
 from ...errors import ExperimentError
 from ...fitting._bootstrap import bootstrap_blend, bootstrap_linear
 from ...fitting._core import Series, apparent_exponent
@@ -127,7 +126,6 @@ def _shape_evidence(data, shape, local, t0, lo, hi, f_scale, search, bootstrap, 
     window = consistent_window(local, shape, tolerance=EXPONENT_TOLERANCE)
     pts = points_in(data, t0, window) if window is not None else None
     fit_kw = {"loss": "soft_l1", "f_scale": f_scale}
-    redraw = {"t0_redraw": redraw_interval((lo, hi))}
     if pts is not None:
         free = (
             search.free
@@ -136,7 +134,7 @@ def _shape_evidence(data, shape, local, t0, lo, hi, f_scale, search, bootstrap, 
         )
         if free and bootstrap:
             free = bootstrap_linear(
-                pts, LinearModel(None), free, f_scale=f_scale, n=bootstrap, seed=seed, **redraw
+                pts, LinearModel(None), free, f_scale=f_scale, n=bootstrap, seed=seed
             )
     if pts is None or not free:
         pts, free = None, None
@@ -147,7 +145,7 @@ def _shape_evidence(data, shape, local, t0, lo, hi, f_scale, search, bootstrap, 
     )
     if fixed and bootstrap:
         fixed = bootstrap_linear(
-            on, LinearModel(shape), fixed, f_scale=f_scale, n=bootstrap, seed=seed, **redraw
+            on, LinearModel(shape), fixed, f_scale=f_scale, n=bootstrap, seed=seed
         )
     expected = _expected_exponent(shape, on, free.t0 if free else t0, f_scale)
     return {
@@ -213,10 +211,7 @@ def _side_exponent(data, lo, hi, side, context, pair_key, f_scale, bootstrap, se
         data, lo, hi, loss="soft_l1", f_scale=f_scale, t0_start=context.t0, start=first, **spec
     )
     if fit and bootstrap:
-        redraw = redraw_interval((lo, hi))
-        fit = bootstrap_blend(
-            data, fit, f_scale=f_scale, n=bootstrap, seed=seed, t0_redraw=redraw, **spec
-        )
+        fit = bootstrap_blend(data, fit, f_scale=f_scale, n=bootstrap, seed=seed, **spec)
     return fit
 
 
@@ -236,7 +231,6 @@ def evaluate_two_regimes(
             f_scale=f_scale,
             n=bootstrap,
             seed=seed,
-            t0_redraw=redraw_interval((lo, hi)),
             kind="blend",
             early=pair_key[0],
             late=pair_key[1],

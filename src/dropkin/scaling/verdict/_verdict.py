@@ -149,8 +149,8 @@ def _finite(name, value, *, allow_none=False, positive=False):
     return float(value)
 
 
-def _bracket(time, contact_time, contact_time_err, contact_bracket, t0):
-    """(t0, t0) when fixed; the given bracket, checked; else the contact package's default."""
+def _bracket(time, status, contact_time, contact_bracket, t0):
+    """(t0, t0) when fixed; the given bracket, checked; else contact's default bracket."""
     if t0 is not None:
         return t0, t0
     if contact_bracket is not None:
@@ -163,7 +163,7 @@ def _bracket(time, contact_time, contact_time_err, contact_bracket, t0):
         if not (math.isfinite(lo) and math.isfinite(hi) and lo <= hi):
             raise FitError("must be finite with lo <= hi", key="contact_bracket", value=(lo, hi))
         return lo, hi
-    return default_bracket(time, contact_time, contact_time_err)
+    return default_bracket(time, status, contact_time)
 
 
 def _check_call(time, radius, radius_err, status, numbers, geometry, view, seed, bootstrap):
@@ -233,8 +233,9 @@ def analyze_series(
     contact_time_err : float, optional
         Its standard uncertainty (s).
     contact_bracket : (float, float), optional
-        Interval that holds the contact instant (s). Default: contact_time ±
-        2 contact_time_err, or ± half a frame when no uncertainty is known
+        Interval that holds the contact instant (s). Default: the bracket the
+        frames prove, from the last ``before-contact`` frame to the first frame
+        in contact, or else the frame interval that holds `contact_time`
         (:func:`dropkin.contact.default_bracket`).
         t0 is fitted inside it, and no later than just before the first
         ``ok`` frame after its start (a measured bridge means contact has
@@ -278,7 +279,7 @@ def analyze_series(
         "contact_time_err", contact_time_err, allow_none=True, positive=True
     )
     relative = resolve_material_uncertainty(material_uncertainty)
-    lo, hi = _bracket(t, contact_time, contact_time_err, contact_bracket, t0)
+    lo, hi = _bracket(t, status, contact_time, contact_bracket, t0)
     settings = {
         "exponent_tolerance": EXPONENT_TOLERANCE,
         "prefactor_band": PREFACTOR_BAND,
