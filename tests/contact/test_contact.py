@@ -5,13 +5,11 @@ import math
 import numpy as np
 
 from dropkin.contact import (
-    BRACKET_SIGMAS,
     ContactEstimate,
     bracket_before_first_point,
     default_bracket,
     estimate_contact,
-    measured_bracket,
-    redraw_interval,
+    frames_bracket,
 )
 
 
@@ -44,29 +42,49 @@ def test_estimate_of_a_clean_series_is_inside_its_bracket_and_serialises():
     assert ContactEstimate.from_dict(contact.to_dict()).time == contact.time
 
 
-def test_measured_bracket_is_two_standard_errors_cut_to_the_frames():
-    assert BRACKET_SIGMAS == 2.0
-    assert measured_bracket(10.0, 1.0, None) == (8.0, 12.0)
-    assert measured_bracket(10.0, 1.0, [9.0, 20.0]) == (9.0, 12.0)
-    # Unknown, zero or non-finite error: the frames' bracket.
-    for err in (None, 0.0, math.nan):
-        assert measured_bracket(10.0, err, [9.0, 20.0]) == (9.0, 20.0)
-    # A cut that leaves nothing keeps the frames' bracket; nothing at all: None.
-    assert measured_bracket(10.0, 1.0, [13.0, 20.0]) == (13.0, 20.0)
-    assert measured_bracket(None, None, None) is None
+def test_frames_bracket_runs_from_the_last_frame_apart_to_the_first_in_contact():
+    # Issue 13: the bracket is what the frames prove. Reference: the status
+    # vocabulary (dropkin.status: ok, unresolved and at-edge show contact).
+    t = np.arange(8) * 1e-5
+    apart, unres, ok, lost = "before-contact", "unresolved", "ok", "not-found"
+    assert frames_bracket(t, [apart] * 3 + [ok] * 5) == (t[2], t[3])
+    # An unresolved frame shows a neck too narrow to measure: in contact.
+    assert frames_bracket(t, [apart] * 3 + [unres, unres] + [ok] * 3) == (t[2], t[3])
+    assert frames_bracket(t, [apart] * 3 + ["at-edge"] + [ok] * 4) == (t[2], t[3])
+    # A frame where nothing was found proves nothing either way.
+    assert frames_bracket(t, [apart, apart, lost, lost, unres] + [ok] * 3) == (t[1], t[4])
+    # A before-contact frame after a measured neck is a misreading.
+    assert frames_bracket(t, [apart, ok, ok, apart, ok, ok, ok, ok]) == (t[0], t[1])
+    # A before-contact frame amid unresolved ones moves the bracket's start.
+    assert frames_bracket(t, [apart, unres, apart, unres, ok, ok, ok, ok]) == (t[2], t[3])
+    # Nothing apart, or nothing in contact: no bracket.
+    assert frames_bracket(t, [ok] * 8) is None
+    assert frames_bracket(t, [apart] * 8) is None
+    # Other evidence of a gap (measure.json) reaches further back, never forward.
+    status = [apart] * 4 + [ok] * 4
+    assert frames_bracket(t, status, last_apart=t[1]) == (t[1], t[4])
+    assert frames_bracket(t, status, last_apart=3.5e-5) == (t[3], t[4])
+
+
+def test_frames_bracket_holds_the_estimate_of_a_clean_series():
+    # The measured instant of estimate_contact lies in the bracket the frames prove.
+    t = np.arange(40) * 1e-5
+    r = 0.02 * np.sqrt(np.clip(t - 3.05e-5, 0.0, None))
+    status = ["before-contact"] * 4 + ["ok"] * 36
+    r[:4] = np.nan
+    contact = estimate_contact(t, r, np.full(40, 1e-7), status)
+    lo, hi = frames_bracket(t, status)
+    assert (lo, hi) == (t[3], t[4]) and lo <= contact.time <= hi
 
 
 def test_default_bracket_and_the_cut_before_the_first_point():
     frames = np.arange(10) * 2e-6
-    assert default_bracket(frames, 5.0, 1.0) == (3.0, 7.0)
-    lo, hi = default_bracket(frames, 5e-6, None)  # ± half a frame
-    assert math.isclose(lo, 4e-6) and math.isclose(hi, 6e-6)
+    status = ["before-contact"] * 3 + ["ok"] * 7
+    assert default_bracket(frames, status, 5e-6) == (4e-6, 6e-6)  # the frames, not the instant
+    # No frame before contact: the frame interval holding the instant.
+    assert default_bracket(frames, ["ok"] * 10, 5e-6) == (4e-6, 6e-6)
+    assert default_bracket(frames, ["ok"] * 10, -1e-6) == (-3e-6, 0.0)
     # The first measured point after lo is at 5.5 µs: t0 ends 1 % of a frame before it.
     lo, hi = bracket_before_first_point(4e-6, 8e-6, np.array([3e-6, 5.5e-6]), frames)
     assert lo == 4e-6 and math.isclose(hi, 5.5e-6 - 0.02e-6)
     assert bracket_before_first_point(4e-6, 4e-6, np.array([5.5e-6]), frames) == (4e-6, 4e-6)
-
-
-def test_a_bootstrap_redraws_t0_over_a_free_bracket_only():
-    assert redraw_interval((1.0, 2.0)) == (1.0, 2.0)
-    assert redraw_interval((1.0, 1.0)) is None

@@ -139,6 +139,21 @@ def _holds(interval, value, *, name):
     assert lo - slack <= value <= hi + slack, f"{name}: {value!r} outside {interval!r}"
 
 
+def _holds_or_flagged(interval, value, flagged, *, name):
+    """The estimate lies in its interval, or outside it and the record says so (outside_ci).
+
+    Bootstrap percentile intervals are no longer widened to contain the
+    estimate (issue 13): an estimate outside its interval must be flagged,
+    and a flagged one must really lie outside.
+    """
+    if not flagged:
+        _holds(interval, value, name=name)
+        return
+    lo, hi = interval
+    _finite(lo, hi, value)
+    assert not lo <= value <= hi, f"{name}: {value!r} flagged but inside {interval!r}"
+
+
 def _data_span(t, r):
     """First and last time of the points a fit may use (finite, positive radius)."""
     t, r = np.asarray(t, float), np.asarray(r, float)
@@ -167,10 +182,12 @@ def check_law_fit(fit, t, r):
     _finite(fit.pivot_time, fit.pivot_radius, fit.residual_rms, fit.noise_scale)
     assert fit.prefactor > 0 and fit.pivot_radius > 0 and fit.pivot_time > 0
     assert fit.chi2 >= 0 and fit.residual_rms >= 0
-    _holds(fit.exponent_ci, fit.exponent, name="exponent_ci")
-    _holds(fit.prefactor_ci, fit.prefactor, name="prefactor_ci")
-    _holds(fit.pivot_radius_ci, fit.pivot_radius, name="pivot_radius_ci")
+    for key in ("exponent", "prefactor", "pivot_radius", "t0"):
+        flagged = key in fit.outside_ci
+        _holds_or_flagged(getattr(fit, f"{key}_ci"), getattr(fit, key), flagged, name=key)
     _holds(fit.t0_bracket, fit.t0, name="t0_bracket")
+    _holds(fit.t0_bracket, fit.t0_ci[0], name="t0_ci in t0_bracket")
+    _holds(fit.t0_bracket, fit.t0_ci[1], name="t0_ci in t0_bracket")
     _inside(fit.window, fit.t0, span, name="LawFit")
     assert MIN_POINTS <= fit.n_points <= span[2]
     assert fit.decades >= MIN_DECADES - 1e-9
@@ -186,9 +203,9 @@ def check_blend_fit(fit, t, r):
     _finite(fit.early_exponent, fit.late_exponent, fit.crossover_time, fit.crossover_radius)
     _finite(fit.t0, fit.chi2, fit.aic, fit.bic)
     assert fit.crossover_time > 0 and fit.crossover_radius > 0
-    _holds(fit.early_exponent_ci, fit.early_exponent, name="early_exponent_ci")
-    _holds(fit.late_exponent_ci, fit.late_exponent, name="late_exponent_ci")
-    _holds(fit.crossover_time_ci, fit.crossover_time, name="crossover_time_ci")
+    for key in ("early_exponent", "late_exponent", "crossover_time", "t0"):
+        flagged = key in fit.outside_ci
+        _holds_or_flagged(getattr(fit, f"{key}_ci"), getattr(fit, key), flagged, name=key)
     _holds(fit.t0_bracket, fit.t0, name="t0_bracket")
     _inside(fit.window, fit.t0, span, name="BlendFit")
     assert fit.n_points <= span[2]
@@ -220,7 +237,8 @@ def check_verdict(verdict, t, r, status):
         if c.fit is not None and math.isfinite(c.exponent_fit):
             ci = c.exponent_ci
             if all(math.isfinite(v) for v in ci):
-                _holds(ci, c.exponent_fit, name=f"{c.key} exponent_ci")
+                flagged = any("exponent" in k for k in c.fit.outside_ci)
+                _holds_or_flagged(ci, c.exponent_fit, flagged, name=f"{c.key} exponent_ci")
         if math.isfinite(c.prefactor_fit):
             assert c.prefactor_fit > 0, c.key
     for x in verdict.crossovers:

@@ -258,12 +258,36 @@ def test_origin_fixed_by_the_user_or_bracketed_by_default():
         geometry="coalescence",
         bootstrap=0,
     )
-    assert by_err.t0_bracket == pytest.approx((c - 2e-7, c + 2e-7))
+    # Issue 13: the default bracket is the one the frames prove (last frame
+    # before contact, first frame in contact, cut 1 % of a frame before that
+    # measured point), whatever the contact instant's error; no ± 2 σ.
+    last_apart = t[status == "before-contact"][-1]
+    first_ok = t[status == "ok"][0]
+    touching = np.isin(status, ["ok", "unresolved", "at-edge"]) & (t > last_apart)
+    proven = (last_apart, min(t[touching][0], first_ok - 0.01 * 2e-6))
+    assert by_err.t0_bracket == pytest.approx(proven, rel=0, abs=1e-12)
     by_frame = analyze_series(
         t, r, err, status, contact_time=c, numbers=WATER, geometry="coalescence", bootstrap=0
     )
-    assert by_frame.t0_bracket == pytest.approx((c - 1e-6, c + 1e-6))  # ± half a 2-µs frame
+    assert by_frame.t0_bracket == by_err.t0_bracket
     assert by_frame.settings["material_uncertainty"]["surface_tension"] == 0.02
+    # Without a frame before contact the frames prove only the frame interval
+    # that holds the contact instant.
+    later = t[status == "ok"]
+    k = 5
+    inside = 0.5 * (later[k] + later[k + 1])
+    no_gap = analyze_series(
+        later,
+        r[status == "ok"],
+        err[status == "ok"],
+        ["ok"] * len(later),
+        contact_time=inside,
+        numbers=WATER,
+        geometry="coalescence",
+        bootstrap=0,
+    )
+    assert no_gap.t0_bracket[0] == later[k]
+    assert later[k] < no_gap.t0_bracket[1] < later[k + 1]
     # A bracket reaching past the first ok frame is cut just before it (a
     # measured bridge means contact has happened), and that frame is used.
     first_ok = t[status == "ok"][0]

@@ -1,95 +1,112 @@
-"""The contact bracket a fit searches t0 in, and how a bootstrap redraws t0 across it.
+"""The contact bracket a fit searches t0 in: what the frames prove, nothing narrower.
 
-:func:`estimate_contact` gives the frames' bracket (last frame with a gap,
-first frame with a resolved neck) and an instant with its standard error
-inside it. The fit of the radius law does not search the whole frames'
-bracket, which is often many frames wide: it searches
+Every fit of the radius law treats the contact instant t0 as a parameter,
+bounded by the frames (:func:`frames_bracket`): from the time of the last
+frame that shows the drops apart (status ``before-contact``) to the time of
+the first frame that shows them in contact (a status of
+:data:`dropkin.status.IN_CONTACT`: ``ok``, ``unresolved`` — a neck too narrow
+to measure, but a neck — or ``at-edge``). The bracket is never narrowed to
+± k standard errors of an estimate: the measured contact instant of
+:func:`estimate_contact` may start the search and is reported, but the fit
+and its bootstrap search the whole bracket the images prove.
 
-- the measured instant ± :data:`BRACKET_SIGMAS` standard errors, cut to the
-  frames' bracket (:func:`measured_bracket`, what ``dropkin fit`` reads
-  from ``measure.json``);
-- when no bracket is given, the instant ± :data:`BRACKET_SIGMAS` errors, or
-  ± half a frame interval when no error is known (:func:`default_bracket`);
-
-and, either way, ends just before the first measured point after its start
-(:func:`bracket_before_first_point`: a measured bridge means contact has
-happened). The bootstrap of the fit redraws t0 uniformly across the whole
-bracket (:func:`redraw_interval`), so that its intervals carry the
-contact-instant uncertainty in full (a conservative choice).
+When the statuses do not bracket contact (a series without a frame before
+contact), :func:`default_bracket` falls back on the frame interval that holds
+the given contact instant. In either case :func:`bracket_before_first_point`
+ends the bracket just before the first measured point after its start (a
+measured bridge means contact has happened).
 
 Examples
 --------
->>> measured_bracket(1.0e-4, 2.0e-6, [9.0e-5, 1.02e-4])     # ± 2 σ, cut to the frames
-(9.6e-05, 0.000102)
->>> redraw_interval((3e-5, 3e-5)) is None                    # t0 fixed: nothing to redraw
-True
+>>> frames_bracket([0.0, 1.0, 2.0, 3.0, 4.0],
+...                ["before-contact", "before-contact", "unresolved", "ok", "ok"])
+(1.0, 2.0)
+>>> default_bracket([0.0, 1.0, 2.0, 3.0], ["ok"] * 4, 1.4)   # the frame holding 1.4
+(1.0, 2.0)
 """
 
 from __future__ import annotations
 
-import math
-
 import numpy as np
 
-__all__ = [
-    "BRACKET_SIGMAS",
-    "measured_bracket",
-    "default_bracket",
-    "bracket_before_first_point",
-    "redraw_interval",
-]
+from ..status import IN_CONTACT, STATUSES
 
-#: Half-width of the bracket around a measured contact instant, in its standard errors.
-BRACKET_SIGMAS = 2.0
+__all__ = ["frames_bracket", "default_bracket", "bracket_before_first_point"]
+
+_BEFORE = STATUSES[1]  # "before-contact"
 
 
-def measured_bracket(contact_time, contact_time_err, frames_bracket):
-    """The bracket to fit t0 in from a measured instant, its error and the frames' bracket.
+def frames_bracket(time, status, *, last_apart=None) -> tuple[float, float] | None:
+    """The contact bracket the frames prove: (last frame apart, first frame in contact).
+
+    Contact is taken as lasting from the first ``ok`` frame on (a measured
+    neck); the bracket's upper end is the first frame in contact
+    (:data:`dropkin.status.IN_CONTACT`) after the last ``before-contact``
+    frame that precedes it. ``before-contact`` frames after the first ``ok``
+    frame are misreadings and do not move the bracket.
 
     Parameters
     ----------
-    contact_time : float or None
-        The measured contact instant (s).
-    contact_time_err : float or None
-        Its standard error (s).
-    frames_bracket : sequence of two floats, or None
-        (last frame with a gap, first frame with a resolved neck) (s).
+    time : (F,) array_like
+        Frame times (s).
+    status : (F,) sequence of str
+        Per-frame status (:data:`dropkin.status.STATUSES`).
+    last_apart : float, optional
+        Time of the last frame other evidence shows apart (``measure.json``'s
+        ``contact_bracket_s[0]``: the last frame with a clearly open gap). The
+        bracket starts there when that is earlier than the statuses say (a
+        measurement may have relabelled unresolved frames as before contact on
+        the word of its estimate, which the images do not prove).
 
     Returns
     -------
-    tuple of float or None
-        ``contact_time ± 2 contact_time_err`` cut to `frames_bracket`; the
-        frames' bracket itself when the error is unknown, zero or not
-        finite, or when the cut leaves nothing; None when there is neither.
+    tuple of float, or None
+        (lo, hi) in s; None when no frame shows the drops apart before a frame
+        in contact, or none shows them in contact.
+
+    Examples
+    --------
+    >>> frames_bracket([0.0, 1.0, 2.0, 3.0], ["before-contact", "unresolved", "unresolved", "ok"])
+    (0.0, 1.0)
+    >>> frames_bracket([0.0, 1.0, 2.0], ["ok"] * 3) is None
+    True
     """
-    bracket = frames_bracket
-    err = contact_time_err
-    if contact_time is not None and err is not None and math.isfinite(err) and err > 0:
-        # The fit redraws t0 across its bracket: the measured instant plus or
-        # minus two standard errors (inside the frames' bracket) is what the
-        # measurement knows; the frames' bracket alone is much wider.
-        lo = contact_time - BRACKET_SIGMAS * err
-        hi = contact_time + BRACKET_SIGMAS * err
-        if bracket:
-            lo, hi = max(lo, bracket[0]), min(hi, bracket[1])
-        bracket = (lo, hi) if hi > lo else bracket
-    return tuple(bracket) if bracket else None
+    t = np.asarray(time, dtype=np.float64)
+    st = [str(s) for s in status]
+    touching = np.array([s in IN_CONTACT for s in st], dtype=bool)
+    apart = np.array([s == _BEFORE for s in st], dtype=bool) & np.isfinite(t)
+    measured = np.nonzero(np.array([s == IN_CONTACT[0] for s in st], dtype=bool))[0]
+    end = int(measured[0]) if len(measured) else len(st)
+    before = np.nonzero(apart[:end])[0]
+    if not len(before):
+        return None
+    after = np.nonzero(touching & np.isfinite(t) & (np.arange(len(st)) > before[-1]))[0]
+    if not len(after):
+        return None
+    lo, hi = float(t[before[-1]]), float(t[after[0]])
+    if last_apart is not None and np.isfinite(last_apart) and last_apart < lo:
+        lo = float(last_apart)
+    return lo, hi
 
 
-def default_bracket(frame_times, contact_time, contact_time_err) -> tuple[float, float]:
-    """The bracket around a contact instant when none is given.
+def default_bracket(time, status, contact_time) -> tuple[float, float]:
+    """The bracket when none is given: :func:`frames_bracket`, else the frame holding contact.
 
-    ``contact_time ± 2 contact_time_err``; without an error (None or 0),
-    ± half the median interval between the finite `frame_times`.
+    Without a frame before contact in `status`, the images prove nothing
+    about t0 beyond the frame interval that holds `contact_time` (from the
+    last frame at or before it to the next frame; one median frame interval
+    on a side that has no frame).
     """
-    if contact_time_err:
-        return (
-            contact_time - BRACKET_SIGMAS * contact_time_err,
-            contact_time + BRACKET_SIGMAS * contact_time_err,
-        )
-    finite = np.sort(frame_times[np.isfinite(frame_times)])
-    frame = float(np.median(np.diff(finite))) if len(finite) > 1 else 0.0
-    return contact_time - 0.5 * frame, contact_time + 0.5 * frame
+    bracket = frames_bracket(time, status)
+    if bracket is not None:
+        return bracket
+    t = np.sort(np.asarray(time, dtype=np.float64))
+    t = t[np.isfinite(t)]
+    step = float(np.median(np.diff(t))) if len(t) > 1 else 0.0
+    below, above = t[t <= contact_time], t[t > contact_time]
+    lo = float(below[-1]) if len(below) else contact_time - step
+    hi = float(above[0]) if len(above) else contact_time + step
+    return lo, hi
 
 
 def bracket_before_first_point(lo, hi, point_times, frame_times) -> tuple[float, float]:
@@ -107,12 +124,3 @@ def bracket_before_first_point(lo, hi, point_times, frame_times) -> tuple[float,
     steps = steps[steps > 0]
     frame = float(np.min(steps)) if len(steps) else 0.0
     return lo, max(lo, min(hi, float(after[0]) - 0.01 * frame))
-
-
-def redraw_interval(bracket) -> tuple[float, float] | None:
-    """Where a bootstrap resample draws t0 (uniformly): the whole bracket, or None when fixed.
-
-    A bracket of zero width (lo == hi) means t0 was fixed: it is kept.
-    """
-    lo, hi = bracket
-    return (lo, hi) if hi > lo else None

@@ -11,6 +11,7 @@ from ._core import MIN_DECADES as MIN_DECADES
 from ._core import MIN_POINTS as MIN_POINTS
 from ._core import ROBUST_SCALE as ROBUST_SCALE
 from ._core import LawShape as LawShape
+from ._initial import INITIAL_RADIUS_AIC_GAIN as INITIAL_RADIUS_AIC_GAIN
 from ._laws import blended_law as blended_law
 from ._laws import harmonic_blend as harmonic_blend
 from ._laws import power_law as power_law
@@ -35,6 +36,7 @@ __all__ = [
     "fit_log_law",
     "fit_power_law",
     "guess_power_law",
+    "INITIAL_RADIUS_AIC_GAIN",
     "MIN_DECADES",
     "MIN_POINTS",
     "ROBUST_SCALE",

@@ -63,11 +63,7 @@ def _public(time, radius, radius_err, t0, t0_bracket, loss, bootstrap, seed, **s
     f_scale = ROBUST_SCALE * noise_scale(series.subset(series.time > hi))
     fit = blend_fit(series, lo, hi, loss=loss, f_scale=f_scale, **spec)
     if fit and bootstrap:
-        # The generic fitter's rule: t0 redrawn over its whole bracket when it was free.
-        redraw = (lo, hi) if hi > lo else None
-        fit = bootstrap_blend(
-            series, fit, f_scale=f_scale, n=bootstrap, seed=seed, t0_redraw=redraw, **spec
-        )
+        fit = bootstrap_blend(series, fit, f_scale=f_scale, n=bootstrap, seed=seed, **spec)
     return fit
 
 

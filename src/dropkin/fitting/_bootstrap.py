@@ -1,17 +1,19 @@
-"""Uncertainty: a seeded residual bootstrap that can also re-draw t0.
+"""Uncertainty: a seeded residual bootstrap that refits t0 in every resample.
 
 Residual bootstrap, not pairs, so that the frame times stay those of the
 camera: the normalised residuals of the best fit are resampled with
 replacement, put back onto the fitted curve with each point's own σ, and
-the law is fitted again. The caller says where t0 goes (`t0_redraw`): drawn
-uniformly inside an interval for each resample and kept fixed there (the
-contact bracket: the intervals then carry the contact-instant uncertainty in
-full, a conservative choice), or None to keep the fitted t0. Intervals are
-the 2.5 and 97.5 percentiles, widened where needed to contain the best
-estimate (drawing t0 over the whole bracket can shift the resampled values
-when the best t0 lies near one end). Fits that are linear at a given origin
-(power laws, the log law) are refitted all at once, batched in numpy;
-blends are refitted one by one with scipy.
+the law is fitted again — the contact instant t0 included, inside the same
+bracket as the fit, whenever the fit had it free. Intervals are the 2.5 and
+97.5 percentiles of the refitted values, as they come: when an estimate lies
+outside its own interval (the resamples disagree with the fit), the record
+names it in ``outside_ci`` instead of widening the interval to hide it.
+
+Fits that are linear at a given origin (power laws, the log law) are
+refitted all at once, batched in numpy (:func:`._linear.profile_many`: a grid
+of origins across the bracket, then a golden-section search, for every
+resample in step); blends are refitted one by one with scipy, t0 one of the
+parameters of the least-squares refit.
 """
 
 from __future__ import annotations
@@ -22,23 +24,32 @@ import math
 import numpy as np
 
 from ._core import Series, safe_exp, solve_linear
-from ._linear import LinearModel
+from ._linear import LinearModel, profile_many
 from ._records import BlendFit, LawFit
 from ._two_laws import TwoLawModel, build_model, least_squares_fit
 
-__all__ = ["bootstrap_linear", "bootstrap_blend"]
+__all__ = ["bootstrap_linear", "bootstrap_blend", "percentile_interval", "outside"]
 
 _PERCENTILES = (2.5, 97.5)
 
 
-def _interval(values, estimate) -> tuple[float, float]:
-    """Percentile interval, widened where needed to contain the best estimate."""
+def percentile_interval(values) -> tuple[float, float]:
+    """The 2.5–97.5 percentile interval of the finite values (NaNs for fewer than two)."""
     values = np.asarray(values, dtype=float)
     values = values[np.isfinite(values)]
     if len(values) < 2:
         return (math.nan, math.nan)
     lo, hi = np.percentile(values, _PERCENTILES)
-    return (float(min(lo, estimate)), float(max(hi, estimate)))
+    return (float(lo), float(hi))
+
+
+def outside(**pairs) -> tuple[str, ...]:
+    """Names of the ``name=(estimate, (lo, hi))`` pairs whose estimate lies outside (lo, hi)."""
+    return tuple(
+        name
+        for name, (value, (lo, hi)) in pairs.items()
+        if math.isfinite(lo) and math.isfinite(hi) and not lo <= value <= hi
+    )
 
 
 def _std(values) -> float:
@@ -51,28 +62,21 @@ def _std(values) -> float:
         return float(np.std(values, ddof=1))
 
 
-def _draws(n_points, fit_t0, t0_redraw, n, rng):
-    """Indices of the resampled residuals, then the origin of each resample."""
-    idx = rng.integers(0, n_points, size=(n, n_points))
-    if t0_redraw is None:
-        t0s = np.full(n, fit_t0)
-    else:
-        t0s = rng.uniform(t0_redraw[0], t0_redraw[1], n)
-    return idx, t0s
+def _method(refitted) -> str:
+    origin = "; t0 refitted in its bracket in every resample" if refitted else "; t0 fixed"
+    return f"residual bootstrap, 2.5–97.5 percentiles{origin}"
 
 
-def bootstrap_linear(
-    series: Series, model: LinearModel, fit: LawFit, *, f_scale, n, seed, t0_redraw
-):
-    """The fit with bootstrap intervals for n, A and r_p (batched refits).
+def bootstrap_linear(series: Series, model: LinearModel, fit: LawFit, *, f_scale, n, seed):
+    """The fit with bootstrap intervals for n, A, r_p and t0 (batched refits).
 
-    `t0_redraw` is the interval (lo, hi) in which each resample draws its
-    origin uniformly, or None to keep the fitted origin.
+    t0 is refitted inside ``fit.t0_bracket`` in every resample when
+    ``fit.t0_free``; otherwise it stays at ``fit.t0``.
     """
     rng = np.random.default_rng(seed)
-    data = series.subset(series.time > fit.t0_bracket[1])
-    tau = data.time - fit.t0
-    x, off = model.design(tau)
+    lo, hi = fit.t0_bracket
+    data = series.subset(series.time > hi)
+    x, off = model.design(data.time - fit.t0)
     unit = 1.0 if model.shape is None else model.shape.prefactor_unit_factor()
     beta = [math.log(fit.prefactor / unit)]
     if model.shape is None:
@@ -80,95 +84,112 @@ def bootstrap_linear(
     fitted = x @ np.asarray(beta) + off
     e = (data.y - fitted) / data.s
     e = e - e.mean()
-    idx, t0s = _draws(len(tau), fit.t0, t0_redraw, n, rng)
+    idx = rng.integers(0, len(data), size=(n, len(data)))
     y_star = fitted[None, :] + data.s[None, :] * e[idx]
-    tau_b = data.time[None, :] - t0s[:, None]
-    xb, offb = model.design(tau_b)
-    beta_b, _, _ = solve_linear(xb, y_star - offb, data.s, f_scale, fit.loss)
+    if fit.t0_free:
+        t0s, beta_b = profile_many(data.time, y_star, data.s, model, lo, hi, f_scale, fit.loss)
+    else:
+        t0s = np.full(n, fit.t0)
+        xb, offb = model.design(np.broadcast_to(data.time - fit.t0, y_star.shape))
+        beta_b, _, _ = solve_linear(xb, y_star - offb, data.s, f_scale, fit.loss)
     ln_a = beta_b[:, 0]
     tp = fit.pivot_time
     if model.shape is None:
         n_b = beta_b[:, 1]
         ln_rp = ln_a + n_b * math.log(tp)
-        exponent_ci = _interval(n_b, fit.exponent)
-        exponent_err = _std(n_b)
+        exponent_ci, exponent_err = percentile_interval(n_b), _std(n_b)
     else:
         ln_rp = ln_a + float(model.shape.log_shape(np.array([tp]))[0])
         exponent_ci, exponent_err = fit.exponent_ci, fit.exponent_err
     # Intervals of the positive A and r_p from the percentiles of their
     # logarithms (the same order statistics; exp of a resample may overflow).
-    lo_a, hi_a = _interval(ln_a, beta[0])
-    lo_p, hi_p = _interval(ln_rp, math.log(fit.pivot_radius))
+    lo_a, hi_a = percentile_interval(ln_a)
+    lo_p, hi_p = percentile_interval(ln_rp)
+    prefactor_ci = (unit * safe_exp(lo_a), unit * safe_exp(hi_a))
+    pivot_ci = (safe_exp(lo_p), safe_exp(hi_p))
+    t0_ci = percentile_interval(t0s) if fit.t0_free else (fit.t0, fit.t0)
     return dataclasses.replace(
         fit,
         exponent_err=exponent_err,
         exponent_ci=exponent_ci,
         prefactor_err=fit.prefactor * _std(ln_a),
-        prefactor_ci=(unit * safe_exp(lo_a), unit * safe_exp(hi_a)),
-        pivot_radius_ci=(safe_exp(lo_p), safe_exp(hi_p)),
-        ci_method=_method(t0_redraw is not None),
+        prefactor_ci=prefactor_ci,
+        pivot_radius_ci=pivot_ci,
+        t0_err=_std(t0s) if fit.t0_free else 0.0,
+        t0_ci=t0_ci,
+        ci_method=_method(fit.t0_free),
         n_resamples=n,
+        outside_ci=outside(
+            exponent=(fit.exponent, exponent_ci),
+            prefactor=(fit.prefactor, prefactor_ci),
+            pivot_radius=(fit.pivot_radius, pivot_ci),
+            t0=(fit.t0, t0_ci),
+        ),
     )
 
 
-def _method(redrawn) -> str:
-    redraw = "; t0 re-drawn uniformly in its bracket" if redrawn else "; t0 fixed"
-    return f"residual bootstrap, 2.5–97.5 percentiles{redraw}"
+def bootstrap_blend(series: Series, fit: BlendFit, *, f_scale, n, seed, **spec) -> BlendFit:
+    """The blend with bootstrap intervals for its exponents, prefactors, crossover and t0.
 
-
-def bootstrap_blend(
-    series: Series, fit: BlendFit, *, f_scale, n, seed, t0_redraw, **spec
-) -> BlendFit:
-    """The blend with bootstrap intervals for its exponents and crossover time (one by one).
-
-    `t0_redraw` as for :func:`bootstrap_linear`; `spec` is the model's
-    specification as given to :func:`blend_fit` (kind, early, late, sharpness).
+    Each resample is refitted by least squares with every parameter of the
+    fit free again — t0 inside ``fit.t0_bracket`` when ``fit.t0_free`` —
+    starting from the best fit. `spec` is the model's specification as given
+    to :func:`._two_laws.blend_fit` (kind, early, late, sharpness).
     """
     rng = np.random.default_rng(seed)
     lo, hi = fit.t0_bracket
     data = series.subset(series.time > hi)
     kind = spec.get("kind", "blend")
     early, late, sharpness = spec.get("early"), spec.get("late"), spec.get("sharpness")
-    model, _, _ = build_model(data, kind, early, late, sharpness, lo, hi, fit.t0, fit.direction)
-    # The best parameters, recovered from the record in the model's layout.
+    model, _, bounds = build_model(
+        data, kind, early, late, sharpness, lo, hi, fit.t0, fit.direction
+    )
     best = _theta_from_fit(model, fit)
     fitted = model.log_radius(best, data.time)
     e = (data.y - fitted) / data.s
     e = e - e.mean()
-    idx, t0s = _draws(len(data), fit.t0, t0_redraw, n, rng)
-    fixed_names = [k for k in model.names() if k != "t0"]
-    n1s, n2s, tcs = [], [], []
+    idx = rng.integers(0, len(data), size=(n, len(data)))
+    x0 = np.clip(best, bounds[0], bounds[1])
+    rows = []
     for b in range(n):
-        sub = dataclasses.replace(model, t0_fixed=float(t0s[b]))
         resampled = Series(data.time, fitted + data.s * e[idx[b]], data.s, data.weighted)
-        _, x0, bounds = build_model(
-            resampled, kind, early, late, sharpness, t0s[b], t0s[b], None, model.direction
-        )
-        x0 = np.array([best[model.names().index(k)] for k in fixed_names])
-        x0 = np.clip(x0, bounds[0] + 1e-9, bounds[1] - 1e-9)
         try:
             res = least_squares_fit(
-                sub, resampled, x0, bounds, loss=fit.loss, f_scale=f_scale, max_nfev=200
+                model, resampled, x0, bounds, loss=fit.loss, f_scale=f_scale, max_nfev=200
             )
         except ValueError:
             continue
-        p = sub.unpack(res.x)
-        n1, n2 = sub.exponents(res.x)
-        n1s.append(n1)
-        n2s.append(n2)
-        tcs.append(math.exp(p["lntc"]))
+        p = model.unpack(res.x)
+        a1, a2, _ = model.prefactors(res.x)
+        rows.append((*model.exponents(res.x), math.exp(p["lntc"]), p["t0"], a1, a2))
+    n1s, n2s, tcs, t0s, a1s, a2s = np.array(rows, dtype=float).reshape(-1, 6).T
+    cis = {
+        "early_exponent": fit.early_exponent_ci if early is not None else percentile_interval(n1s),
+        "late_exponent": fit.late_exponent_ci if late is not None else percentile_interval(n2s),
+        "crossover_time": percentile_interval(tcs),
+        "t0": percentile_interval(t0s) if fit.t0_free else (fit.t0, fit.t0),
+        "early_prefactor": _positive_interval(a1s),
+        "late_prefactor": _positive_interval(a2s),
+    }
     return dataclasses.replace(
         fit,
-        early_exponent_ci=(
-            fit.early_exponent_ci if early is not None else _interval(n1s, fit.early_exponent)
-        ),
-        late_exponent_ci=(
-            fit.late_exponent_ci if late is not None else _interval(n2s, fit.late_exponent)
-        ),
-        crossover_time_ci=_interval(tcs, fit.crossover_time),
-        ci_method=_method(t0_redraw is not None),
-        n_resamples=len(tcs),
+        early_exponent_ci=cis["early_exponent"],
+        late_exponent_ci=cis["late_exponent"],
+        crossover_time_ci=cis["crossover_time"],
+        t0_ci=cis["t0"],
+        early_prefactor_ci=cis["early_prefactor"],
+        late_prefactor_ci=cis["late_prefactor"],
+        ci_method=_method(fit.t0_free),
+        n_resamples=len(rows),
+        outside_ci=outside(**{k: (getattr(fit, k), ci) for k, ci in cis.items()}),
     )
+
+
+def _positive_interval(values) -> tuple[float, float]:
+    """Percentile interval of positive values through their logarithms (NaN ones left out)."""
+    with np.errstate(divide="ignore", invalid="ignore"):
+        lo, hi = percentile_interval(np.log(values))
+    return (safe_exp(lo), safe_exp(hi))
 
 
 def _theta_from_fit(model: TwoLawModel, fit: BlendFit):

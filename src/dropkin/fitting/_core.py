@@ -328,6 +328,16 @@ def normal_ci(value, err):
     return (value - _Z95 * err, value + _Z95 * err)
 
 
+def bracket_ci(t0, err, lo, hi) -> tuple[float, float]:
+    """95 % interval of an origin: ``t0 ± 1.96 err`` cut to its bracket; (t0, t0) if fixed."""
+    if not hi > lo:
+        return (float(t0), float(t0))
+    a, b = normal_ci(t0, err)
+    if not (math.isfinite(a) and math.isfinite(b)):
+        return (math.nan, math.nan)
+    return (max(lo, a), min(hi, b))
+
+
 def safe_exp(x: float) -> float:
     """``exp`` that saturates instead of overflowing (for wide intervals)."""
     return math.exp(min(x, 700.0)) if math.isfinite(x) else math.nan

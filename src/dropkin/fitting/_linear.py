@@ -30,6 +30,7 @@ from ._core import (
     LawShape,
     Series,
     apparent_exponent,
+    bracket_ci,
     data_problem,
     information,
     normal_ci,
@@ -39,9 +40,11 @@ from ._core import (
 )
 from ._records import LawFit
 
-__all__ = ["LinearModel", "profile_fit", "linear_fit"]
+__all__ = ["LinearModel", "profile_fit", "profile_many", "linear_fit"]
 
 _T0_GRID = 17
+_GOLDEN_STEPS = 20  # narrows two grid steps by 0.618**20 ≈ 7e-5 (1e-5 of the bracket)
+_INV_PHI = (math.sqrt(5.0) - 1.0) / 2.0
 
 
 @dataclass(frozen=True)
@@ -103,6 +106,52 @@ def profile_fit(series: Series, model: LinearModel, lo, hi, f, loss):
     t0 = float(res.x) if np.isfinite(res.fun) and res.fun <= cost[i] else float(grid[i])
     beta, z, w, _ = at([t0])
     return t0, beta[0], z[0], w[0]
+
+
+def profile_many(time, y, s, model: LinearModel, lo, hi, f, loss):
+    """Best origin in [lo, hi] for many series ``y`` (B, N) at the same times, all at once.
+
+    The batched twin of :func:`profile_fit` (the bootstrap refits t0 in every
+    resample with it): the robust cost on a grid of origins across the
+    bracket for every series, then a golden-section search between the
+    neighbours of each series' best grid point, all series in step.
+
+    Returns
+    -------
+    t0 : (B,) ndarray
+    beta : (B, p) ndarray
+    """
+
+    def cost(t0s):  # t0s (B, G) -> beta (B, G, p), cost (B, G)
+        tau = time[None, None, :] - t0s[..., None]
+        x, off = model.design(tau)
+        beta, z, _ = solve_linear(x, y[:, None, :] - off, s, f, loss)
+        c = rho(z, f, loss).sum(axis=-1)
+        return beta, np.where(np.isfinite(c), c, np.inf)
+
+    n = y.shape[0]
+    grid = np.linspace(lo, hi, _T0_GRID)
+    _, c_grid = cost(np.broadcast_to(grid, (n, _T0_GRID)))
+    i = np.argmin(c_grid, axis=1)
+    a, b = grid[np.maximum(i - 1, 0)], grid[np.minimum(i + 1, _T0_GRID - 1)]
+    c, d = b - _INV_PHI * (b - a), a + _INV_PHI * (b - a)
+    fc, fd = cost(c[:, None])[1][:, 0], cost(d[:, None])[1][:, 0]
+    for _ in range(_GOLDEN_STEPS):
+        left = fc < fd  # the minimum lies in [a, d]; else in [c, b]
+        a, b = np.where(left, a, c), np.where(left, d, b)
+        new = np.where(left, b - _INV_PHI * (b - a), a + _INV_PHI * (b - a))
+        f_new = cost(new[:, None])[1][:, 0]
+        c, d, fc, fd = (
+            np.where(left, new, d),
+            np.where(left, c, new),
+            np.where(left, f_new, fd),
+            np.where(left, fc, f_new),
+        )
+    mid = 0.5 * (a + b)
+    _, f_mid = cost(mid[:, None])
+    t0 = np.where(f_mid[:, 0] <= c_grid[np.arange(n), i], mid, grid[i])
+    beta, _ = cost(t0[:, None])
+    return t0, beta[:, 0, :]
 
 
 def _correlation(c, va, vb) -> float:
@@ -219,6 +268,7 @@ def linear_fit(series, model, lo, hi, *, loss, f_scale, reference=None) -> LawFi
         t0_err=math.sqrt(max(cov[-1, -1], 0.0)) if free_t0 else 0.0,
         t0_free=free_t0,
         t0_bracket=(lo, hi),
+        t0_ci=bracket_ci(t0, math.sqrt(max(cov[-1, -1], 0.0)), lo, hi) if free_t0 else (t0, t0),
         pivot_time=tp,
         pivot_radius=math.exp(ln_rp),
         pivot_radius_ci=(safe_exp(lo_p), safe_exp(hi_p)),

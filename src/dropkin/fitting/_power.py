@@ -35,24 +35,25 @@ from ._core import (
     noise_scale,
     resolve_origin,
 )
+from ._initial import bootstrap_initial_radius, with_initial_radius
 from ._linear import LinearModel, linear_fit
 from ._records import LawFit
 
 __all__ = ["LawFit", "fit_power_law", "fit_log_law", "guess_power_law"]
 
 
-def _run(time, radius, radius_err, t0, t0_bracket, loss, model, bootstrap, seed):
+def _run(time, radius, radius_err, t0, t0_bracket, loss, model, bootstrap, seed, r0=False):
     check_loss(loss)
     lo, hi = resolve_origin(t0, t0_bracket)
     series = make_series(time, radius, radius_err)
     f_scale = ROBUST_SCALE * noise_scale(series.subset(series.time > hi))
     fit = linear_fit(series, model, lo, hi, loss=loss, f_scale=f_scale)
-    if fit and bootstrap:
-        # The generic fitter's rule: t0 redrawn over its whole bracket when it was free.
-        redraw = (lo, hi) if hi > lo else None
-        fit = bootstrap_linear(
-            series, model, fit, f_scale=f_scale, n=bootstrap, seed=seed, t0_redraw=redraw
-        )
+    if fit and r0:
+        fit = with_initial_radius(series, fit, loss=loss, f_scale=f_scale)
+    if fit and bootstrap and fit.initial_radius_fitted:
+        fit = bootstrap_initial_radius(series, fit, f_scale=f_scale, n=bootstrap, seed=seed)
+    elif fit and bootstrap:
+        fit = bootstrap_linear(series, model, fit, f_scale=f_scale, n=bootstrap, seed=seed)
     return fit
 
 
@@ -64,6 +65,7 @@ def fit_power_law(
     t0=None,
     t0_bracket=None,
     exponent=None,
+    initial_radius=False,
     loss="soft_l1",
     bootstrap=0,
     seed=0,
@@ -87,11 +89,18 @@ def fit_power_law(
         points after its upper end are used.
     exponent : float, optional
         Fix n (only A is fitted); default: n free.
+    initial_radius : bool
+        Also fit ``r = r0 + A (t - t0)**n`` with a finite initial radius
+        r0 ≥ 0 (nonlinear least squares, same weights and loss) and keep it
+        when it lowers the AIC by more than :data:`INITIAL_RADIUS_AIC_GAIN`;
+        the record says which was kept (``initial_radius_fitted``) and by how
+        much (``initial_radius_delta_aic``). Only with the exponent free.
     loss : {"soft_l1", "linear"}
         Robust loss (default) or plain weighted least squares.
     bootstrap : int
         Number of residual-bootstrap resamples for the intervals (0: normal
-        approximation). Each resample also re-draws t0 inside its bracket.
+        approximation). Each resample refits t0 inside its bracket when t0
+        is free (and r0 when it was chosen).
     seed : int
         Seed of the bootstrap's ``numpy.random.default_rng``.
 
@@ -121,10 +130,12 @@ def fit_power_law(
     if exponent is not None:
         if not (isinstance(exponent, int | float) and math.isfinite(exponent)):
             raise FitError("must be a finite number", key="exponent", value=exponent)
+        if initial_radius:
+            raise FitError("needs the exponent free", key="initial_radius", value=True)
         shape = LawShape(float(exponent))
-    return _run(
-        time, radius, radius_err, t0, t0_bracket, loss, LinearModel(shape), bootstrap, seed
-    )
+    model = LinearModel(shape)
+    r0 = bool(initial_radius)
+    return _run(time, radius, radius_err, t0, t0_bracket, loss, model, bootstrap, seed, r0)
 
 
 def fit_log_law(

@@ -52,6 +52,9 @@ class LawFit:
         Whether t0 was fitted inside `t0_bracket`.
     t0_bracket : tuple of float
         The interval t0 was allowed in (s).
+    t0_ci : tuple of float
+        95 % interval of t0: bootstrap percentiles of the refitted t0, or the
+        normal approximation cut to `t0_bracket`; ``(t0, t0)`` when fixed.
     pivot_time : float
         ``t_p = exp(weighted mean ln τ)`` (s since t0).
     pivot_radius : float
@@ -85,6 +88,20 @@ class LawFit:
         How the intervals were obtained.
     n_resamples : int
         Bootstrap resamples (0 for the normal approximation).
+    outside_ci : tuple of str
+        Names of the quantities (``exponent``, ``prefactor``,
+        ``pivot_radius``, ``t0``, ``initial_radius``) whose estimate lies
+        outside its bootstrap percentile interval: the resamples disagree
+        with the fit, which the intervals do not hide.
+    initial_radius : float
+        r0 in ``r = r0 + A τ**n`` (m); 0 when the law without r0 was chosen.
+    initial_radius_ci : tuple of float
+        Its 95 % interval (``(0, 0)`` when not chosen).
+    initial_radius_fitted : bool
+        True when the law with r0 was chosen (by the information criterion).
+    initial_radius_delta_aic : float
+        AIC without r0 minus AIC with it (NaN when r0 was not tried); r0 is
+        chosen when this exceeds :data:`dropkin.fitting.INITIAL_RADIUS_AIC_GAIN`.
     """
 
     success: bool
@@ -101,6 +118,7 @@ class LawFit:
     t0_err: float = math.nan
     t0_free: bool = False
     t0_bracket: tuple[float, float] = (math.nan, math.nan)
+    t0_ci: tuple[float, float] = (math.nan, math.nan)
     pivot_time: float = math.nan
     pivot_radius: float = math.nan
     pivot_radius_ci: tuple[float, float] = (math.nan, math.nan)
@@ -118,6 +136,11 @@ class LawFit:
     loss: str = "soft_l1"
     ci_method: str = ""
     n_resamples: int = 0
+    outside_ci: tuple[str, ...] = ()
+    initial_radius: float = 0.0
+    initial_radius_ci: tuple[float, float] = (0.0, 0.0)
+    initial_radius_fitted: bool = False
+    initial_radius_delta_aic: float = math.nan
 
     def __bool__(self) -> bool:
         return self.success
@@ -146,6 +169,8 @@ class BlendFit:
         The fixed law forms; None where the exponent was free.
     early_prefactor, late_prefactor : float
         ``A_1``, ``A_2`` (m s⁻ⁿ; ``C u`` for a log law, m/s).
+    early_prefactor_ci, late_prefactor_ci : tuple of float
+        Their 95 % intervals.
     crossover_time : float
         τ_c, time since t0 at which the two laws give the same radius (s).
     crossover_time_ci : tuple of float
@@ -165,6 +190,8 @@ class BlendFit:
         Whether t0 was fitted inside `t0_bracket`.
     t0_bracket : tuple of float
         The interval allowed for t0.
+    t0_ci : tuple of float
+        95 % interval of t0 (as for :class:`LawFit`).
     n_points : int
         Points used.
     window : tuple of float
@@ -181,6 +208,9 @@ class BlendFit:
         How the intervals were obtained.
     n_resamples : int
         Bootstrap resamples (0 for the normal approximation).
+    outside_ci : tuple of str
+        Names of the quantities whose estimate lies outside its bootstrap
+        percentile interval (as for :class:`LawFit`).
     """
 
     success: bool
@@ -195,6 +225,8 @@ class BlendFit:
     late_shape: LawShape | None = None
     early_prefactor: float = math.nan
     late_prefactor: float = math.nan
+    early_prefactor_ci: tuple[float, float] = (math.nan, math.nan)
+    late_prefactor_ci: tuple[float, float] = (math.nan, math.nan)
     crossover_time: float = math.nan
     crossover_time_ci: tuple[float, float] = (math.nan, math.nan)
     crossover_radius: float = math.nan
@@ -204,6 +236,7 @@ class BlendFit:
     t0: float = math.nan
     t0_free: bool = False
     t0_bracket: tuple[float, float] = (math.nan, math.nan)
+    t0_ci: tuple[float, float] = (math.nan, math.nan)
     n_points: int = 0
     window: tuple[float, float] = (math.nan, math.nan)
     chi2: float = math.nan
@@ -213,6 +246,7 @@ class BlendFit:
     loss: str = "soft_l1"
     ci_method: str = ""
     n_resamples: int = 0
+    outside_ci: tuple[str, ...] = ()
 
     def __bool__(self) -> bool:
         return self.success

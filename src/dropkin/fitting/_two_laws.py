@@ -18,6 +18,7 @@ import numpy as np
 from ._core import (
     LawShape,
     Series,
+    bracket_ci,
     data_problem,
     information,
     normal_ci,
@@ -281,6 +282,7 @@ def _blend_record(name, kind, model, data, res, early, late, sharpness, lo, hi, 
     n2_ci = (n2, n2) if late is not None else normal_ci(n2, err["n2"])
     aic, bic = information(chi2, n, k)
     tau = data.time - p["t0"]
+    a1_ci, a2_ci = _prefactor_intervals(model, theta, cov)
     numbers = (chi2, n1, n2, a1, a2, rc, tc, p["t0"], lo_c, hi_c, *n1_ci, *n2_ci)
     finite = bool(np.all(np.isfinite(numbers)))
     if finite:
@@ -302,6 +304,8 @@ def _blend_record(name, kind, model, data, res, early, late, sharpness, lo, hi, 
         late_shape=late,
         early_prefactor=a1,
         late_prefactor=a2,
+        early_prefactor_ci=a1_ci,
+        late_prefactor_ci=a2_ci,
         crossover_time=tc,
         crossover_time_ci=(safe_exp(lo_c), safe_exp(hi_c)),
         crossover_radius=rc,
@@ -311,6 +315,7 @@ def _blend_record(name, kind, model, data, res, early, late, sharpness, lo, hi, 
         t0=float(p["t0"]),
         t0_free=hi > lo,
         t0_bracket=(lo, hi),
+        t0_ci=bracket_ci(p["t0"], err.get("t0", 0.0), lo, hi),
         n_points=n,
         window=(float(tau[0]), float(tau[-1])),
         chi2=chi2,
@@ -320,3 +325,33 @@ def _blend_record(name, kind, model, data, res, early, late, sharpness, lo, hi, 
         loss=loss,
         ci_method="normal approximation (covariance scaled by the reduced chi-square)",
     )
+
+
+def _prefactor_intervals(model, theta, cov):
+    """Normal-approximation 95 % intervals of (A1, A2), through ``ln A`` and the covariance.
+
+    ``ln A2 = ln A1 + f1(τc) - f2(τc)`` depends on several parameters: its
+    gradient is taken by central differences.
+    """
+
+    def ln_prefactors(th):
+        a1, a2, _ = model.prefactors(th)
+        with np.errstate(divide="ignore", invalid="ignore"):
+            return np.log([a1, a2])
+
+    theta = np.asarray(theta, dtype=float)
+    centre = ln_prefactors(theta)
+    grad = np.empty((2, len(theta)))
+    for j in range(len(theta)):
+        h = 1e-6 * max(abs(theta[j]), 1.0)
+        up, down = theta.copy(), theta.copy()
+        up[j] += h
+        down[j] -= h
+        grad[:, j] = (ln_prefactors(up) - ln_prefactors(down)) / (2.0 * h)
+    with np.errstate(invalid="ignore", over="ignore"):
+        var = np.einsum("ij,jk,ik->i", grad, cov, grad)
+    out = []
+    for value, v in zip(centre, var, strict=True):
+        lo, hi = normal_ci(float(value), math.sqrt(v) if v >= 0 else math.nan)
+        out.append((safe_exp(lo), safe_exp(hi)))
+    return tuple(out)

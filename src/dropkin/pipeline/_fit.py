@@ -15,7 +15,7 @@ import math
 from dataclasses import dataclass, replace
 from pathlib import Path
 
-from ..contact import measured_bracket
+from ..contact import frames_bracket
 from ..errors import DropkinError, ExperimentError
 from ..experiment import Drops, Experiment, load_experiment, read_experiment
 from ..series import RadiusSeries, read_series
@@ -152,7 +152,13 @@ def fit_measurement(measurement: Measurement, *, t0=None, seed: int = 0, bootstr
             path=measurement.path,
         )
     err = series.contact_time_err
-    bracket = measured_bracket(contact, err, series.details.get("contact_bracket_s"))
+    # t0 is fitted in the bracket the frames prove; measure.json's bracket
+    # start (the last frame with an open gap) reaches back past frames that
+    # the measurement relabelled as before contact on its estimate's word.
+    measured = series.details.get("contact_bracket_s")
+    bracket = frames_bracket(
+        series.time, series.status, last_apart=measured[0] if measured else None
+    )
     verdict = analyze_series(
         series.time,
         series.radius,

@@ -25,7 +25,6 @@ from __future__ import annotations
 import math
 from dataclasses import dataclass
 
-from ...contact._bracket import redraw_interval
 from ...errors import ExperimentError
 from ...fitting._bootstrap import bootstrap_blend, bootstrap_linear
 from ...fitting._core import Series, apparent_exponent
@@ -144,7 +143,6 @@ def _shape_evidence(data, shape, local, t0, lo, hi, f_scale, search, bootstrap, 
     window = consistent_window(local, shape, tolerance=EXPONENT_TOLERANCE)
     pts = points_in(data, t0, window) if window is not None else None
     fit_kw = {"loss": "soft_l1", "f_scale": f_scale}
-    redraw = {"t0_redraw": redraw_interval((lo, hi))}
     if pts is not None:
         free = (
             search.free
@@ -153,7 +151,7 @@ def _shape_evidence(data, shape, local, t0, lo, hi, f_scale, search, bootstrap, 
         )
         if free and bootstrap:
             free = bootstrap_linear(
-                pts, LinearModel(None), free, f_scale=f_scale, n=bootstrap, seed=seed, **redraw
+                pts, LinearModel(None), free, f_scale=f_scale, n=bootstrap, seed=seed
             )
     if pts is None or not free:
         pts, free = None, None
@@ -164,7 +162,7 @@ def _shape_evidence(data, shape, local, t0, lo, hi, f_scale, search, bootstrap, 
     )
     if fixed and bootstrap:
         fixed = bootstrap_linear(
-            on, LinearModel(shape), fixed, f_scale=f_scale, n=bootstrap, seed=seed, **redraw
+            on, LinearModel(shape), fixed, f_scale=f_scale, n=bootstrap, seed=seed
         )
     expected = _expected_exponent(shape, on, free.t0 if free else t0, f_scale)
     n_sys = a_sys = _NAN2
@@ -252,10 +250,7 @@ def _side_exponent(data, lo, hi, side, context, pair_key, f_scale, bootstrap, se
         data, lo, hi, loss="soft_l1", f_scale=f_scale, t0_start=context.t0, start=first, **spec
     )
     if fit and bootstrap:
-        redraw = redraw_interval((lo, hi))
-        fit = bootstrap_blend(
-            data, fit, f_scale=f_scale, n=bootstrap, seed=seed, t0_redraw=redraw, **spec
-        )
+        fit = bootstrap_blend(data, fit, f_scale=f_scale, n=bootstrap, seed=seed, **spec)
     return fit
 
 
@@ -316,7 +311,6 @@ def evaluate_two_regimes(
             f_scale=f_scale,
             n=bootstrap,
             seed=seed,
-            t0_redraw=redraw_interval((lo, hi)),
             kind="blend",
             early=pair_key[0],
             late=pair_key[1],
@@ -346,9 +340,10 @@ def evaluate_two_regimes(
             if pair_key is not None:
                 key = (shape, pair_key[1]) if side == "early" else (pair_key[0], shape)
                 pf = context if key == pair_key else search.pairs.get(key)
-            prefactor, a_sys = math.nan, _NAN2
+            prefactor, a_ci, a_sys = math.nan, _NAN2, _NAN2
             if pf:
                 prefactor = pf.early_prefactor if side == "early" else pf.late_prefactor
+                a_ci = pf.early_prefactor_ci if side == "early" else pf.late_prefactor_ci
             if pf and levels and key == pair_key:
                 a_sys = edge_interval(prefactor, at_levels[side][1])
             fits.append(
@@ -361,9 +356,7 @@ def evaluate_two_regimes(
                     exponent_ci=ci,
                     window=window,
                     prefactor_fit=prefactor,
-                    # Issue 13 merge point, the one place: the blend's prefactor intervals
-                    # (BlendFit.early_prefactor_ci / late_prefactor_ci of `pf`) go here.
-                    prefactor_fit_ci=_NAN2,
+                    prefactor_fit_ci=a_ci,
                     exponent_sys_ci=n_sys,
                     prefactor_sys_ci=a_sys,
                     aic=pf.aic if pf else math.nan,

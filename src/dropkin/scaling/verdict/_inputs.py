@@ -33,8 +33,8 @@ def finite(name, value, *, allow_none=False, positive=False):
     return float(value)
 
 
-def t0_bracket(time, contact_time, contact_time_err, contact_bracket, t0):
-    """(t0, t0) when fixed; the given bracket, checked; else the contact package's default."""
+def t0_bracket(time, status, contact_time, contact_bracket, t0):
+    """(t0, t0) when fixed; the given bracket, checked; else the frames' bracket (contact/)."""
     if t0 is not None:
         return t0, t0
     if contact_bracket is not None:
@@ -47,7 +47,7 @@ def t0_bracket(time, contact_time, contact_time_err, contact_bracket, t0):
         if not (math.isfinite(lo) and math.isfinite(hi) and lo <= hi):
             raise FitError("must be finite with lo <= hi", key="contact_bracket", value=(lo, hi))
         return lo, hi
-    return default_bracket(time, contact_time, contact_time_err)
+    return default_bracket(time, status, contact_time)
 
 
 def check_call(time, radius, radius_err, status, numbers, geometry, view, seed, bootstrap):

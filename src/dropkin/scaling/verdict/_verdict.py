@@ -193,8 +193,9 @@ def analyze_series(
     contact_time_err : float, optional
         Its standard uncertainty (s).
     contact_bracket : (float, float), optional
-        Interval that holds the contact instant (s). Default: contact_time ±
-        2 contact_time_err, or ± half a frame when no uncertainty is known
+        Interval that holds the contact instant (s). Default: the bracket the
+        frames prove, from the last ``before-contact`` frame to the first frame
+        in contact, or else the frame interval that holds `contact_time`
         (:func:`dropkin.contact.default_bracket`).
         t0 is fitted inside it, and no later than just before the first
         ``ok`` frame after its start (a measured bridge means contact has
@@ -242,7 +243,7 @@ def analyze_series(
         contact_time = finite("contact_time", contact_time)
     contact_time_err = finite("contact_time_err", contact_time_err, allow_none=True, positive=True)
     relative = resolve_material_uncertainty(material_uncertainty)
-    lo, hi = t0_bracket(t, contact_time, contact_time_err, contact_bracket, t0)
+    lo, hi = t0_bracket(t, status, contact_time, contact_bracket, t0)
     settings = {
         "exponent_tolerance": EXPONENT_TOLERANCE,
         "interval_combination": "statistical ⊕ systematic: each side's distance in quadrature",
