@@ -91,8 +91,9 @@ COALESCENCE_LAWS: tuple[Regime, ...] = (
         status="M",
         note="C is O(1) and not verified here: fit it",
         condition=_c.always_first,
-        max_radius_ratio=1.0 / (math.e * math.pi),
-        validity_source="an early stage, r ≪ R; A1's bound 1/(eπ) ≈ 0.12 is used (D)",
+        max_radius_ratio=0.5,
+        validity_source="constant-speed opening is reported up to r/R of order 0.5 when no "
+        "other regime takes over first (M)",
     ),
     Regime(
         key="inertial",
