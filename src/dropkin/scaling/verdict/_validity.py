@@ -29,12 +29,13 @@ __all__ = ["validity_limit", "within_validity"]
 def validity_limit(cands) -> tuple[float | None, str]:
     """The largest r/R bound among the plausible candidates (all, if none is), and its regime.
 
-    ``(None, "")`` when one of them has no bound.
+    ``(None, "")`` when one of them has no bound. On a tie the regime named is
+    the later one in the catalogue's order (the stage that reaches larger radii).
     """
     pool = [c for c in cands if c.plausible] or list(cands)
     if not pool or any(c.regime.max_radius_ratio is None for c in pool):
         return None, ""
-    best = max(pool, key=lambda c: c.regime.max_radius_ratio)
+    best = max(reversed(pool), key=lambda c: c.regime.max_radius_ratio)
     return float(best.regime.max_radius_ratio), best.regime.key
 
 
