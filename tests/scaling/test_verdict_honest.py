@@ -169,3 +169,20 @@ def test_flattening_near_r_equal_R_gives_no_late_regime():
     assert v.regimes == ("inertial",) and not v.two_regime
     assert v.n_beyond_validity == int(((status == "ok") & (r > 0.5 * R)).sum()) > 0
     assert "late points beyond r/R = 0.5" in v.sentence
+
+
+def test_the_contact_instant_has_an_interval_inside_its_bracket_and_in_fit_json():
+    # Issue 13, deliverable 1: t0 is refitted in every resample and its interval is
+    # reported with the others. The series' true contact is at 5.4 frames (seeded
+    # generator above), inside the frames' bracket (5, 6) frames.
+    t, r, err, status, bracket, _ = series(seed=3)
+    v = run(t, r, err, status, bracket, bootstrap=100, seed=1)
+    lo, hi = v.t0_ci
+    assert bracket[0] <= lo <= v.t0 <= hi <= bracket[1]
+    assert hi > lo  # free inside the bracket: a real interval, not a point
+    assert lo <= 5.4 * FRAME <= hi
+    data = verdict_to_dict(v)
+    assert data["contact"]["t0_ci_s"] == [lo, hi]
+    assert verdict_from_dict(data).t0_ci == (lo, hi)
+    fixed = run(t, r, err, status, bracket, t0=5.4 * FRAME)
+    assert fixed.t0_ci == (fixed.t0, fixed.t0)

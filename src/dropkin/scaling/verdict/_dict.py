@@ -101,9 +101,11 @@ def _evidence_dict(verdict) -> dict:
         "model_reason": verdict.model_reason,
         "contact": {
             "t0_s": _num(verdict.t0),
+            "t0_ci_s": _pair(verdict.t0_ci),
             "bracket_s": _pair(verdict.t0_bracket),
             "fixed": verdict.t0_fixed,
-            "note": "t0_s and bracket_s count from the first frame; all other times from t0",
+            "note": "t0_s, t0_ci_s and bracket_s count from the first frame; "
+            "all other times from t0",
         },
         "n_points": verdict.n_points,
         "time_range_s": _pair(verdict.time_range),
@@ -320,6 +322,7 @@ def verdict_from_dict(data: Mapping) -> RegimeVerdict:
         model_reason=data.get("model_reason", ""),
         local=_local_from_dict(local) if local else None,
         t0=_float(contact.get("t0_s")),
+        t0_ci=_floats(contact.get("t0_ci_s")),
         t0_bracket=_floats(contact.get("bracket_s")),
         t0_fixed=contact.get("fixed", False),
         n_points=data.get("n_points", 0),

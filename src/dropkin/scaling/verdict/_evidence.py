@@ -221,7 +221,18 @@ def evaluate_one_regime(
         )
         for c in cands
     ]
-    return {"sides": (rank(fits),), "crossovers": (), "local": local, "t0": t0}
+    whole = search.free
+    if bootstrap and whole.t0_free:
+        whole = bootstrap_linear(
+            data, LinearModel(None), whole, f_scale=f_scale, n=bootstrap, seed=seed
+        )
+    return {
+        "sides": (rank(fits),),
+        "crossovers": (),
+        "local": local,
+        "t0": t0,
+        "t0_ci": tuple(whole.t0_ci),
+    }
 
 
 def _side_exponent(data, lo, hi, side, context, pair_key, f_scale, bootstrap, seed):
@@ -380,4 +391,10 @@ def evaluate_two_regimes(
         delta_aic=search.delta_aic,
         model=context.model,
     )
-    return {"sides": tuple(sides), "crossovers": (crossover,), "local": local, "t0": t0}
+    return {
+        "sides": tuple(sides),
+        "crossovers": (crossover,),
+        "local": local,
+        "t0": t0,
+        "t0_ci": tuple(context.t0_ci),
+    }

@@ -183,7 +183,9 @@ def format_verdict(verdict) -> str:
             f"predicted {_t(x.predicted_time)}"
         )
     lines.append(
-        f"t0 = {_t(verdict.t0)} from the first frame; {verdict.n_points} points"
+        f"t0 = {_t(verdict.t0)} [{_t(verdict.t0_ci[0])}, {_t(verdict.t0_ci[1])}] "
+        f"from the first frame (bracket {_t(verdict.t0_bracket[0])}–{_t(verdict.t0_bracket[1])}); "
+        f"{verdict.n_points} points"
         + (
             f" ({verdict.n_beyond_validity} beyond r/R = {verdict.validity_ratio:.2g} left out)"
             if verdict.n_beyond_validity

@@ -93,6 +93,10 @@ class RegimeVerdict:
         The local exponent along the series.
     t0 : float
         The contact instant used (s from the first frame).
+    t0_ci : tuple of float
+        Its 95 % interval (s from the first frame): the percentiles of t0
+        refitted in every bootstrap resample (the normal approximation cut to
+        the bracket without a bootstrap); ``(t0, t0)`` when fixed.
     t0_bracket : tuple of float
         The bracket t0 was fitted in (equal ends when fixed), cut to end just
         before the first ``ok`` frame.
@@ -139,6 +143,7 @@ class RegimeVerdict:
     model_reason: str = ""
     local: LocalExponent | None = None
     t0: float = math.nan
+    t0_ci: tuple[float, float] = (math.nan, math.nan)
     t0_bracket: tuple[float, float] = (math.nan, math.nan)
     t0_fixed: bool = False
     n_points: int = 0
@@ -353,6 +358,7 @@ def _judged(series, levels, lo, hi, relative, bootstrap, seed, cands, base):
         model_reason=search.reason,
         local=result["local"],
         t0=result["t0"],
+        t0_ci=result["t0_ci"],
         n_points=len(data),
         time_range=(float(data.time[0] - result["t0"]), float(data.time[-1] - result["t0"])),
         **base,
