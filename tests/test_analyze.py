@@ -67,3 +67,21 @@ def test_fit_refuses_a_series_too_short_with_one_line(tmp_path):
     lines = result.stderr.strip().splitlines()
     assert len(lines) == 1 and "radius.csv" in lines[0]
     assert "Traceback" not in result.output
+
+
+def test_fit_with_initial_radius_option_records_it_and_keeps_the_verdict(tmp_path):
+    # --initial-radius lets the AIC choose between r = A τ^n and r = r0 + A τ^n. The
+    # fast_pair sample was rendered from the inertial law with r0 = 0 (its truth.json):
+    # the option is recorded in fit.json's settings and the verdict stays inertial.
+    out = tmp_path / "out"
+    runner = CliRunner()
+    first = runner.invoke(main, ["measure", str(SAMPLES / "fast_pair.tif"), "-o", str(out)])
+    assert first.exit_code == 0, first.output
+    result = runner.invoke(
+        main,
+        ["fit", str(out / "radius.csv"), "-o", str(out), "--bootstrap", "20", "--initial-radius"],
+    )
+    assert result.exit_code == 0, result.output
+    fit = json.loads((out / "fit.json").read_text())
+    assert fit["settings"]["initial_radius"] is True
+    assert fit["dominant"]["regime"] == "inertial"

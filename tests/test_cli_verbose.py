@@ -43,7 +43,7 @@ def test_verbose_fit_names_its_settings_and_experiment(tmp_path):
     assert loud.exit_code == 0, loud.output
     assert plain.stderr == ""
     assert loud.stderr.splitlines() == [
-        "dropkin: settings: t0 = None, seed = 2, bootstrap = 5",
+        "dropkin: settings: t0 = None, seed = 2, bootstrap = 5, initial_radius = False",
         f"dropkin: experiment file: {(SAMPLES / 'fast_pair.toml').resolve()}",
     ]
 

@@ -167,3 +167,20 @@ def test_an_experiment_or_background_outside_is_refused_too(tree):
 def test_a_bad_manifest_is_refused_in_one_line_naming_the_key(tree, text, words):
     root, _ = tree
     assert words in _refused(_write(root, text))
+
+
+def test_the_initial_radius_setting_must_be_a_boolean(tmp_path):
+    # The manifest's analysis table takes initial_radius = true/false (TOML booleans).
+    (tmp_path / "a.tif").write_bytes(b"")
+    good = tmp_path / "good.toml"
+    good.write_text(
+        '[shared]\nanalysis = { initial_radius = true }\n[[recordings]]\npath = "a.tif"\n'
+    )
+    (task,) = read_manifest(good).tasks
+    assert task.settings.initial_radius is True
+    bad = tmp_path / "bad.toml"
+    bad.write_text(
+        '[shared]\nanalysis = { initial_radius = "yes" }\n[[recordings]]\npath = "a.tif"\n'
+    )
+    with pytest.raises(DropkinError, match="initial_radius.*must be true or false"):
+        read_manifest(bad)

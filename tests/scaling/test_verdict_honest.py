@@ -186,3 +186,36 @@ def test_the_contact_instant_has_an_interval_inside_its_bracket_and_in_fit_json(
     assert verdict_from_dict(data).t0_ci == (lo, hi)
     fixed = run(t, r, err, status, bracket, t0=5.4 * FRAME)
     assert fixed.t0_ci == (fixed.t0, fixed.t0)
+
+
+def test_a_finite_initial_radius_is_kept_when_asked_and_shown():
+    # Issue 13, deliverable 1: r = r0 + A τ^n with r0 = 8 µm (made with numpy, seeded;
+    # the reference is the generating law itself). Without r0 the early bend reads as a
+    # smaller exponent; with `initial_radius=True` the AIC keeps r0, its interval holds
+    # the true value, n's combined interval holds 1/2, and the sentence and fit.json say so.
+    r0 = 8e-6
+    t, r, err, status, bracket, tau = series(seed=5, shape=lambda x: r0 + 1.2 * G * x**0.5)
+    plain = run(t, r, err, status, bracket, bootstrap=60, seed=2)
+    with_r0 = run(t, r, err, status, bracket, bootstrap=60, seed=2, initial_radius=True)
+    top = with_r0.dominant
+    assert top.key == "inertial" and top.initial_radius_fitted
+    lo, hi = top.initial_radius_ci
+    assert lo <= r0 <= hi
+    assert top.exponent_combined_ci[0] <= 0.5 <= top.exponent_combined_ci[1]
+    assert plain.dominant.exponent_fit < top.exponent_fit  # r0 left out bends n down
+    assert "finite initial radius r0 =" in with_r0.sentence
+    assert "finite initial radius" not in plain.sentence
+    data = verdict_to_dict(with_r0)
+    (cand,) = [c for c in data["candidates"] if c["regime"] == "inertial"]
+    assert cand["initial_radius_m"] == pytest.approx(top.initial_radius)
+    back = verdict_from_dict(data)
+    assert back.dominant.initial_radius_fitted and back.dominant.initial_radius_ci == (lo, hi)
+    assert data["settings"]["initial_radius"] is True
+
+
+def test_no_initial_radius_is_kept_on_a_pure_power_law():
+    # r0 = 0 in the generating law: the AIC must not keep the extra parameter here.
+    t, r, err, status, bracket, _ = series(seed=6)
+    v = run(t, r, err, status, bracket, initial_radius=True)
+    assert not v.dominant.initial_radius_fitted
+    assert "finite initial radius" not in v.sentence

@@ -24,7 +24,7 @@ experiment file (``experiment.toml`` in its folder, ``<stem>.toml`` beside
 it, or the file an entry names with ``experiment = "..."``), then
 ``[shared]``, then the entry's own tables. ``analysis`` holds the settings of
 the measurement and the fit (``threshold``, ``roi``, ``background``,
-``overlays``, ``t0``, ``seed``, ``bootstrap``, ``chunk_size``).
+``overlays``, ``t0``, ``seed``, ``bootstrap``, ``chunk_size``, ``initial_radius``).
 
 Paths are resolved relative to the manifest's folder and may not leave it
 (no absolute paths, no ``..`` out of it, no symbolic link pointing out of
@@ -48,7 +48,7 @@ LABEL_PATTERN = re.compile(r"^[A-Za-z0-9][A-Za-z0-9._-]{0,99}$")
 _SECTIONS = ("recording", "setup", "liquid", "medium", "drops")
 _ENTRY_KEYS = {"path", "glob", "label", "experiment", "analysis", *_SECTIONS}
 _ANALYSIS_KEYS = ("threshold", "roi", "background", "overlays", "t0", "seed", "bootstrap")
-_ANALYSIS_KEYS += ("chunk_size",)
+_ANALYSIS_KEYS += ("chunk_size", "initial_radius")
 
 
 @dataclass(frozen=True)
@@ -151,6 +151,10 @@ def _analysis(table: dict, base: dict, path, where: str, resolve) -> dict:
             values[key] = _int(value, path, dotted, 0, 100000)
         elif key == "chunk_size":
             values[key] = _int(value, path, dotted, 1, 4096)
+        elif key == "initial_radius":
+            if not isinstance(value, bool):
+                _fail("must be true or false", path, dotted, value=value)
+            values[key] = value
         else:  # seed
             values[key] = _int(value, path, dotted, 0, 2**32 - 1)
     return values

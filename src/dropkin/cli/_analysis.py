@@ -18,7 +18,7 @@ from ._recording import MEASURE_SETTINGS, measure_summary
 __all__ = ["fit_command", "analyze_command"]
 
 #: The settings of an analysis that fitting uses (``-v`` shows them).
-FIT_SETTINGS = ("t0", "seed", "bootstrap")
+FIT_SETTINGS = ("t0", "seed", "bootstrap", "initial_radius")
 
 
 def _report_verdict(verdict, radius_csv, path) -> None:
@@ -41,16 +41,15 @@ def _report_verdict(verdict, radius_csv, path) -> None:
 )
 @fit_options
 @click.pass_context
-def fit_command(ctx, radius_csv, out, experiment, t0, seed, bootstrap):
+def fit_command(ctx, radius_csv, out, experiment, t0, seed, bootstrap, initial_radius):
     """Fit the scaling regimes to RADIUS_CSV (from dropkin measure) and give the verdict."""
     from pathlib import Path
 
     from ..pipeline._steps import fit_into
 
-    detail(ctx, f"settings: t0 = {t0!r}, seed = {seed!r}, bootstrap = {bootstrap!r}")
-    verdict, _, used = fit_into(
-        radius_csv, out, experiment=experiment, t0=t0, seed=seed, bootstrap=bootstrap
-    )
+    fit = {"t0": t0, "seed": seed, "bootstrap": bootstrap, "initial_radius": initial_radius}
+    detail(ctx, "settings: " + ", ".join(f"{k} = {v!r}" for k, v in fit.items()))
+    verdict, _, used = fit_into(radius_csv, out, experiment=experiment, **fit)
     detail_experiment(ctx, used.path)
     _report_verdict(verdict, radius_csv, Path(out) / "fit.json")
 

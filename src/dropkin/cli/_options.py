@@ -174,6 +174,12 @@ def fit_options(command):
             show_default=True,
             help="Bootstrap resamples for the intervals.",
         ),
+        click.option(
+            "--initial-radius",
+            is_flag=True,
+            help="Also try a finite initial radius r0 (r = r0 + A t^n); kept when the AIC "
+            "prefers it.",
+        ),
     ]
     return _apply(command, options)
 
@@ -197,7 +203,8 @@ def analysis_settings(*, background, roi, threshold, jobs, chunk_size, overlay_c
     given, :func:`fit_options` (other options in `others` are ignored)."""
     from ..pipeline._steps import AnalysisSettings, parse_roi
 
-    fit = {key: others[key] for key in ("t0", "seed", "bootstrap") if key in others}
+    keys = ("t0", "seed", "bootstrap", "initial_radius")
+    fit = {key: others[key] for key in keys if key in others}
     return AnalysisSettings(
         roi=parse_roi(roi),
         threshold=threshold,

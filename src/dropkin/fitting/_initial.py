@@ -24,7 +24,12 @@ from ._bootstrap import outside, percentile_interval
 from ._core import Series, bracket_ci, information, normal_ci, safe_exp
 from ._records import LawFit
 
-__all__ = ["INITIAL_RADIUS_AIC_GAIN", "with_initial_radius", "bootstrap_initial_radius"]
+__all__ = [
+    "INITIAL_RADIUS_AIC_GAIN",
+    "fit_initial_radius",
+    "with_initial_radius",
+    "bootstrap_initial_radius",
+]
 
 #: AIC gain the law with r0 must bring over the law without it to be chosen.
 #: With r0 = 0 the extra parameter lowers the AIC by more than 2 by chance in
@@ -148,6 +153,15 @@ def _record(data: Series, base: LawFit, res, t0_fixed, lo, hi) -> LawFit | None:
         initial_radius_fitted=True,
         initial_radius_delta_aic=base.aic - aic,
     )
+
+
+def fit_initial_radius(series: Series, base: LawFit, *, loss, f_scale) -> LawFit | None:
+    """The law with r0, whatever the AIC says (None when no start converges).
+
+    For a window of a series on which the law with r0 was already chosen as
+    a whole: the window keeps r0 as a parameter, so that n's interval carries it.
+    """
+    return _fit(series, base, loss=loss, f_scale=f_scale)
 
 
 def with_initial_radius(series: Series, base: LawFit, *, loss, f_scale) -> LawFit:

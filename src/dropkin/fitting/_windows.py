@@ -40,6 +40,7 @@ from dataclasses import dataclass, field
 import numpy as np
 
 from ._core import MIN_DECADES, MIN_POINTS, LawShape, Series
+from ._initial import with_initial_radius
 from ._linear import LinearModel, linear_fit
 from ._local import LocalExponent
 from ._records import BlendFit, LawFit
@@ -159,6 +160,9 @@ class CrossoverSearch:
     two_regime : bool
     reason : str
         Why two regimes were kept or not, in words.
+    initial : LawFit or None
+        The one-regime law with a finite initial radius, when it was tried and
+        the information criterion kept it (it then competes with the others).
     """
 
     free: LawFit
@@ -173,6 +177,7 @@ class CrossoverSearch:
     delta_aic: float
     two_regime: bool
     reason: str
+    initial: LawFit | None = None
 
 
 def _best(models):
@@ -256,18 +261,41 @@ def _catalogue_pairs(data: Series, shapes, lo, hi, start, direction):
     return pairs, context, context_fit, tried
 
 
-def search_crossover(data: Series, shapes, lo, hi, *, loss, f_scale) -> CrossoverSearch:
-    """Fit the one- and two-regime models and decide whether two regimes are needed."""
+def search_crossover(
+    data: Series, shapes, lo, hi, *, loss, f_scale, initial_radius=False
+) -> CrossoverSearch:
+    """Fit the one- and two-regime models and decide whether two regimes are needed.
+
+    With `initial_radius`, the power law with a finite initial radius r0 is one
+    of the one-regime models when the AIC keeps it over the law without r0.
+    """
     kw = {"loss": loss, "f_scale": f_scale}
     free = linear_fit(data, LinearModel(None), lo, hi, **kw)
     singles = {s: linear_fit(data, LinearModel(s), lo, hi, **kw) for s in shapes}
     models = [ModelScore("power law, n free", 1, free.aic, free.n_params, free)]
     models += [ModelScore(s.label, 1, f.aic, f.n_params, f) for s, f in singles.items() if f]
+    initial = with_initial_radius(data, free, **kw) if free and initial_radius else None
+    initial = initial if initial is not None and initial.initial_radius_fitted else None
+    if initial is not None:
+        name = "power law with a finite initial radius, n free"
+        models.append(ModelScore(name, 1, initial.aic, initial.n_params, initial))
     best_single = _best(models)
     if len(data) < 2 * MIN_POINTS or not free:
         reason = "too few points for two regimes"
         return CrossoverSearch(
-            free, singles, tuple(models), {}, None, None, -1, best_single, None, 0.0, False, reason
+            free,
+            singles,
+            tuple(models),
+            {},
+            None,
+            None,
+            -1,
+            best_single,
+            None,
+            0.0,
+            False,
+            reason,
+            initial,
         )
     direction = curvature_direction(data, free.t0)
     start = {**kw, "t0_start": free.t0, "direction": direction}
@@ -304,6 +332,7 @@ def search_crossover(data: Series, shapes, lo, hi, *, loss, f_scale) -> Crossove
             0.0,
             False,
             reason,
+            initial,
         )
     delta = best_single.aic - best_two.aic
     keep = delta > AIC_THRESHOLD
@@ -326,4 +355,5 @@ def search_crossover(data: Series, shapes, lo, hi, *, loss, f_scale) -> Crossove
         delta,
         keep,
         reason,
+        initial,
     )

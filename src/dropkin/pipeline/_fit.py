@@ -131,7 +131,14 @@ def load_measurement(radius_csv, *, experiment=None, overrides=None) -> Measurem
     return Measurement(series=series, experiment=resolve_fluids(exp), path=path)
 
 
-def fit_measurement(measurement: Measurement, *, t0=None, seed: int = 0, bootstrap: int = 200):
+def fit_measurement(
+    measurement: Measurement,
+    *,
+    t0=None,
+    seed: int = 0,
+    bootstrap: int = 200,
+    initial_radius: bool = False,
+):
     """The regime verdict for a measurement.
 
     Returns
@@ -174,5 +181,6 @@ def fit_measurement(measurement: Measurement, *, t0=None, seed: int = 0, bootstr
         seed=seed,
         bootstrap=bootstrap,
         radius_levels=dict(series.level_radii) or None,
+        initial_radius=initial_radius,
     )
     return verdict, numbers

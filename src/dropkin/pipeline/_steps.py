@@ -53,6 +53,9 @@ class AnalysisSettings:
         Contact instant fixed by hand (s from the first frame).
     seed, bootstrap : int
         Bootstrap seed and resamples of the fit's intervals.
+    initial_radius : bool
+        Also try a finite initial radius r0 in the fits (kept when the AIC
+        prefers it).
     """
 
     roi: tuple[int, int, int, int] | None = None
@@ -64,6 +67,16 @@ class AnalysisSettings:
     t0: float | None = None
     seed: int = 0
     bootstrap: int = 200
+    initial_radius: bool = False
+
+    def fit_settings(self) -> dict:
+        """The keywords of the fit (:func:`~dropkin.pipeline._fit.fit_measurement`)."""
+        return {
+            "t0": self.t0,
+            "seed": self.seed,
+            "bootstrap": self.bootstrap,
+            "initial_radius": self.initial_radius,
+        }
 
     def result_settings(self) -> dict:
         """The settings that can change the outputs (for a settings hash)."""
@@ -75,6 +88,7 @@ class AnalysisSettings:
             "t0": self.t0,
             "seed": self.seed,
             "bootstrap": self.bootstrap,
+            "initial_radius": self.initial_radius,
         }
 
 
@@ -231,17 +245,29 @@ def measure_into(
     return series, extras["contact"].method
 
 
-def _fit_and_write(measurement, out, *, t0, seed: int, bootstrap: int):
-    """The verdict of a measurement, written to ``OUT/fit.json``; the verdict and the numbers."""
+def _fit_and_write(measurement, out, **fit):
+    """The verdict of a measurement, written to ``OUT/fit.json``; the verdict and the numbers.
+
+    `fit` holds the keywords of :func:`~dropkin.pipeline._fit.fit_measurement`.
+    """
     from .._atomic import remove_temporaries
 
-    verdict, numbers = fit_measurement(measurement, t0=t0, seed=seed, bootstrap=bootstrap)
+    verdict, numbers = fit_measurement(measurement, **fit)
     remove_temporaries(out, Path(out) / "plots")  # left by a run that was killed
     write_fit(verdict, out)
     return verdict, numbers
 
 
-def fit_into(radius_csv, out, *, experiment=None, t0=None, seed: int = 0, bootstrap: int = 200):
+def fit_into(
+    radius_csv,
+    out,
+    *,
+    experiment=None,
+    t0=None,
+    seed: int = 0,
+    bootstrap: int = 200,
+    initial_radius: bool = False,
+):
     """Fit the regimes to a ``radius.csv``; write ``OUT/fit.json``.
 
     The series is read with the ``measure.json`` beside it (see
@@ -257,7 +283,8 @@ def fit_into(radius_csv, out, *, experiment=None, t0=None, seed: int = 0, bootst
         The sample as used.
     """
     measurement = load_measurement(radius_csv, experiment=experiment)
-    verdict, numbers = _fit_and_write(measurement, out, t0=t0, seed=seed, bootstrap=bootstrap)
+    fit = {"t0": t0, "seed": seed, "bootstrap": bootstrap, "initial_radius": initial_radius}
+    verdict, numbers = _fit_and_write(measurement, out, **fit)
     return verdict, numbers, measurement.experiment
 
 
@@ -316,9 +343,7 @@ def analyze_into(
     if series.contact_time is None:
         raise MeasurementError(method, path=rec.path)
     measurement = Measurement(series, sample_of(sample, series), out / "radius.csv")
-    verdict, numbers = _fit_and_write(
-        measurement, out, t0=settings.t0, seed=settings.seed, bootstrap=settings.bootstrap
-    )
+    verdict, numbers = _fit_and_write(measurement, out, **settings.fit_settings())
     used = measurement.experiment
     report = None
     if verdict:

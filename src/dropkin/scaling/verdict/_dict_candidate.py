@@ -92,6 +92,8 @@ def candidate_dict(c) -> dict:
         "exponent_gap": num(c.exponent_gap),
         "exponent_gap_widths": num(c.exponent_gap_widths),
         "prefactor_unit": c.prefactor_unit,
+        "initial_radius_m": c.initial_radius if c.initial_radius_fitted else None,
+        "initial_radius_ci_m": pair(c.initial_radius_ci) if c.initial_radius_fitted else None,
         "prefactor_sys_ci": pair(c.prefactor_sys_ci),
         "prefactor_combined_ci": pair(c.prefactor_combined_ci),
         "coefficient_ci": pair(c.coefficient_ci),
@@ -145,4 +147,16 @@ def candidate_from_dict(c: Mapping) -> CandidateFit:
         exponent_gap=to_float(c.get("exponent_gap")),
         exponent_gap_widths=to_float(c.get("exponent_gap_widths")),
         prefactor_unit=c.get("prefactor_unit", ""),
+        **_initial_radius_from(c),
     )
+
+
+def _initial_radius_from(c: Mapping) -> dict:
+    """The r0 fields of a candidate's dict form (absent or null: no r0 kept)."""
+    if c.get("initial_radius_m") is None:
+        return {}
+    return {
+        "initial_radius": to_float(c["initial_radius_m"]),
+        "initial_radius_ci": floats(c.get("initial_radius_ci_m")),
+        "initial_radius_fitted": True,
+    }

@@ -25,6 +25,8 @@ from __future__ import annotations
 import math
 from dataclasses import dataclass
 
+import numpy as np
+
 from ...errors import ExperimentError
 from ...fitting._bootstrap import bootstrap_blend, bootstrap_linear
 from ...fitting._core import Series, apparent_exponent
@@ -33,9 +35,10 @@ from ...fitting._local import local_from_series
 from ...fitting._two_laws import blend_fit
 from ...fitting._windows import consistent_window, points_in
 from ..regimes._crossovers import crossovers, power_law_crossing
+from ._initial import free_fit, shifted_series
 from ._judge import EXPONENT_TOLERANCE, judge, rank
 from ._materials import group_relative_uncertainty
-from ._systematics import edge_interval
+from ._systematics import edge_interval, level_estimates
 
 __all__ = ["CrossoverFit", "predicted_crossover", "evaluate_one_regime", "evaluate_two_regimes"]
 
@@ -123,40 +126,21 @@ def _expected_exponent(shape, points, t0, f_scale):
     return fit.exponent if fit else apparent_exponent(shape, points.time - t0, 1.0 / points.s**2)
 
 
-def _level_estimates(levels, first, last, shape, with_free, lo, hi, fit_kw):
-    """Point estimates (n free, A at the law's n) on each edge level's points in [first, last]."""
-    ns, prefactors = [], []
-    for level in levels:
-        on = level.subset((level.time >= first) & (level.time <= last))
-        if len(on) < 3:
-            continue
-        if with_free:
-            free = linear_fit(on, LinearModel(None), lo, hi, **fit_kw)
-            ns.append(free.exponent if free else math.nan)
-        fixed = linear_fit(on, LinearModel(shape), lo, hi, **fit_kw)
-        prefactors.append(fixed.prefactor if fixed else math.nan)
-    return ns, prefactors
-
-
-def _shape_evidence(data, shape, local, t0, lo, hi, f_scale, search, bootstrap, seed, levels):
+def _shape_evidence(
+    data, view, shape, local, t0, lo, hi, f_scale, search, bootstrap, seed, levels
+):
     # Over 80 lines only by the evidence dict it returns (one key a line).
+    # `view` is `data`, or its points with a finite initial radius taken away.
     window = consistent_window(local, shape, tolerance=EXPONENT_TOLERANCE)
-    pts = points_in(data, t0, window) if window is not None else None
+    seen = points_in(view, t0, window) if window is not None else None
+    pts = None if seen is None else data.subset(np.isin(data.time, seen.time))
     fit_kw = {"loss": "soft_l1", "f_scale": f_scale}
     if pts is not None:
-        free = (
-            search.free
-            if len(pts) == len(data)
-            else linear_fit(pts, LinearModel(None), lo, hi, **fit_kw)
-        )
-        if free and bootstrap:
-            free = bootstrap_linear(
-                pts, LinearModel(None), free, f_scale=f_scale, n=bootstrap, seed=seed
-            )
+        free = free_fit(pts, data, lo, hi, search, fit_kw, bootstrap, seed)
     if pts is None or not free:
-        pts, free = None, None
-    whole = pts is None or len(pts) == len(data)
-    on = data if pts is None else pts
+        pts, seen, free = None, None, None
+    whole = (seen is None or len(seen) == len(view)) and view is data
+    on = view if seen is None else seen
     fixed = (
         search.singles[shape] if whole else linear_fit(on, LinearModel(shape), lo, hi, **fit_kw)
     )
@@ -167,7 +151,7 @@ def _shape_evidence(data, shape, local, t0, lo, hi, f_scale, search, bootstrap, 
     expected = _expected_exponent(shape, on, free.t0 if free else t0, f_scale)
     n_sys = a_sys = _NAN2
     if levels:
-        ns, prefactors = _level_estimates(
+        ns, prefactors = level_estimates(
             levels, on.time[0], on.time[-1], shape, bool(free), lo, hi, fit_kw
         )
         n_sys = edge_interval(free.exponent, ns) if free else _NAN2
@@ -203,13 +187,15 @@ def evaluate_one_regime(
     geometry,
     levels=(),
 ):
-    """Ranked candidates of a one-regime series."""
-    t0 = search.free.t0
-    local = local_from_series(data, t0, (lo, hi))
+    """Ranked candidates of a one-regime series (on ``r - r0`` when the search kept r0)."""
+    initial = search.initial
+    t0 = search.free.t0 if initial is None else initial.t0
+    view = data if initial is None else shifted_series(data, initial.initial_radius)
+    local = local_from_series(view, t0, (lo, hi))
     evidence = {}
     for shape in dict.fromkeys(shapes.values()):
         evidence[shape] = _shape_evidence(
-            data, shape, local, t0, lo, hi, f_scale, search, bootstrap, seed, levels
+            data, view, shape, local, t0, lo, hi, f_scale, search, bootstrap, seed, levels
         )
     fits = [
         judge(
@@ -221,11 +207,10 @@ def evaluate_one_regime(
         )
         for c in cands
     ]
-    whole = search.free
+    whole = search.free if initial is None else initial
     if bootstrap and whole.t0_free:
-        whole = bootstrap_linear(
-            data, LinearModel(None), whole, f_scale=f_scale, n=bootstrap, seed=seed
-        )
+        fit_kw = {"loss": "soft_l1", "f_scale": f_scale}
+        whole = free_fit(data, data, lo, hi, search, fit_kw, bootstrap, seed)
     return {
         "sides": (rank(fits),),
         "crossovers": (),

@@ -35,6 +35,7 @@ import math
 from dataclasses import dataclass, field
 
 from ...fitting._core import LawShape
+from ...fitting._records import LawFit
 from ...fitting._windows import EXPONENT_TOLERANCE
 from ..regimes._catalogue import Candidate, Regime
 from ._systematics import coefficient_systematic, combine
@@ -133,6 +134,11 @@ class CandidateFit:
         side (≤ 1 when the candidate's exponent lies inside).
     prefactor_unit : str
         SI unit of A (``"m s^-1/2"``; ``"m s^-1"`` for the log law's ``C u``).
+    initial_radius, initial_radius_ci : float, tuple of float
+        r0 (m) of ``r = r0 + A τ**n`` and its 95 % interval, when the free fit
+        kept a finite initial radius (0 otherwise).
+    initial_radius_fitted : bool
+        Whether it did (the information criterion preferred it).
     """
 
     regime: Regime
@@ -176,6 +182,9 @@ class CandidateFit:
     exponent_gap: float = math.nan
     exponent_gap_widths: float = math.nan
     prefactor_unit: str = ""
+    initial_radius: float = 0.0
+    initial_radius_ci: tuple[float, float] = (0.0, 0.0)
+    initial_radius_fitted: bool = False
 
 
 def order_one(fitted: float, predicted: float) -> bool:
@@ -347,7 +356,20 @@ def judge(
         exponent_gap=float(gap),
         exponent_gap_widths=float(widths),
         prefactor_unit=prefactor_unit(reg),
+        **_initial_radius(fit),
     )
+
+
+def _initial_radius(fit) -> dict:
+    """The r0 fields of a CandidateFit from its free fit (none kept: r0 = 0)."""
+    if not (isinstance(fit, LawFit) and fit.initial_radius_fitted):
+        return {}
+    lo, hi = fit.initial_radius_ci
+    return {
+        "initial_radius": float(fit.initial_radius),
+        "initial_radius_ci": (float(lo), float(hi)),
+        "initial_radius_fitted": True,
+    }
 
 
 def rank(fits) -> tuple[CandidateFit, ...]:

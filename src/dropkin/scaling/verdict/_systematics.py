@@ -29,7 +29,15 @@ from __future__ import annotations
 import math
 from collections.abc import Iterable
 
-__all__ = ["edge_interval", "combine", "coefficient_systematic", "Z95"]
+from ...fitting._linear import LinearModel, linear_fit
+
+__all__ = [
+    "edge_interval",
+    "combine",
+    "coefficient_systematic",
+    "level_estimates",
+    "Z95",
+]
 
 #: The normal quantile of a two-sided 95 % interval.
 Z95 = 1.959963984540054
@@ -85,3 +93,18 @@ def coefficient_systematic(
         coefficient * (1.0 - math.hypot(lo, material)),
         coefficient * (1.0 + math.hypot(hi, material)),
     )
+
+
+def level_estimates(levels, first, last, shape, with_free, lo, hi, fit_kw):
+    """Point estimates (n free, A at the law's n) on each edge level's points in [first, last]."""
+    ns, prefactors = [], []
+    for level in levels:
+        on = level.subset((level.time >= first) & (level.time <= last))
+        if len(on) < 3:
+            continue
+        if with_free:
+            free = linear_fit(on, LinearModel(None), lo, hi, **fit_kw)
+            ns.append(free.exponent if free else math.nan)
+        fixed = linear_fit(on, LinearModel(shape), lo, hi, **fit_kw)
+        prefactors.append(fixed.prefactor if fixed else math.nan)
+    return ns, prefactors

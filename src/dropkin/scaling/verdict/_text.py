@@ -70,7 +70,14 @@ def _exponent_text(c, tolerance) -> str:
     )
     stat, comb = c.exponent_ci, c.exponent_combined_ci
     sys_known = all(math.isfinite(v) for v in c.exponent_sys_ci)
-    text = f"n = {c.exponent_fit:.3f} [{stat[0]:.3f}, {stat[1]:.3f}] statistical, "
+    text = ""
+    if c.initial_radius_fitted:
+        r0, (r0_lo, r0_hi) = c.initial_radius * 1e6, c.initial_radius_ci
+        text = (
+            f"with a finite initial radius r0 = {r0:.3g} µm "
+            f"[{r0_lo * 1e6:.3g}, {r0_hi * 1e6:.3g}] (kept by the AIC), "
+        )
+    text += f"n = {c.exponent_fit:.3f} [{stat[0]:.3f}, {stat[1]:.3f}] statistical, "
     if sys_known:
         text += f"[{comb[0]:.3f}, {comb[1]:.3f}] with the edge-level systematic, "
     else:

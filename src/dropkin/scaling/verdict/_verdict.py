@@ -179,6 +179,7 @@ def analyze_series(
     seed=0,
     bootstrap=200,
     radius_levels=None,
+    initial_radius=False,
 ) -> RegimeVerdict:
     # Over 80 lines only by its signature and numpydoc docstring; the body is 40 lines.
     """Decide which scaling regime governs a radius series.
@@ -225,6 +226,10 @@ def analyze_series(
         NaN where not measured). The fits are repeated on each (point
         estimates, same window and bracket); the range of the estimates is
         the systematic interval (:mod:`._systematics`).
+    initial_radius : bool
+        Also try ``r = r0 + A (t - t0)**n`` (r0 ≥ 0) for each candidate's
+        free-exponent fit of a one-regime series, kept only where the AIC
+        prefers it (:func:`dropkin.fitting.fit_power_law`, ``initial_radius``).
 
     Returns
     -------
@@ -256,6 +261,7 @@ def analyze_series(
         "prefactor_band": PREFACTOR_BAND,
         "aic_threshold": AIC_THRESHOLD,
         "bootstrap": bootstrap,
+        "initial_radius": bool(initial_radius),
         "seed": seed,
         "material_uncertainty": dict(relative),
         "loss": "soft_l1",
@@ -296,7 +302,7 @@ def analyze_series(
                 False, f"{problem[0].upper()}{problem[1:]} ({why}{ratio:.2g}).", **base
             )
     verdict, decisions = _judged(
-        series, level_series, lo, hi, relative, bootstrap, seed, cands, base
+        series, level_series, lo, hi, relative, bootstrap, seed, cands, base, initial_radius
     )
     if not verdict:
         return verdict
@@ -307,7 +313,7 @@ def analyze_series(
     )
 
 
-def _judged(series, levels, lo, hi, relative, bootstrap, seed, cands, base):
+def _judged(series, levels, lo, hi, relative, bootstrap, seed, cands, base, initial_radius):
     """(verdict, decisions) on points that can support a fit, t0 in (lo, hi); `base` as given."""
     numbers, geometry = base["numbers"], base["geometry"]
     data = series.subset(series.time > hi)
@@ -315,7 +321,13 @@ def _judged(series, levels, lo, hi, relative, bootstrap, seed, cands, base):
     f_scale = ROBUST_SCALE * noise_scale(data)
     shapes = {c.regime.key: _shape(c, numbers) for c in cands}
     search = search_crossover(
-        data, list(dict.fromkeys(shapes.values())), lo, hi, loss="soft_l1", f_scale=f_scale
+        data,
+        list(dict.fromkeys(shapes.values())),
+        lo,
+        hi,
+        loss="soft_l1",
+        f_scale=f_scale,
+        initial_radius=bool(initial_radius),
     )
     if not search.free:
         return RegimeVerdict(False, search.free.message, **base), ()

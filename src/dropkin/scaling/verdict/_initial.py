@@ -1,0 +1,63 @@
+"""A finite initial radius in the verdict: ``r = r0 + A (t - t0)**n`` on one-regime series.
+
+When the caller asks for it (``analyze_series(initial_radius=True)``), the
+crossover search offers the power law with r0 as one more one-regime model
+(:func:`dropkin.fitting._windows.search_crossover`); when the information
+criterion keeps it, the candidates are judged on the series with r0 taken
+away (their windows, local exponent and fixed-exponent prefactors), and each
+candidate's free-exponent fit keeps r0 as a parameter, so that n's interval
+carries r0's uncertainty (its bootstrap refits r0 and t0 in every resample).
+
+Examples
+--------
+>>> import numpy as np
+>>> from dropkin.fitting._core import make_series
+>>> s = make_series([1.0, 2.0], [3e-6, 5e-6], [1e-7, 1e-7])
+>>> v = shifted_series(s, 1e-6)
+>>> np.round(np.exp(v.y) * 1e6, 6).tolist(), np.round(v.s, 4).tolist()
+([2.0, 4.0], [0.05, 0.025])
+"""
+
+from __future__ import annotations
+
+import numpy as np
+
+from ...fitting._bootstrap import bootstrap_linear
+from ...fitting._core import Series
+from ...fitting._initial import bootstrap_initial_radius, fit_initial_radius
+from ...fitting._linear import LinearModel, linear_fit
+
+__all__ = ["shifted_series", "free_fit"]
+
+
+def shifted_series(series: Series, r0: float) -> Series:
+    """The points of ``r - r0`` (σ unchanged in metres): ln of it and its relative σ.
+
+    Points with ``r ≤ r0`` are left out.
+    """
+    r = np.exp(series.y)
+    keep = r > r0
+    grow = r[keep] - r0
+    return Series(
+        series.time[keep], np.log(grow), series.s[keep] * r[keep] / grow, series.weighted
+    )
+
+
+def free_fit(pts, data, lo, hi, search, fit_kw, bootstrap, seed):
+    """The free-exponent fit on a window's points (`pts`, of the series `data`).
+
+    With r0 as a parameter when the search kept the law with r0 for the whole
+    series; bootstrapped when `bootstrap` > 0.
+    """
+    whole = len(pts) == len(data)
+    free = search.free if whole else linear_fit(pts, LinearModel(None), lo, hi, **fit_kw)
+    if free and search.initial is not None:
+        with_r0 = search.initial if whole else fit_initial_radius(pts, free, **fit_kw)
+        free = with_r0 if with_r0 is not None else free
+    if free and bootstrap:
+        boot = {"f_scale": fit_kw["f_scale"], "n": bootstrap, "seed": seed}
+        if free.initial_radius_fitted:
+            free = bootstrap_initial_radius(pts, free, **boot)
+        else:
+            free = bootstrap_linear(pts, LinearModel(None), free, **boot)
+    return free
