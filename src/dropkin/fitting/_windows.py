@@ -261,15 +261,8 @@ def _catalogue_pairs(data: Series, shapes, lo, hi, start, direction):
     return pairs, context, context_fit, tried
 
 
-def search_crossover(
-    data: Series, shapes, lo, hi, *, loss, f_scale, initial_radius=False
-) -> CrossoverSearch:
-    """Fit the one- and two-regime models and decide whether two regimes are needed.
-
-    With `initial_radius`, the power law with a finite initial radius r0 is one
-    of the one-regime models when the AIC keeps it over the law without r0.
-    """
-    kw = {"loss": loss, "f_scale": f_scale}
+def _single_models(data, shapes, lo, hi, kw, initial_radius):
+    """The one-regime fits: n free, each law's shape, and (when asked and kept) r0 + n free."""
     free = linear_fit(data, LinearModel(None), lo, hi, **kw)
     singles = {s: linear_fit(data, LinearModel(s), lo, hi, **kw) for s in shapes}
     models = [ModelScore("power law, n free", 1, free.aic, free.n_params, free)]
@@ -279,24 +272,27 @@ def search_crossover(
     if initial is not None:
         name = "power law with a finite initial radius, n free"
         models.append(ModelScore(name, 1, initial.aic, initial.n_params, initial))
+    return free, singles, models, initial
+
+
+def search_crossover(
+    data: Series, shapes, lo, hi, *, loss, f_scale, initial_radius=False
+) -> CrossoverSearch:
+    """Fit the one- and two-regime models and decide whether two regimes are needed.
+
+    With `initial_radius`, the power law with a finite initial radius r0 is one
+    of the one-regime models when the AIC keeps it over the law without r0.
+    """
+    kw = {"loss": loss, "f_scale": f_scale}
+    free, singles, models, initial = _single_models(data, shapes, lo, hi, kw, initial_radius)
     best_single = _best(models)
+    one = {"free": free, "singles": singles, "best_single": best_single, "initial": initial}
+    none = {"best_two": None, "delta_aic": 0.0, "two_regime": False}
     if len(data) < 2 * MIN_POINTS or not free:
-        reason = "too few points for two regimes"
         return CrossoverSearch(
-            free,
-            singles,
-            tuple(models),
-            {},
-            None,
-            None,
-            -1,
-            best_single,
-            None,
-            0.0,
-            False,
-            reason,
-            initial,
-        )
+            models=tuple(models), pairs={}, context=None, context_fit=None, direction=-1,
+            reason="too few points for two regimes", **one, **none,
+        )  # fmt: skip
     direction = curvature_direction(data, free.t0)
     start = {**kw, "t0_start": free.t0, "direction": direction}
     harmonic = blend_fit(data, lo, hi, kind="blend", sharpness=1.0, **start)
@@ -317,23 +313,11 @@ def search_crossover(
     inside = [m for m in two if sides_ok(data, m.fit)]
     best_two = _best(inside)
     models += two
+    found = {"models": tuple(models), "pairs": pairs, "context": context,
+             "context_fit": context_fit, "direction": direction}  # fmt: skip
     if best_two is None:
         reason = "no two-regime model with a crossover inside the data"
-        return CrossoverSearch(
-            free,
-            singles,
-            tuple(models),
-            pairs,
-            context,
-            context_fit,
-            direction,
-            best_single,
-            None,
-            0.0,
-            False,
-            reason,
-            initial,
-        )
+        return CrossoverSearch(reason=reason, **found, **one, **none)
     delta = best_single.aic - best_two.aic
     keep = delta > AIC_THRESHOLD
     reason = (
@@ -343,17 +327,5 @@ def search_crossover(
         f"over {best_single.name}"
     )
     return CrossoverSearch(
-        free,
-        singles,
-        tuple(models),
-        pairs,
-        context,
-        context_fit,
-        direction,
-        best_single,
-        best_two,
-        delta,
-        keep,
-        reason,
-        initial,
+        best_two=best_two, delta_aic=delta, two_regime=keep, reason=reason, **found, **one
     )

@@ -329,38 +329,13 @@ def evaluate_two_regimes(
         else:
             n_fit, ci = math.nan, _NAN2
         n_sys = edge_interval(n_fit, at_levels[side][0]) if levels else _NAN2
-        fits = []
-        for c in cands:
-            shape = shapes[c.regime.key]
-            pf = None
-            if pair_key is not None:
-                key = (shape, pair_key[1]) if side == "early" else (pair_key[0], shape)
-                pf = context if key == pair_key else search.pairs.get(key)
-            prefactor, a_ci, a_sys = math.nan, _NAN2, _NAN2
-            if pf:
-                prefactor = pf.early_prefactor if side == "early" else pf.late_prefactor
-                a_ci = pf.early_prefactor_ci if side == "early" else pf.late_prefactor_ci
-            if pf and levels and key == pair_key:
-                a_sys = edge_interval(prefactor, at_levels[side][1])
-            fits.append(
-                judge(
-                    c,
-                    segment=side,
-                    shape=shape,
-                    exponent_expected=apparent_exponent(shape, taus),
-                    exponent_fit=n_fit,
-                    exponent_ci=ci,
-                    window=window,
-                    prefactor_fit=prefactor,
-                    prefactor_fit_ci=a_ci,
-                    exponent_sys_ci=n_sys,
-                    prefactor_sys_ci=a_sys,
-                    aic=pf.aic if pf else math.nan,
-                    group_rel_err=group_relative_uncertainty(c.regime, relative),
-                    fit=free,
-                    law_fit=pf,
-                )
-            )
+        side_fit = {"n_fit": n_fit, "ci": ci, "n_sys": n_sys, "taus": taus, "window": window}
+        fits = [
+            _side_candidate(
+                c, side, side_fit, free, context, pair_key, search, shapes, at_levels, relative
+            )  # fmt: skip
+            for c in cands
+        ]
         sides.append(rank(fits))
     early, late = sides[0][0].regime, sides[1][0].regime
     predicted, how = predicted_crossover(numbers, geometry, early, late)
@@ -383,3 +358,37 @@ def evaluate_two_regimes(
         "t0": t0,
         "t0_ci": tuple(context.t0_ci),
     }
+
+
+def _side_candidate(
+    c, side, side_fit, free, context, pair_key, search, shapes, at_levels, relative
+):
+    """One candidate judged on one side of the crossover (its pair's prefactor, if fitted)."""
+    shape = shapes[c.regime.key]
+    pf = key = None
+    if pair_key is not None:
+        key = (shape, pair_key[1]) if side == "early" else (pair_key[0], shape)
+        pf = context if key == pair_key else search.pairs.get(key)
+    prefactor, a_ci, a_sys = math.nan, _NAN2, _NAN2
+    if pf:
+        prefactor = pf.early_prefactor if side == "early" else pf.late_prefactor
+        a_ci = pf.early_prefactor_ci if side == "early" else pf.late_prefactor_ci
+    if pf and at_levels[side][1] and key == pair_key:
+        a_sys = edge_interval(prefactor, at_levels[side][1])
+    return judge(
+        c,
+        segment=side,
+        shape=shape,
+        exponent_expected=apparent_exponent(shape, side_fit["taus"]),
+        exponent_fit=side_fit["n_fit"],
+        exponent_ci=side_fit["ci"],
+        window=side_fit["window"],
+        prefactor_fit=prefactor,
+        prefactor_fit_ci=a_ci,
+        exponent_sys_ci=side_fit["n_sys"],
+        prefactor_sys_ci=a_sys,
+        aic=pf.aic if pf else math.nan,
+        group_rel_err=group_relative_uncertainty(c.regime, relative),
+        fit=free,
+        law_fit=pf,
+    )

@@ -26,8 +26,9 @@ from ...fitting._bootstrap import bootstrap_linear
 from ...fitting._core import Series
 from ...fitting._initial import bootstrap_initial_radius, fit_initial_radius
 from ...fitting._linear import LinearModel, linear_fit
+from ...fitting._records import LawFit
 
-__all__ = ["shifted_series", "free_fit"]
+__all__ = ["shifted_series", "free_fit", "initial_radius_fields"]
 
 
 def shifted_series(series: Series, r0: float) -> Series:
@@ -61,3 +62,15 @@ def free_fit(pts, data, lo, hi, search, fit_kw, bootstrap, seed):
         else:
             free = bootstrap_linear(pts, LinearModel(None), free, **boot)
     return free
+
+
+def initial_radius_fields(fit) -> dict:
+    """The r0 fields of a CandidateFit from its free fit (none kept: r0 = 0)."""
+    if not (isinstance(fit, LawFit) and fit.initial_radius_fitted):
+        return {}
+    lo, hi = fit.initial_radius_ci
+    return {
+        "initial_radius": float(fit.initial_radius),
+        "initial_radius_ci": (float(lo), float(hi)),
+        "initial_radius_fitted": True,
+    }

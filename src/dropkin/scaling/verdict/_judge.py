@@ -35,9 +35,9 @@ import math
 from dataclasses import dataclass, field
 
 from ...fitting._core import LawShape
-from ...fitting._records import LawFit
 from ...fitting._windows import EXPONENT_TOLERANCE
 from ..regimes._catalogue import Candidate, Regime
+from ._initial import initial_radius_fields
 from ._systematics import coefficient_systematic, combine
 
 __all__ = ["EXPONENT_TOLERANCE", "PREFACTOR_BAND", "CandidateFit", "order_one"]
@@ -356,20 +356,8 @@ def judge(
         exponent_gap=float(gap),
         exponent_gap_widths=float(widths),
         prefactor_unit=prefactor_unit(reg),
-        **_initial_radius(fit),
+        **initial_radius_fields(fit),
     )
-
-
-def _initial_radius(fit) -> dict:
-    """The r0 fields of a CandidateFit from its free fit (none kept: r0 = 0)."""
-    if not (isinstance(fit, LawFit) and fit.initial_radius_fitted):
-        return {}
-    lo, hi = fit.initial_radius_ci
-    return {
-        "initial_radius": float(fit.initial_radius),
-        "initial_radius_ci": (float(lo), float(hi)),
-        "initial_radius_fitted": True,
-    }
 
 
 def rank(fits) -> tuple[CandidateFit, ...]:

@@ -181,7 +181,7 @@ def analyze_series(
     radius_levels=None,
     initial_radius=False,
 ) -> RegimeVerdict:
-    # Over 80 lines only by its signature and numpydoc docstring; the body is 40 lines.
+    # Over 80 lines only by its signature and numpydoc docstring; the body is 67 lines.
     """Decide which scaling regime governs a radius series.
 
     Parameters
