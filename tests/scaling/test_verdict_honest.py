@@ -219,3 +219,15 @@ def test_no_initial_radius_is_kept_on_a_pure_power_law():
     v = run(t, r, err, status, bracket, initial_radius=True)
     assert not v.dominant.initial_radius_fitted
     assert "finite initial radius" not in v.sentence
+
+
+def test_a_bend_read_as_the_same_regime_twice_is_warned_about():
+    # The series with a finite initial radius (r0 = 8 µm, as above) fitted without r0:
+    # two regimes beat one, but both sides are inertial. The warning says the bend is
+    # no change of regime; the clean power law does not raise it.
+    t, r, err, status, bracket, _ = series(seed=5, shape=lambda x: 8e-6 + 1.2 * G * x**0.5)
+    bent = run(t, r, err, status, bracket)
+    assert bent.two_regime and bent.regimes == ("inertial", "inertial")
+    assert "same-regime-sides" in codes(bent)
+    t, r, err, status, bracket, _ = series(seed=6)
+    assert "same-regime-sides" not in codes(run(t, r, err, status, bracket))

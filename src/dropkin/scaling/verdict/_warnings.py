@@ -12,7 +12,10 @@ report's Warnings section. The codes:
   resolved radius;
 - ``edge-level``: an exponent moves with the edge level by more than its
   statistical interval's half-width;
-- ``undecidable``: the verdict cannot name one regime (per side).
+- ``undecidable``: the verdict cannot name one regime (per side);
+- ``same-regime-sides``: two regimes beat one, yet both sides name the same
+  regime: the bend is no change of regime the catalogue knows (a finite
+  initial radius, a drift of the measurement, a law outside the catalogue).
 
 Examples
 --------
@@ -134,4 +137,13 @@ def verdict_warnings(verdict, decisions, status, time) -> tuple[VerdictWarning, 
     if not verdict.decidable:
         why = "; ".join(d[1] for d in decisions if not d[0])
         out.append(VerdictWarning("undecidable", f"the data cannot decide the regime ({why})"))
+    if verdict.two_regime and len(set(verdict.regimes)) == 1 and len(verdict.regimes) == 2:
+        out.append(
+            VerdictWarning(
+                "same-regime-sides",
+                f"both sides of the crossover follow {verdict.regimes[0]}: the bend is no change "
+                "of regime the catalogue knows (a finite initial radius? --initial-radius tries "
+                "r = r0 + A t^n; or a drift of the measurement)",
+            )
+        )
     return tuple(out)
