@@ -82,9 +82,12 @@ class LawShape:
         if not self.logarithmic:
             return self.exponent * np.log(tau)
         u, big_r = self.capillary_speed, self.drop_radius
-        with np.errstate(over="ignore"):  # beyond the peak the law is held anyway
+        with np.errstate(over="ignore", under="ignore"):  # beyond the peak the law is held
             x = np.minimum(u * tau / big_r, math.exp(-1.0))
-        return np.log(x * big_r) + np.log(-np.log(x))
+        # uτ/R below the smallest float (τ of a few subnormal seconds) gives NaN: a
+        # point the law cannot describe, which the fits treat as non-finite.
+        with np.errstate(divide="ignore", invalid="ignore"):
+            return np.log(x * big_r) + np.log(-np.log(x))
 
     def slope(self, tau):
         """Local exponent ``df/d ln τ``: n, or ``1 + 1/ln(uτ/R)`` (0 beyond the peak)."""
