@@ -212,14 +212,17 @@ def resolve_origin(t0, t0_bracket) -> tuple[float, float]:
         if not (isinstance(t0, int | float) and math.isfinite(t0)):
             raise FitError("must be a finite time in s", key="t0", value=t0)
         return float(t0), float(t0)
+    return check_bracket(t0_bracket, key="t0_bracket")
+
+
+def check_bracket(bracket, *, key) -> tuple[float, float]:
+    """Two finite times (lo, hi) with lo ≤ hi, or a FitError naming `key`."""
     try:
-        lo, hi = (float(v) for v in t0_bracket)
+        lo, hi = (float(v) for v in bracket)
     except (TypeError, ValueError):
-        raise FitError(
-            "must be two times (lo, hi) in s", key="t0_bracket", value=t0_bracket
-        ) from None
+        raise FitError("must be two times (lo, hi) in s", key=key, value=bracket) from None
     if not (math.isfinite(lo) and math.isfinite(hi) and lo <= hi):
-        raise FitError("must be finite with lo <= hi", key="t0_bracket", value=(lo, hi))
+        raise FitError("must be finite with lo <= hi", key=key, value=(lo, hi))
     return lo, hi
 
 

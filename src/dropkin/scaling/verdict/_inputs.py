@@ -16,7 +16,7 @@ import numpy as np
 
 from ...contact._bracket import default_bracket
 from ...errors import FitError
-from ...fitting._core import as_array
+from ...fitting._core import as_array, check_bracket
 from ..regimes._catalogue import SCALING_GEOMETRIES
 from ..regimes._numbers import SampleNumbers
 
@@ -38,15 +38,7 @@ def t0_bracket(time, status, contact_time, contact_bracket, t0):
     if t0 is not None:
         return t0, t0
     if contact_bracket is not None:
-        try:
-            lo, hi = (float(v) for v in contact_bracket)
-        except (TypeError, ValueError):
-            raise FitError(
-                "must be two times (lo, hi) in s", key="contact_bracket", value=contact_bracket
-            ) from None
-        if not (math.isfinite(lo) and math.isfinite(hi) and lo <= hi):
-            raise FitError("must be finite with lo <= hi", key="contact_bracket", value=(lo, hi))
-        return lo, hi
+        return check_bracket(contact_bracket, key="contact_bracket")
     return default_bracket(time, status, contact_time)
 
 
