@@ -216,12 +216,17 @@ def _unresolved_criterion(prep, options) -> str:
 
 
 def _details(recording, experiment, prep, options, contact, pixel: float) -> dict:
-    """The measurement's details, as written in ``measure.json``."""
+    """The measurement's details, as written in ``measure.json``.
+
+    The contact's time and error are fields of the series; its bracket and
+    method come from the estimate's own file form (:meth:`ContactEstimate.to_dict`).
+    """
+    own = contact.to_dict()
     return {
         "drop_radii_m": [float(r) * pixel for r in _drop_radii_px(prep)],
         "drop_radius_origin": "experiment file" if experiment.drops.radius else "circle fit",
-        "contact_bracket_s": None if contact.bracket is None else list(contact.bracket),
-        "contact_method": contact.method,
+        "contact_bracket_s": own["contact_bracket_s"],
+        "contact_method": own["contact_method"],
         "edge_level": options.level,
         "edge_levels": sorted([options.level, *options.other_levels]),
         "noise_transmission": prep.noise,
