@@ -15,11 +15,14 @@ of the frame bracket and ``contact_bracket`` = (last before-contact frame, first
 in-contact frame); then ``t0`` fixed at the truth, the "(t0)" columns. Printed
 per case: verdict right (dominant regime; crossover: regimes == (early, late)
 and two regimes), coverage of the exponent's and coefficient's 95 % intervals
-(the candidate of the true regime; a log law's true exponent is the weighted
-polyfit of ln r on ln τ of the exact law over the fitted window), the share
-with the estimate at an interval end, median widths. A missing interval
-(failed fit, no such candidate, none reported) counts as not covering, and in
-``noCI``.
+(the candidate of the true regime; a log law's true exponent is the apparent
+exponent of the exact law over the fitted window, with t0 free in the frame
+bracket for the free fit and fixed at the truth for "(t0)": coverage_limits.py),
+the share with the estimate at an interval end, median widths, their ratio,
+and "limit": the Cramér–Rao ratio the frame bracket allows (coverage_limits.py;
+a ratio goal below it needs knowledge of t0 finer than a frame). A missing
+interval (failed fit, no such candidate, none reported) counts as not
+covering, and in ``noCI``. The laws are in published_laws.py.
 
     python benchmarks/coverage.py [--series 40] [--bootstrap 200] [--jobs 2] [--seed 0]
       [--csv rows.csv] [--case inertial|ilv|els|viscous-outer|inertial-spreading|tanner|crossover]
@@ -30,6 +33,7 @@ from __future__ import annotations
 import argparse
 import csv
 import math
+import os
 import sys
 import time
 from concurrent.futures import ProcessPoolExecutor, as_completed
@@ -38,59 +42,23 @@ from functools import partial
 
 import numpy as np
 
+sys.path.insert(0, os.path.dirname(os.path.abspath(__file__)))  # coverage_limits.py beside it
+
+from coverage_limits import apparent_exponent, information_ratio
 from dropkin.scaling import analyze_series, sample_numbers  # the fit only, never the data
+from published_laws import (
+    crossover_ilv_inertial,
+    els_log_law,
+    inertial_coalescence,
+    inertial_spreading,
+    linear_viscous,
+    outer_viscous,
+    tanner,
+)
 
 BLUR_PX = 1.3  # edge blur of the measurement (README.md, `dropkin measure`)
 GAP_BLURS = 3.0  # a neck is resolved once the gap r²/R spans three blurs
 SPREAD_PX = 3.0  # a contact radius below this many pixels is unresolved
-
-# -- the published laws (SI; τ = t − t0 ≥ 0) ------------------------------------------
-
-
-def inertial_coalescence(tau, *, gamma, rho, R, D0):
-    """r = D0 (γR/ρ)^¼ τ^½: Phys. Rev. Lett. 95, 164503 (2005); J. Fluid Mech. 527, 85 (2005)."""
-    return D0 * (gamma * R / rho) ** 0.25 * np.sqrt(tau)
-
-
-def linear_viscous(tau, *, gamma, eta, C):
-    """r = C (γ/η) τ, inertially limited viscous: PNAS 109, 6857 (2012)."""
-    return C * (gamma / eta) * np.asarray(tau, dtype=float)
-
-
-def els_log_law(tau, *, gamma, eta, R, C):
-    """r = −C (γτ/η) ln(γτ/(ηR)), C = 1/π: J. Fluid Mech. 401, 293 (1999)."""
-    x = gamma * np.asarray(tau, dtype=float) / (eta * R)
-    with np.errstate(divide="ignore", invalid="ignore"):
-        return np.where(x > 0, -C * R * x * np.log(np.where(x > 0, x, 1.0)), 0.0)
-
-
-def outer_viscous(tau, *, gamma, eta_out, R, C1):
-    """r = C1 (γRτ/η_o)^½, C1 = 1.2: Nat. Commun. 5, 3182 (2014), Fig. 2."""
-    return C1 * np.sqrt(gamma * R * np.asarray(tau, dtype=float) / eta_out)
-
-
-def inertial_spreading(tau, *, gamma, rho, R, C):
-    """a = C (γR/ρ)^¼ τ^½: Phys. Rev. E 69, 016301 (2004)."""
-    return C * (gamma * R / rho) ** 0.25 * np.sqrt(tau)
-
-
-def tanner(tau, *, gamma, eta, R, C):
-    """a = C (γV³/η)^(1/10) τ^(1/10), V = 4πR³/3: J. Phys. D 12, 1473 (1979)."""
-    volume = 4.0 * math.pi * R**3 / 3.0
-    return C * (gamma * volume**3 / eta) ** 0.1 * np.asarray(tau, dtype=float) ** 0.1
-
-
-def harmonic_blend(r1, r2):
-    """1/r = 1/r1 + 1/r2: Phys. Rev. Lett. 106, 114501 (2011) (docs/physics.md §3)."""
-    total = np.asarray(r1, dtype=float) + r2
-    return np.where(total > 0, r1 * r2 / np.where(total > 0, total, 1.0), 0.0)
-
-
-def crossover_ilv_inertial(tau, *, gamma, eta, rho, R, C, D0):
-    """ILV (PNAS 109, 6857, 2012) into inertial (PRL 95, 164503, 2005), harmonic blend."""
-    early = linear_viscous(tau, gamma=gamma, eta=eta, C=C)
-    return harmonic_blend(early, inertial_coalescence(tau, gamma=gamma, rho=rho, R=R, D0=D0))
-
 
 # -- the cases ------------------------------------------------------------------------
 
@@ -226,13 +194,21 @@ def bank(case: Case, count: int, seed: int) -> list[SyntheticSeries]:
     return [generate(case, series_rng(seed, index, i)) for i in range(count)]
 
 
-def true_exponent(case: Case, side: Side, times, t0_true, sigma) -> float:
-    """n, or for a log law the weighted polyfit of ln r on ln τ of the exact law at `times`."""
-    if not side.logarithmic:
-        return side.n
-    tau = np.asarray(times, dtype=float) - t0_true
-    r = case.radius(tau)
-    return float(np.polyfit(np.log(tau), np.log(r), 1, w=r / sigma)[0])
+def true_exponent(case: Case, side: Side, times, t0_true, bracket) -> float:
+    """n; for a log law the apparent exponent (coverage_limits.py), t0 free in `bracket`."""
+    return apparent_exponent(case.radius, times, t0_true, bracket) if side.logarithmic else side.n
+
+
+def limits(case: Case, s: SyntheticSeries, j: int) -> dict:
+    """Cramér–Rao width ratios (coverage_limits.py) of side j's exponent and coefficient."""
+    if any(side.logarithmic for side in case.sides):
+        return {"n_limit": math.nan, "C_limit": math.nan}
+    theta = [v for side in case.sides for v in (math.log(side.C * side.group), side.n)]
+    tau = s.time[np.array(s.status) == "ok"] - s.t0
+    args = (theta, tau, s.sigma, s.bracket[1] - s.bracket[0])
+    fixed_n = [i % 2 == 0 for i in range(len(theta))]
+    return {"n_limit": information_ratio(*args, index=2 * j + 1),
+            "C_limit": information_ratio(*args, index=2 * j, free=fixed_n)}  # fmt: skip
 
 
 # -- fitting through the public API, and the rows --------------------------------------
@@ -267,7 +243,8 @@ def _evaluate(case, series, verdict, side, segment, tag):
         tau_fit, (w0, w1) = times - verdict.t0, cand.window
         inside = (tau_fit >= w0 * (1 - 1e-9)) & (tau_fit <= w1 * (1 + 1e-9))
         times = times[inside] if inside.sum() >= 2 else times
-    n_true = true_exponent(case, side, times, series.t0, series.sigma)
+    bracket = series.bracket if tag == "free" else None
+    n_true = true_exponent(case, side, times, series.t0, bracket)
     n = (cand.exponent_fit, *cand.exponent_ci) if cand else (nan, nan, nan)
     a = (cand.prefactor_fit, *cand.prefactor_fit_ci) if cand else (nan, nan, nan)
     c = tuple(v / side.group for v in a)
@@ -310,6 +287,7 @@ def run_one(case_name: str, index: int, seed: int, bootstrap: int) -> list[dict]
                "verdict_right": _verdict_right(case, free), "seconds": seconds}  # fmt: skip
         row.update(_evaluate(case, s, free, side, segment, "free"))
         row.update(_evaluate(case, s, known, side, segment, "t0"))
+        row.update(limits(case, s, j))
         rows.append(row)
     return rows
 
@@ -342,18 +320,19 @@ def summarise(rows) -> list[dict]:
             e.update({f"{q}_{col}": stat(sub, key.format(q)) for col, key, stat in _STATS})
             e[f"{q}_noci"] = sum(not r[f"free_{q}_ci"] for r in sub)
             e[f"{q}_ratio"] = e[f"{q}_width"] / e[f"{q}_width_t0"]
+            e[f"{q}_limit"] = _median(sub, f"{q}_limit")
         out.append(e)
     return out
 
 
-_ROW = "{:34s} {:>3} {:>7} | {:>5} {:>5} {:>4} {:>5} {:>8} {:>8} {:>5}"
+_ROW = "{:34s} {:>3} {:>7} | {:>5} {:>5} {:>4} {:>5} {:>8} {:>8} {:>5} {:>5}"
 
 
 def format_table(summary) -> str:
     """Two lines per case and side: the exponent, then the coefficient (relative widths)."""
     head = ("case / side", "N", "verdict", "cover", "(t0)", "noCI", "end", "width", "(t0)")
-    lines = [_ROW.format(*head, "ratio"), _ROW.format("goals", "", "≥0.95", "≥0.93", "", "",
-                                                      "≤0.05", "", "", "≤1.5")]  # fmt: skip
+    lines = [_ROW.format(*head, "ratio", "limit"), _ROW.format(
+        "goals", "", "≥0.95", "≥0.93", "", "", "≤0.05", "", "", "≤1.5", "")]  # fmt: skip
     for e in summary:
         for q in ("n", "C"):
             first = q == "n"
@@ -362,7 +341,7 @@ def format_table(summary) -> str:
                 e["N"] if first else "", f"{e['verdict']:.2f}" if first else "",
                 *(f"{e[q + k]:.2f}" for k in ("_cover", "_cover_t0")), e[q + "_noci"],
                 f"{e[q + '_end']:.2f}", *(f"{e[q + k]:.3g}" for k in ("_width", "_width_t0")),
-                f"{e[q + '_ratio']:.2f}"))  # fmt: skip
+                f"{e[q + '_ratio']:.2f}", f"{e[q + '_limit']:.2f}"))  # fmt: skip
     return "\n".join(lines)
 
 
