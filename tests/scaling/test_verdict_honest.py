@@ -202,6 +202,9 @@ def test_a_finite_initial_radius_is_kept_when_asked_and_shown():
     lo, hi = top.initial_radius_ci
     assert lo <= r0 <= hi
     assert top.exponent_combined_ci[0] <= 0.5 <= top.exponent_combined_ci[1]
+    # The fixed-exponent prefactor is fitted on r - r0: its interval carries r0's own
+    # uncertainty, so it holds the generating A = 1.2 G (at r0 fixed it did not).
+    assert top.prefactor_fit_ci[0] <= 1.2 * G <= top.prefactor_fit_ci[1]
     assert plain.dominant.exponent_fit < top.exponent_fit  # r0 left out bends n down
     assert "finite initial radius r0 =" in with_r0.sentence
     assert "finite initial radius" not in plain.sentence

@@ -35,7 +35,7 @@ from ...fitting._local import local_from_series
 from ...fitting._two_laws import blend_fit
 from ...fitting._windows import consistent_window, points_in
 from ..regimes._crossovers import crossovers, power_law_crossing
-from ._initial import free_fit, shifted_series
+from ._initial import free_fit, shifted_series, widened_for_initial_radius
 from ._judge import EXPONENT_TOLERANCE, judge, rank
 from ._materials import group_relative_uncertainty
 from ._systematics import edge_interval, level_estimates
@@ -148,6 +148,9 @@ def _shape_evidence(
         fixed = bootstrap_linear(
             on, LinearModel(shape), fixed, f_scale=f_scale, n=bootstrap, seed=seed
         )
+    if fixed and view is not data:
+        r0_ci = search.initial.initial_radius_ci
+        fixed = widened_for_initial_radius(fixed, data, on.time, shape, r0_ci, lo, hi, fit_kw)
     expected = _expected_exponent(shape, on, free.t0 if free else t0, f_scale)
     n_sys = a_sys = _NAN2
     if levels:

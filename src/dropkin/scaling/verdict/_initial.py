@@ -7,6 +7,8 @@ criterion keeps it, the candidates are judged on the series with r0 taken
 away (their windows, local exponent and fixed-exponent prefactors), and each
 candidate's free-exponent fit keeps r0 as a parameter, so that n's interval
 carries r0's uncertainty (its bootstrap refits r0 and t0 in every resample).
+The fixed-exponent prefactor is fitted on ``r - r0`` at the fitted r0; its
+interval gets r0's uncertainty added (:func:`widened_for_initial_radius`).
 
 Examples
 --------
@@ -20,6 +22,9 @@ Examples
 
 from __future__ import annotations
 
+import dataclasses
+import math
+
 import numpy as np
 
 from ...fitting._bootstrap import bootstrap_linear
@@ -28,7 +33,7 @@ from ...fitting._initial import bootstrap_initial_radius, fit_initial_radius
 from ...fitting._linear import LinearModel, linear_fit
 from ...fitting._records import LawFit
 
-__all__ = ["shifted_series", "free_fit", "initial_radius_fields"]
+__all__ = ["shifted_series", "free_fit", "initial_radius_fields", "widened_for_initial_radius"]
 
 
 def shifted_series(series: Series, r0: float) -> Series:
@@ -74,3 +79,28 @@ def initial_radius_fields(fit) -> dict:
         "initial_radius_ci": (float(lo), float(hi)),
         "initial_radius_fitted": True,
     }
+
+
+def widened_for_initial_radius(fixed, data, times, shape, r0_ci, lo, hi, fit_kw):
+    """A law fit on ``r - r0`` with r0's uncertainty added to its prefactor interval.
+
+    The prefactor is refitted on ``r - r0`` at both ends of r0's interval; on each
+    side the larger move is added in quadrature to the statistical half-width
+    (first-order propagation of r0 as an independent nuisance parameter).
+    `times` are the instants of the window the law was fitted on.
+    """
+    moves = []
+    for r0 in r0_ci:
+        if not math.isfinite(r0):
+            continue
+        view = shifted_series(data, r0)
+        pts = view.subset(np.isin(view.time, times))
+        fit = linear_fit(pts, LinearModel(shape), lo, hi, **fit_kw) if len(pts.time) >= 3 else None
+        if fit:
+            moves.append(fit.prefactor - fixed.prefactor)
+    if not moves:
+        return fixed
+    a, (a_lo, a_hi) = fixed.prefactor, fixed.prefactor_ci
+    down, up = max([-m for m in moves] + [0.0]), max(moves + [0.0])
+    ci = (a - math.hypot(a - a_lo, down), a + math.hypot(a_hi - a, up))
+    return dataclasses.replace(fixed, prefactor_ci=ci)
