@@ -15,6 +15,20 @@ from dropkin.cli import main
 SAMPLES = Path(__file__).resolve().parents[1] / "sample_frames"
 
 
+_ANALYZED = {}
+
+
+def _analyzed(tmp_path_factory, source):
+    """`dropkin analyze SOURCE --bootstrap 50` once per sample: (result, output folder)."""
+    if source not in _ANALYZED:
+        out = tmp_path_factory.mktemp("analyzed") / "out"
+        result = CliRunner().invoke(
+            main, ["analyze", str(SAMPLES / source), "-o", str(out), "--bootstrap", "50"]
+        )
+        _ANALYZED[source] = (result, out)
+    return _ANALYZED[source]
+
+
 @pytest.mark.parametrize(
     ("source", "truth", "regime"),
     [
@@ -23,13 +37,10 @@ SAMPLES = Path(__file__).resolve().parents[1] / "sample_frames"
         ("spreading_drop", "spreading_drop/truth.json", "inertial-spreading"),
     ],
 )
-def test_analyze_names_the_law_the_sample_was_made_with(tmp_path, source, truth, regime):
+def test_analyze_names_the_law_the_sample_was_made_with(tmp_path_factory, source, truth, regime):
     law = json.loads((SAMPLES / truth).read_text())["law"]
     assert law["name"] == regime  # the sample's own truth
-    out = tmp_path / "out"
-    result = CliRunner().invoke(
-        main, ["analyze", str(SAMPLES / source), "-o", str(out), "--bootstrap", "50"]
-    )
+    result, out = _analyzed(tmp_path_factory, source)
     assert result.exit_code == 0, result.output
     fit = json.loads((out / "fit.json").read_text())
     assert fit["dominant"]["regime"] == regime
@@ -51,6 +62,41 @@ def test_analyze_names_the_law_the_sample_was_made_with(tmp_path, source, truth,
     # Every window counts from the contact instant (starts after 0).
     assert fit["dominant"]["window_s"][0] > 0
     assert (out / "radius.csv").exists() and (out / "measure.json").exists()
+
+
+_RESOLUTION_BIAS = pytest.mark.xfail(
+    strict=True,
+    reason="known defect: the first resolved neck radii are 0.56 px too large at a gap of 3 "
+    "edge blurs, decaying to 0 px over the series; the fit takes the smooth bias for n = 1.009 "
+    "and the combined interval [1.005, 1.010] misses 1 (measurement accuracy, issue 15)",
+)
+
+
+@pytest.mark.parametrize(
+    ("source", "regime", "exponent"),
+    [
+        # The published exponents of the laws the samples were made with (truth.json):
+        # inertial coalescence 1/2, Phys. Rev. Lett. 95, 164503 (2005); inertially limited
+        # viscous 1, PNAS 109, 6857 (2012); inertial spreading 1/2, Phys. Rev. E 69, 016301.
+        ("fast_pair.tif", "inertial", 0.5),
+        pytest.param("viscous_pair", "inertially-limited-viscous", 1.0, marks=_RESOLUTION_BIAS),
+        ("spreading_drop", "inertial-spreading", 0.5),
+    ],
+)
+def test_the_combined_interval_holds_the_samples_exponent_and_the_sentence_agrees(
+    tmp_path_factory, source, regime, exponent
+):
+    # Issue 13, "checked by": the combined exponent interval contains the exponent of the
+    # law the sample was rendered from, and the sentence says "agrees" exactly when the
+    # candidate's combined interval holds the law's exponent.
+    result, out = _analyzed(tmp_path_factory, source)
+    assert result.exit_code == 0, result.output
+    fit = json.loads((out / "fit.json").read_text())
+    top = next(c for c in fit["candidates"] if c["regime"] == regime)
+    lo, hi = top["exponent_combined_ci"]
+    assert top["exponent_inside"] is (lo <= top["exponent_theory"] <= hi)
+    assert ("agrees with" in fit["sentence"]) is top["exponent_inside"]
+    assert lo <= exponent <= hi
 
 
 def test_fit_refuses_a_series_too_short_with_one_line(tmp_path):
