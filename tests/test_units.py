@@ -1,6 +1,8 @@
 """Parsing of quantities people type (the units edge)."""
 
 import math
+import subprocess
+import sys
 
 import click
 import pytest
@@ -73,3 +75,68 @@ def test_click_type_turns_errors_into_usage_errors():
     assert bad.exit_code == 2
     assert "--pixel-size" in bad.output and "dimension" in bad.output
     assert "Traceback" not in bad.output
+
+
+@pytest.mark.parametrize(
+    ("text", "expected"),
+    [
+        # A calibration as labs write it (common practice): length per image pixel, or
+        # image pixels per length; 50 px/mm is 1/50 mm = 20 µm by arithmetic.
+        ("20 µm/px", 20e-6),
+        ("20 um / pixel", 20e-6),
+        ("2.5 µm/pixels", 2.5e-6),
+        ("50 px/mm", 20e-6),
+    ],
+)
+def test_a_pixel_size_is_read_from_a_calibration(text, expected):
+    assert parse_si(text, "m", key="recording.pixel_size") == pytest.approx(expected, rel=1e-12)
+
+
+@pytest.mark.parametrize("text", ["20 px", "20 pixel", "20 µm/px/px", "20 px*mm"])
+def test_an_image_pixel_is_never_taken_for_a_length(text):
+    # pint's "px" is the screen pixel, 1/96 inch (CSS Values and Units, W3C): "20 px"
+    # would be 5.29 mm. An image pixel has no physical size of its own.
+    with pytest.raises(QuantityError, match=r"recording\.pixel_size.*image pixel.*µm/px") as err:
+        parse_si(text, "m", key="recording.pixel_size")
+    assert "printing_unit" not in str(err.value) and "css" not in str(err.value)
+
+
+def test_a_pixel_is_refused_where_no_length_is_asked():
+    with pytest.raises(QuantityError, match="image pixel"):
+        parse_si("20 px/s", "Hz", key="recording.frame_rate")
+
+
+@pytest.mark.parametrize(
+    ("text", "unit", "words"),
+    [
+        # C is the coulomb and F the farad (BIPM SI Brochure, 9th ed., Table 4); the
+        # degree Celsius is degC. cSt is a kinematic viscosity (mm²/s).
+        ("20 C", "K", r"electric charge.*temperature.*degC"),
+        ("68 F", "K", r"capacitance.*temperature.*degF"),
+        ("100 cSt", "Pa*s", r"kinematic viscosity.*dynamic viscosity.*density"),
+        ("72 m/s", "N/m", r"speed.*surface tension"),
+    ],
+)
+def test_a_wrong_dimension_is_named_in_words_with_a_hint(text, unit, words):
+    with pytest.raises(QuantityError, match=words) as err:
+        parse_si(text, unit, key="k")
+    assert "[" not in str(err.value).split("(expected")[0]  # no pint jargon like [current]
+
+
+@pytest.mark.parametrize("text", ["1e308 Hz", "1e-300 Hz", "1e308 m"])
+def test_values_far_beyond_any_laboratory_are_refused(text):
+    unit = text.split()[-1]
+    with pytest.raises(QuantityError, match="outside what dropkin accepts"):
+        parse_si(text, unit, key="k")
+
+
+def test_a_power_tower_is_refused_at_once_not_computed():
+    # "10**10**10" would make pint build a 10-billion-digit integer (issue 17: the
+    # process hung at full CPU). Run in a child process so that a hang fails the test.
+    code = (
+        "from dropkin.units import parse_si\n"
+        "try:\n    parse_si('10**10**10 Hz', 'Hz', key='--frame-rate')\n"
+        "except Exception as exc:\n    print(type(exc).__name__, exc)\n"
+    )
+    done = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True, timeout=60)
+    assert done.stdout.startswith("QuantityError") and "e-notation" in done.stdout

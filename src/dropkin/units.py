@@ -14,12 +14,17 @@ Examples
 0.002
 >>> parse_si("21 degC", "K")
 294.15
+>>> round(parse_si("20 µm/px", "m", key="recording.pixel_size"), 12)  # as labs write it
+2e-05
+>>> round(parse_si("50 px/mm", "m"), 12)  # the same, given as pixels per length
+2e-05
 """
 
 from __future__ import annotations
 
 import functools
 import math
+import re
 from numbers import Real
 
 import click
@@ -102,68 +107,162 @@ def parse_quantity(text, unit: str, *, key: str | None = None, path=None):
     """
     ureg = registry()
     expected = f"a value with a unit of {unit}, e.g. '1 {unit}'"
-    quantity = _as_quantity(text, ureg, key=key, path=path, expected=expected)
+    where = {"key": key, "path": path, "expected": expected}
+    shown = text if isinstance(text, str) else str(text)
+    quantity = _as_quantity(text, ureg, unit=unit, **where)
     target = ureg.Unit(unit)
     if quantity.dimensionality != target.dimensionality:
-        raise QuantityError(
-            f"has the dimension {quantity.dimensionality}, not that of {unit}",
-            key=_where(key),
-            value=text if isinstance(text, str) else str(text),
-            expected=expected,
-            path=path,
-        )
+        raise _refuse(_mismatch(quantity, target, unit), shown, **where)
     magnitude = quantity.to(target).magnitude
     if not math.isfinite(magnitude):
-        raise QuantityError(
-            "is not a finite number",
-            key=_where(key),
-            value=str(text),
-            expected=expected,
-            path=path,
-        )
+        raise _refuse("is not a finite number", shown, **where)
+    _check_range(magnitude, unit, shown, where)
     return quantity
 
 
-def _as_quantity(text, ureg, *, key, path, expected):
-    """`text` as a pint Quantity with a unit; a QuantityError for a bare number or bad text."""
+#: A number as people type it: decimal, with an optional exponent ("1.5e4").
+_NUMBER = re.compile(
+    r"\s*([-+]?(?:\d+(?:\.\d*)?|\.\d+)(?:[eE][-+]?\d+)?|[-+]?(?:nan|inf(?:inity)?)\b)\s*(.*?)\s*$",
+    re.S | re.I,
+)
+#: An image pixel: a count of the camera's pixels, never pint's screen pixel (1/96 inch).
+_PIXEL = r"(?:px|pixels?)"
+_PER_PIXEL = re.compile(rf"^(.+?)\s*/\s*{_PIXEL}$")
+_PIXELS_PER = re.compile(rf"^{_PIXEL}\s*/\s*(.+)$")
+#: A power of a power ("10**10**10"): pint would compute the integer, for ever.
+_STACKED_POWERS = re.compile(r"(\*\*|\^)[\s(+-]*[\d.]+[\s)]*(\*\*|\^)")
+_BAD_EXPONENT = re.compile(r"(\*\*|\^)\s*[-+(]?\s*\d{3,}")
+
+
+def _refuse(reason, text, *, key, path, expected):
+    return QuantityError(reason, key=_where(key), value=text, expected=expected, path=path)
+
+
+def _as_quantity(text, ureg, *, key, path, expected, unit="m"):
+    """`text` as a pint Quantity with a unit; a QuantityError for a bare number or bad text.
+
+    The number is read by Python (decimal or e-notation) and only the unit by
+    pint. "px" and "pixel" are image pixels: a length per pixel ("20 µm/px")
+    or pixels per length ("50 px/mm") gives a pixel size where `unit` is a
+    length, and is refused elsewhere.
+    """
+    where = {"key": key, "path": path, "expected": expected}
     if isinstance(text, ureg.Quantity):
         return text
     if isinstance(text, bool) or isinstance(text, Real):
-        raise QuantityError(
-            "a bare number has no unit",
-            key=_where(key),
-            value=text,
-            expected=expected,
-            path=path,
-        )
+        raise _refuse("a bare number has no unit", text, **where)
     if not isinstance(text, str):
-        raise QuantityError(
-            f"must be a text with a unit, not {type(text).__name__}",
-            key=_where(key),
-            value=text,
-            expected=expected,
-            path=path,
+        raise _refuse(f"must be a text with a unit, not {type(text).__name__}", text, **where)
+    match = _NUMBER.match(text)
+    if match is None:
+        raise _refuse("cannot be read as a quantity (it must start with a number)", text, **where)
+    number, unit_text = float(match.group(1)), match.group(2)
+    if not math.isfinite(number):
+        raise _refuse("is not a finite number", text, **where)
+    if not unit_text:
+        raise _refuse("a bare number has no unit", text, **where)
+    if _STACKED_POWERS.search(text) or _BAD_EXPONENT.search(unit_text) or unit_text[0] in "*^":
+        raise _refuse(
+            "cannot be read as a quantity (write the number in decimal or e-notation, "
+            "e.g. '2e4', and the unit after it)",
+            text,
+            **where,
         )
+    number, unit_text = _pixels(number, unit_text, text, unit, where)
+    return number * _unit(ureg, unit_text, text, where)
+
+
+def _pixels(number, unit_text, text, unit, where):
+    """(number, unit text) with an image pixel in a calibration turned into a length."""
+    if not re.search(rf"\b{_PIXEL}\b", unit_text):
+        return number, unit_text
+    per = _PER_PIXEL.match(unit_text)
+    inverse = _PIXELS_PER.match(unit_text)
+    usable = (
+        unit == "m"
+        and (per or inverse)
+        and not re.search(rf"\b{_PIXEL}\b", (per or inverse).group(1))
+    )
+    if not usable:
+        raise _refuse(
+            "px is an image pixel, not a physical unit: give the size of one pixel, "
+            "e.g. '20 µm', '20 µm/px' or '50 px/mm'",
+            text,
+            **where,
+        )
+    if per:
+        return number, per.group(1)
+    if number == 0:
+        raise _refuse("is zero pixels per length: no pixel size follows", text, **where)
+    return 1.0 / number, inverse.group(1)
+
+
+def _unit(ureg, unit_text, text, where):
     try:
-        quantity = ureg.Quantity(text.strip())
+        unit = ureg.Unit(unit_text)
     except Exception as exc:  # pint raises many kinds (tokenize, undefined unit, ...)
         reason = str(exc).splitlines()[0] if str(exc) else type(exc).__name__
-        raise QuantityError(
-            f"cannot be read as a quantity ({reason})",
-            key=_where(key),
-            value=text,
-            expected=expected,
-            path=path,
-        ) from None
-    if not isinstance(quantity, ureg.Quantity) or quantity.dimensionless:
-        raise QuantityError(
-            "a bare number has no unit",
-            key=_where(key),
-            value=text,
-            expected=expected,
-            path=path,
+        raise _refuse(f"cannot be read as a quantity ({reason})", text, **where) from None
+    if unit.dimensionless:
+        raise _refuse("a bare number has no unit", text, **where)
+    return unit
+
+
+#: Plain words for the dimensions people confuse, and hints for the usual slips.
+_DIMENSION_WORDS = {
+    "[length]": "a length",
+    "[time]": "a time",
+    "1 / [time]": "a rate",
+    "[temperature]": "a temperature",
+    "[current] * [time]": "an electric charge",
+    "[mass]": "a mass",
+    "[mass] / [time] ** 2": "a surface tension (force per length)",
+    "[mass] / [length] / [time]": "a dynamic viscosity",
+    "[length] ** 2 / [time]": "a kinematic viscosity",
+    "[mass] / [length] ** 3": "a density",
+    "[length] / [time]": "a speed",
+    "[current] ** 2 * [time] ** 4 / [mass] / [length] ** 2": "a capacitance",
+}
+_HINTS = {
+    ("an electric charge", "a temperature"): " (C is the coulomb: write degC for Celsius)",
+    ("a capacitance", "a temperature"): " (F is the farad: write degF for Fahrenheit)",
+    ("a kinematic viscosity", "a dynamic viscosity"): (
+        " (cSt and St are kinematic: multiply by the density, or give mPa s)"
+    ),
+}
+
+
+def _dimension_text(dimensionality) -> str:
+    text = str(dimensionality)
+    return _DIMENSION_WORDS.get(text, f"the dimension {text}")
+
+
+def _mismatch(quantity, target, unit) -> str:
+    got, want = _dimension_text(quantity.dimensionality), _dimension_text(target.dimensionality)
+    return f"has the dimension of {got}, not of {want} like {unit}{_HINTS.get((got, want), '')}"
+
+
+#: The values dropkin accepts, in SI, per unit: far beyond any laboratory's, close
+#: enough that arithmetic on them cannot overflow.
+PLAUSIBLE = {
+    "Hz": (1e-6, 1e12),
+    "m": (1e-12, 1e3),
+    "s": (0.0, 1e7),
+    "K": (1.0, 1e4),
+    "N/m": (1e-7, 1e2),
+    "Pa*s": (1e-9, 1e9),
+    "kg/m^3": (1e-4, 1e5),
+}
+
+
+def _check_range(magnitude, unit, text, where):
+    low, high = PLAUSIBLE.get(unit, (0.0, math.inf))
+    if magnitude != 0 and not low <= abs(magnitude) <= high:
+        raise _refuse(
+            f"is outside what dropkin accepts for a value in {unit} ({low:g} to {high:g})",
+            text,
+            **where,
         )
-    return quantity
 
 
 def parse_si(text, unit: str, *, key: str | None = None, path=None) -> float:
