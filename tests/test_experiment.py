@@ -192,3 +192,34 @@ def test_overrides_take_precedence_and_are_validated(tmp_path):
         exp.with_overrides({"recording.frame_rate": -1.0})
     with pytest.raises(ExperimentError, match=r"recording\.speed.*unknown"):
         exp.with_overrides({"recording.speed": 1.0})
+
+
+@pytest.mark.parametrize(
+    ("name", "command"),
+    [
+        ("experiment.toml", ["info", "{dir}", "--frame-rate", "1 kHz"]),
+        ("liquids.toml", ["liquids", "--liquids", "{file}"]),
+        ("campaign.toml", ["batch", "{file}", "-o", "{dir}/out"]),
+    ],
+)
+def test_deeply_nested_toml_is_one_line_naming_the_file(tmp_path, name, command):
+    # Issue 17, finding 10: Python's TOML parser recurses once per nesting level; 5000
+    # levels of arrays exhaust its stack (RecursionError). Every file dropkin reads
+    # gives one line naming the file instead, exit 1 (a bad input file).
+    import subprocess
+    import sys
+
+    from PIL import Image
+
+    Image.new("L", (8, 8), 200).save(tmp_path / "frame_0000.png")
+    Image.new("L", (8, 8), 200).save(tmp_path / "frame_0001.png")
+    path = tmp_path / name
+    path.write_text("x = " + "[" * 5000 + "]" * 5000 + "\n", encoding="utf-8")
+    args = [a.format(dir=tmp_path, file=path) for a in command]
+    done = subprocess.run(
+        [sys.executable, "-m", "dropkin", *args], capture_output=True, text=True, timeout=120
+    )
+    assert "Traceback" not in done.stderr and "RecursionError" not in done.stderr
+    lines = done.stderr.strip().splitlines()
+    assert done.returncode == 1, done.stderr
+    assert len(lines) == 1 and name in lines[0] and "nested too deeply" in lines[0]

@@ -29,7 +29,6 @@ from __future__ import annotations
 
 import dataclasses
 import json
-import tomllib
 from dataclasses import dataclass, field
 from numbers import Real
 from pathlib import Path
@@ -46,6 +45,7 @@ from ._experiment_schema import (
     convert,
     known,
 )
+from ._toml import load_toml
 from .errors import ExperimentError
 
 __all__ = [
@@ -205,11 +205,7 @@ def experiment_from_toml(text: str, *, path=None) -> Experiment:
         For malformed TOML, unknown sections or keys, bare numbers where a
         quantity is needed, wrong dimensions and values out of range.
     """
-    try:
-        document = tomllib.loads(text)
-    except tomllib.TOMLDecodeError as exc:
-        raise ExperimentError(f"is not valid TOML ({exc})", path=path) from None
-    return _from_mapping(document, path=path)
+    return _from_mapping(load_toml(text, path=path), path=path)
 
 
 def read_experiment(path) -> Experiment:

@@ -35,10 +35,10 @@ from __future__ import annotations
 
 import math
 import re
-import tomllib
 from dataclasses import dataclass, field
 from pathlib import Path
 
+from .._toml import load_toml
 from ..errors import ExperimentError
 from ..pipeline._steps import AnalysisSettings, parse_roi
 
@@ -178,13 +178,12 @@ def _label_from(path: Path) -> str:
 def _read_document(path: Path) -> dict:
     """The manifest's TOML, with only the top-level tables a manifest has."""
     try:
-        document = tomllib.loads(path.read_text(encoding="utf-8"))
+        text = path.read_text(encoding="utf-8")
     except OSError as exc:
         raise ExperimentError(f"cannot be read ({exc.strerror or exc})", path=path) from None
     except UnicodeDecodeError:
         raise ExperimentError("is not UTF-8 text", path=path) from None
-    except tomllib.TOMLDecodeError as exc:
-        raise ExperimentError(f"is not valid TOML ({exc})", path=path) from None
+    document = load_toml(text, path=path)
     for key in document:
         if key not in ("campaign", "shared", "recordings"):
             _fail("unknown key", path, key, expected="campaign, shared or recordings")

@@ -19,12 +19,12 @@ Examples
 from __future__ import annotations
 
 import math
-import tomllib
 from collections.abc import Mapping
 from dataclasses import dataclass, field
 from pathlib import Path
 from types import MappingProxyType
 
+from .._toml import load_toml
 from ..errors import ExperimentError
 from ..units import parse_si
 
@@ -174,10 +174,7 @@ def liquid_library_from_toml(text: str, *, path=None) -> LiquidLibrary:
         For malformed TOML, unknown keys, missing values, bare numbers, wrong
         dimensions or a reversed temperature range.
     """
-    try:
-        document = tomllib.loads(text)
-    except tomllib.TOMLDecodeError as exc:
-        raise ExperimentError(f"is not valid TOML ({exc})", path=path) from None
+    document = load_toml(text, path=path)
     extra = sorted(set(document) - {"liquid"})
     if extra:
         raise ExperimentError(
