@@ -113,6 +113,8 @@ def test_fit_refuses_a_series_too_short_with_one_line(tmp_path):
     lines = result.stderr.strip().splitlines()
     assert len(lines) == 1 and "radius.csv" in lines[0]
     assert "Traceback" not in result.output
+    # Said once (issue 16): the reason is the error line, not also a "no verdict" on stdout.
+    assert "decades" not in result.stdout and "no verdict" not in result.stdout
 
 
 def test_fit_with_initial_radius_option_records_it_and_keeps_the_verdict(tmp_path):

@@ -25,9 +25,9 @@ def _report_verdict(verdict, radius_csv, path) -> None:
     """Print the verdict; then where it went, or (no verdict) the reason, as an error."""
     from ..scaling import format_verdict
 
-    click.echo(format_verdict(verdict))
-    if not verdict:
+    if not verdict:  # said once, as the error line (format_verdict would repeat it)
         raise DropkinError(verdict.reason, path=radius_csv)
+    click.echo(format_verdict(verdict))
     click.echo(f"wrote {path}")
 
 

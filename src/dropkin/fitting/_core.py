@@ -240,9 +240,12 @@ def data_problem(series: Series, lo: float, hi: float, *, reference=None) -> str
     tau = tau[tau > 0]
     decades = math.log10(tau[-1]) - math.log10(tau[0]) if len(tau) >= 2 else 0.0
     if decades < MIN_DECADES:
+        # Rounded down to 4 digits, so that a span just short of 1/3 never reads as
+        # "0.33 ... 1/3": any span below 1/3 shows at most 0.3333 - 0.0001.
+        shown = math.floor(decades * 1e4) / 1e4
         return (
-            f"too short: the points span {decades:.2f} decades of time since contact, "
-            f"at least 1/3 decade needed"
+            f"too short: the points span {shown:.4f} decades of time since contact, "
+            f"at least 1/3 decade (0.3333) needed"
         )
     return ""
 
