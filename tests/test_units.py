@@ -86,6 +86,7 @@ def test_click_type_turns_errors_into_usage_errors():
         ("20 um / pixel", 20e-6),
         ("2.5 µm/pixels", 2.5e-6),
         ("50 px/mm", 20e-6),
+        ("0.05 px/µm", 20e-6),
     ],
 )
 def test_a_pixel_size_is_read_from_a_calibration(text, expected):
@@ -99,6 +100,13 @@ def test_an_image_pixel_is_never_taken_for_a_length(text):
     with pytest.raises(QuantityError, match=r"recording\.pixel_size.*image pixel.*µm/px") as err:
         parse_si(text, "m", key="recording.pixel_size")
     assert "printing_unit" not in str(err.value) and "css" not in str(err.value)
+
+
+@pytest.mark.parametrize("text", ["12 pt", "1 pica", "3 points"])
+def test_typographic_units_are_refused_as_lengths(text):
+    # A printer's point is 1/72 inch (pint's definition); no recording is sized in it.
+    with pytest.raises(QuantityError, match=r"--pixel-size.*typographic.*e\.g\. '1 m'"):
+        parse_si(text, "m", key="--pixel-size")
 
 
 def test_a_pixel_is_refused_where_no_length_is_asked():

@@ -129,6 +129,8 @@ _NUMBER = re.compile(
 _PIXEL = r"(?:px|pixels?)"
 _PER_PIXEL = re.compile(rf"^(.+?)\s*/\s*{_PIXEL}$")
 _PIXELS_PER = re.compile(rf"^{_PIXEL}\s*/\s*(.+)$")
+#: Printers' units, lengths for pint but never a size in a recording.
+_TYPOGRAPHIC = r"\b(?:pt|points?|picas?|twips?|didots?|ciceros?)\b"
 #: A power of a power ("10**10**10"): pint would compute the integer, for ever.
 _STACKED_POWERS = re.compile(r"(\*\*|\^)[\s(+-]*[\d.]+[\s)]*(\*\*|\^)")
 _BAD_EXPONENT = re.compile(r"(\*\*|\^)\s*[-+(]?\s*\d{3,}")
@@ -169,6 +171,12 @@ def _as_quantity(text, ureg, *, key, path, expected, unit="m"):
             **where,
         )
     number, unit_text = _pixels(number, unit_text, text, unit, where)
+    if re.search(_TYPOGRAPHIC, unit_text):
+        raise _refuse(
+            "is a typographic unit (a printer's point or pica), not a length in the object plane",
+            text,
+            **where,
+        )
     return number * _unit(ureg, unit_text, text, where)
 
 
