@@ -1,6 +1,7 @@
 """``dropkin synth``: files written, exit codes, one-line errors."""
 
 import json
+import math
 import tomllib
 
 import numpy as np
@@ -90,6 +91,33 @@ def test_synth_law_names_are_the_library_regimes():
     (law,) = [p for p in synth_command.params if p.name == "law"]
     assert law.type.choices == law_choices()
     assert set(law_choices()) == {*REGIME_NAMES, "power"}
+    (then,) = [p for p in synth_command.params if p.name == "then"]
+    assert set(then.type.choices) == set(REGIME_NAMES)
+
+
+def test_synth_then_blends_two_laws_and_records_where_they_meet(tmp_path):
+    # --law inertially-limited-viscous --then inertial: 1/r = 1/r1 + 1/r2 (docs/physics.md
+    # section 3) of r1 = C (gamma/eta) t and r2 = D0 (gamma R/rho)^(1/4) t^(1/2), written
+    # out here; the laws meet at t_c = (D0/C)^2 (gamma R/rho)^(1/2) (eta/gamma)^2.
+    out = tmp_path / "x"
+    gamma, eta, rho, radius, d0 = 0.0658, 0.1002, 1221.0, 1e-3, 1.2
+    result = _run(
+        str(out), *SMALL, "--law", "inertially-limited-viscous", "--then", "inertial",
+        "--then-prefactor", "1.2", "--surface-tension", "65.8 mN/m",
+        "--viscosity", "100.2 mPa*s", "--density", "1221 kg/m^3", "--frame-rate", "2 kHz",
+        "--contact-frame", "0.5", "--noise", "0",
+    )  # fmt: skip
+    assert result.exit_code == 0, result.output
+    assert "harmonic-blend(inertially-limited-viscous,inertial) law" in result.output
+    law = json.loads((out / "truth.json").read_text())["law"]
+    t_c = d0**2 * math.sqrt(gamma * radius / rho) * (eta / gamma) ** 2
+    assert law["parameters"]["crossover_time"] == pytest.approx(t_c, rel=1e-9)
+    since = np.arange(6) / 2e3 - 0.5 / 2e3
+    tau = np.clip(since, 1e-30, None)
+    r1, r2 = gamma / eta * tau, d0 * (gamma * radius / rho) ** 0.25 * np.sqrt(tau)
+    expected = np.where(since > 0, r1 * r2 / (r1 + r2), 0.0)
+    truth = json.loads((out / "truth.json").read_text())
+    np.testing.assert_allclose(truth["radius_m"], expected, rtol=1e-12)
 
 
 def _one_line_error(result):
@@ -122,6 +150,8 @@ def test_bad_size_is_a_usage_error(tmp_path):
             "reaches the smaller drop radius",
         ),
         (["--law", "viscous", "--prefactor", "2"], "does not apply to the 'viscous' law"),
+        (["--then-prefactor", "1.2"], "--then-prefactor: applies only with --then"),
+        (["--then", "tanner", "--then-prefactor", "2"], "does not apply to the 'tanner' law"),
     ],
 )
 def test_bad_values_are_one_line_errors_with_exit_code_1(tmp_path, args, message):

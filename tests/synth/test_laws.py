@@ -8,9 +8,11 @@ import pytest
 from dropkin.errors import ExperimentError
 from dropkin.synth import (
     REGIME_NAMES,
+    crossing_time,
     custom_law,
     gravity_spreading_law,
     harmonic_blend,
+    ilv_law,
     inertial_law,
     inertial_spreading_law,
     power_law,
@@ -122,6 +124,52 @@ def test_harmonic_blend_is_the_harmonic_sum():
     # Early the linear law dominates, late the square-root law (crossover at t = 0.01).
     assert blend(1e-8) == pytest.approx(1e-8, rel=1e-3)
     assert blend(1e2) == pytest.approx(0.1 * 10, rel=2e-2)
+
+
+def test_ilv_law_opens_at_the_capillary_speed():
+    # docs/physics.md A2 (PNAS 109, 6857, 2012): r = C (gamma/eta) t. For 85 wt %
+    # glycerol-water (gamma = 65.8 mN/m, eta = 100.2 mPa s, invented sample) and C = 1,
+    # 1 ms after contact: 0.0658 / 0.1002 * 1e-3 = 656.7 um.
+    law = ilv_law(surface_tension=0.0658, viscosity=0.1002)
+    assert law(1e-3) == pytest.approx(656.7e-6, abs=0.05e-6)
+    assert law.name == "inertially-limited-viscous" and law.parameters["prefactor"] == 1.0
+    faster = ilv_law(surface_tension=0.0658, viscosity=0.1002, prefactor=1.5)
+    assert faster(1e-3) == pytest.approx(1.5 * law(1e-3), rel=1e-12)
+
+
+def test_blend_of_ilv_and_inertial_records_the_matching_crossover():
+    # docs/physics.md section 3 (D): C (gamma/eta) t = D0 (gamma R/rho)^(1/4) t^(1/2) gives
+    # t_c = (D0/C)^2 Oh^2 tau_i and r_c = (D0^2/C) Oh R, with Oh = eta / sqrt(rho gamma R)
+    # and tau_i = sqrt(rho R^3 / gamma). Written out here from those formulas.
+    gamma, eta, rho, radius, d0 = 0.0658, 0.1002, 1221.0, 2e-3, 1.2
+    oh = eta / math.sqrt(rho * gamma * radius)
+    t_c = d0**2 * oh**2 * math.sqrt(rho * radius**3 / gamma)
+    blend = harmonic_blend(
+        ilv_law(surface_tension=gamma, viscosity=eta),
+        inertial_law(surface_tension=gamma, density=rho, drop_radius=radius, prefactor=d0),
+    )
+    assert oh == pytest.approx(0.25, abs=1e-3)
+    assert blend.parameters["crossover_time"] == pytest.approx(t_c, rel=1e-9)
+    assert blend.parameters["crossover_radius"] == pytest.approx(d0**2 * oh * radius, rel=1e-9)
+    # There the blend is half the laws' common radius.
+    assert blend(t_c) == pytest.approx(0.5 * d0**2 * oh * radius, rel=1e-9)
+    assert blend.parameters["second.prefactor"] == d0
+
+
+def test_crossing_time_is_none_for_laws_that_never_meet():
+    # Two square-root laws with different prefactors are parallel in log-log.
+    assert (
+        crossing_time(
+            power_law(prefactor=1.0, exponent=0.5), power_law(prefactor=2.0, exponent=0.5)
+        )
+        is None
+    )
+    assert (
+        "crossover_time"
+        not in harmonic_blend(
+            power_law(prefactor=1.0, exponent=0.5), power_law(prefactor=2.0, exponent=0.5)
+        ).parameters
+    )
 
 
 def test_smooth_blend_follows_each_law_far_from_the_crossover():

@@ -8,7 +8,7 @@ from ..errors import DropkinError, ExperimentError
 from ._console import progress_bar
 from ._options import FINITE_FLOAT, FiniteFloat, LazyChoice, positive
 
-__all__ = ["synth_command", "law_choices"]
+__all__ = ["synth_command", "law_choices", "regime_choices"]
 
 
 def law_choices() -> tuple[str, ...]:
@@ -16,6 +16,13 @@ def law_choices() -> tuple[str, ...]:
     from .. import synth  # on first use only: ``dropkin --help`` does not need it
 
     return (*synth.REGIME_NAMES, "power")
+
+
+def regime_choices() -> tuple[str, ...]:
+    """The laws ``--then`` offers: the regimes of :mod:`dropkin.synth`."""
+    from .. import synth
+
+    return synth.REGIME_NAMES
 
 
 def _size(ctx, param, value):
@@ -50,6 +57,17 @@ def _size(ctx, param, value):
     type=FINITE_FLOAT,
     help="--law power: C of r = C t^n in SI units (m s^-n); "
     "inertial, viscous-outer, inertial-spreading, gravity-spreading: the dimensionless C.",
+)
+@click.option(
+    "--then",
+    type=LazyChoice(regime_choices),
+    help="A second regime that --law hands over to, by the harmonic blend 1/r = 1/r1 + 1/r2;"
+    " truth.json records the time at which the two laws meet.",
+)
+@click.option(
+    "--then-prefactor",
+    type=FINITE_FLOAT,
+    help="The dimensionless C of the --then law (as --prefactor for --law).",
 )
 @click.option("--surface-tension", type=positive("N/m"), default="72.74 mN/m", show_default=True)
 @click.option("--viscosity", type=positive("Pa*s"), default="1.0016 mPa*s", show_default=True)
@@ -165,7 +183,7 @@ def _setup(o):
 
 
 def _law(o, setup):
-    """The radius law of the options `o`: ``--law power``, or a regime's law."""
+    """The radius law of the options `o`: ``--law``, handing over to ``--then`` if given."""
     from .. import synth
     from ..synth._presets import default_law_name
 
@@ -173,9 +191,22 @@ def _law(o, setup):
     if name == "power":
         if o["exponent"] is None or o["prefactor"] is None:
             raise ExperimentError("needs --exponent and --prefactor", key="--law", value="power")
-        return synth.power_law(prefactor=o["prefactor"], exponent=o["exponent"])
-    if o["exponent"] is not None:
+        first = synth.power_law(prefactor=o["prefactor"], exponent=o["exponent"])
+    elif o["exponent"] is not None:
         raise ExperimentError("applies only to --law power", key="--exponent")
+    else:
+        first = _regime_law(o, setup, name, o["prefactor"])
+    if o["then"] is None:
+        if o["then_prefactor"] is not None:
+            raise ExperimentError("applies only with --then", key="--then-prefactor")
+        return first
+    return synth.harmonic_blend(first, _regime_law(o, setup, o["then"], o["then_prefactor"]))
+
+
+def _regime_law(o, setup, name, prefactor):
+    """The law of regime `name` for the material values of the options `o`."""
+    from .. import synth
+
     return synth.regime_law(
         name,
         surface_tension=o["surface_tension"],
@@ -183,7 +214,7 @@ def _law(o, setup):
         density=o["density"],
         outer_viscosity=o["outer_viscosity"],
         drop_radius=setup.effective_radius,
-        prefactor=o["prefactor"],
+        prefactor=prefactor,
     )
 
 

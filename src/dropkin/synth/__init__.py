@@ -30,6 +30,7 @@ from ._coverage import rectangle_coverage as rectangle_coverage
 from ._coverage import render_opacity as render_opacity
 from ._coverage import supersampled_coverage as supersampled_coverage
 from ._laws import RadiusLaw as RadiusLaw
+from ._laws import crossing_time as crossing_time
 from ._laws import custom_law as custom_law
 from ._laws import harmonic_blend as harmonic_blend
 from ._laws import power_law as power_law
@@ -46,6 +47,7 @@ from ._recording import Truth as Truth
 from ._recording import synthesize as synthesize
 from ._regime_laws import REGIME_NAMES as REGIME_NAMES
 from ._regime_laws import gravity_spreading_law as gravity_spreading_law
+from ._regime_laws import ilv_law as ilv_law
 from ._regime_laws import inertial_law as inertial_law
 from ._regime_laws import inertial_spreading_law as inertial_spreading_law
 from ._regime_laws import regime_law as regime_law
@@ -73,10 +75,12 @@ __all__ = [
     "REGIME_NAMES",
     "RadiusLaw",
     "custom_law",
+    "crossing_time",
     "power_law",
     "harmonic_blend",
     "smooth_blend",
     "viscous_law",
+    "ilv_law",
     "inertial_law",
     "viscous_outer_law",
     "inertial_spreading_law",

@@ -20,12 +20,14 @@ from collections.abc import Callable, Mapping
 from dataclasses import dataclass, field
 
 import numpy as np
+from scipy import optimize
 
 from ..errors import ExperimentError
 
 __all__ = [
     "RadiusLaw",
     "check_positive",
+    "crossing_time",
     "custom_law",
     "power_law",
     "harmonic_blend",
@@ -106,12 +108,48 @@ def power_law(*, prefactor: float, exponent: float, name: str = "power") -> Radi
     return RadiusLaw(name, function, {"prefactor": prefactor, "exponent": exponent})
 
 
+def crossing_time(first: RadiusLaw, second: RadiusLaw) -> float | None:
+    """The time since contact (s) at which `first` and `second` give the same radius.
+
+    Found on a log grid from 1 ps to 10^4 s (cut at the laws' ``valid_until``)
+    and refined by Brent's method on ln r1 - ln r2. None unless the two laws
+    cross exactly once there.
+
+    Examples
+    --------
+    >>> fast = power_law(prefactor=5.0, exponent=1.0)
+    >>> slow = power_law(prefactor=0.02, exponent=0.5)
+    >>> round(crossing_time(fast, slow) / (0.02 / 5.0) ** 2, 9)   # 5 t = 0.02 t^1/2
+    1.0
+    """
+    end = min(first.valid_until, second.valid_until, 1e4)
+    grid = np.geomspace(1e-12, end, 241)
+
+    def gap(t):
+        with np.errstate(all="ignore"):
+            return np.log(np.asarray(first.function(t), dtype=float)) - np.log(
+                np.asarray(second.function(t), dtype=float)
+            )
+
+    values = gap(grid)
+    finite = np.isfinite(values)
+    grid, values = grid[finite], values[finite]
+    changes = np.nonzero(np.sign(values[:-1]) * np.sign(values[1:]) < 0)[0]
+    if changes.size != 1:
+        return None
+    i = int(changes[0])
+    return float(optimize.brentq(lambda t: float(gap(t)), grid[i], grid[i + 1], xtol=1e-300))
+
+
 def harmonic_blend(first: RadiusLaw, second: RadiusLaw) -> RadiusLaw:
     """Crossover by the harmonic blend 1/r = 1/r1 + 1/r2 (docs/physics.md section 3).
 
     The smaller of the two laws dominates at each time, so a fast early law
     hands over to a slow late one (e.g. inertial spreading to Tanner), and a
     linear viscous law to the t^1/2 inertial law as in PRL 106, 114501 (2011).
+    The parameters record both laws' (``first.``, ``second.``) and, when the
+    two laws cross once, the ``crossover_time`` (s since contact) at which
+    r1 = r2 and their common radius there, ``crossover_radius`` (m).
     """
 
     def function(t):
@@ -119,6 +157,12 @@ def harmonic_blend(first: RadiusLaw, second: RadiusLaw) -> RadiusLaw:
 
     parameters = {f"first.{k}": v for k, v in first.parameters.items()}
     parameters |= {f"second.{k}": v for k, v in second.parameters.items()}
+    crossing = crossing_time(first, second)
+    if crossing is not None:
+        parameters |= {
+            "crossover_time": crossing,
+            "crossover_radius": float(first.function(np.array([crossing]))[0]),
+        }
     return RadiusLaw(
         f"harmonic-blend({first.name},{second.name})",
         function,

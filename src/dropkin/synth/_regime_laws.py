@@ -25,6 +25,7 @@ from ._laws import RadiusLaw, check_positive, power_law
 __all__ = [
     "STANDARD_GRAVITY",
     "viscous_law",
+    "ilv_law",
     "inertial_law",
     "viscous_outer_law",
     "inertial_spreading_law",
@@ -90,6 +91,32 @@ def viscous_spreading_law(
         viscosity=viscosity,
         drop_radius=drop_radius,
         radius_key="drop_radius",
+    )
+
+
+def ilv_law(*, surface_tension: float, viscosity: float, prefactor: float = 1.0) -> RadiusLaw:
+    """Inertially limited viscous coalescence, docs/physics.md A2: r = C (gamma/eta) t.
+
+    The neck opens at a constant speed set by the capillary velocity gamma/eta
+    (PNAS 109, 6857 (2012), V for the claim). C is of order one; it defaults to
+    1.0, an assumed value (M).
+
+    Examples
+    --------
+    >>> law = ilv_law(surface_tension=0.0658, viscosity=0.1002)
+    >>> round(float(law(1e-3)) * 1e6, 1)   # micrometres, 1 ms after contact
+    656.7
+    """
+    check_positive(surface_tension=surface_tension, viscosity=viscosity, prefactor=prefactor)
+    speed = prefactor * surface_tension / viscosity
+
+    def function(t):
+        return speed * t
+
+    return RadiusLaw(
+        "inertially-limited-viscous",
+        function,
+        {"surface_tension": surface_tension, "viscosity": viscosity, "prefactor": prefactor},
     )
 
 
@@ -244,6 +271,7 @@ def gravity_spreading_law(
 #: The regime names :func:`regime_law` knows, as in the design's regime keys.
 REGIME_NAMES = (
     "viscous",
+    "inertially-limited-viscous",
     "inertial",
     "viscous-outer",
     "inertial-spreading",
@@ -276,9 +304,10 @@ def regime_law(
     drop_radius : float
         R in metres; the drop volume of the spreading laws is 4/3 pi R^3.
     prefactor : float, optional
-        The dimensionless prefactor of ``inertial``, ``viscous-outer``,
-        ``inertial-spreading`` and ``gravity-spreading``; refused for the
-        others, whose prefactor is fixed by theory.
+        The dimensionless prefactor of ``inertially-limited-viscous``,
+        ``inertial``, ``viscous-outer``, ``inertial-spreading`` and
+        ``gravity-spreading``; refused for the others, whose prefactor is
+        fixed by theory.
     """
     volume = 4.0 / 3.0 * math.pi * drop_radius**3
     extra = {} if prefactor is None else {"prefactor": prefactor}
@@ -288,6 +317,9 @@ def regime_law(
         ),
         "viscous-spreading": lambda: viscous_spreading_law(
             surface_tension=surface_tension, viscosity=viscosity, drop_radius=drop_radius
+        ),
+        "inertially-limited-viscous": lambda: ilv_law(
+            surface_tension=surface_tension, viscosity=viscosity, **extra
         ),
         "tanner": lambda: tanner_law(
             surface_tension=surface_tension, viscosity=viscosity, drop_volume=volume
