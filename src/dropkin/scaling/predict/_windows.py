@@ -125,7 +125,8 @@ def _spreading_spans(n: SampleNumbers, plausible, prefactors, r_end, c_v) -> Spa
             start = power_law_crossing(c_v * n.capillary_speed, 1.0, a, k)[0]
         end = min(time_at(a, k, r_end), power_law_crossing(a, k, tanner[2], tanner[3])[0])
         if start < end:
-            spans["inertial-spreading"] = (start, end, "lasts about τ_i (Biance et al.)")
+            note = "lasts about τ_i (Phys. Rev. E 69, 016301, 2004)"
+            spans["inertial-spreading"] = (start, end, note)
             t_vi = start
     if plausible["viscous-spreading"]:
         spans["viscous-spreading"] = (0.0, min(t_vi, _els_end(n)), "")
