@@ -46,7 +46,7 @@ def power_law(t, prefactor, exponent):
 def viscous_log_law(t, prefactor, *, capillary_speed, radius):
     """Viscous coalescence with its logarithm: ``r = -C u t ln(u t / R)``.
 
-    Eggers, Lister & Stone (J. Fluid Mech. 401, 293, 1999): ``C = 1/pi`` in
+    The ELS law (J. Fluid Mech. 401, 293, 1999): ``C = 1/pi`` in
     inviscid surroundings and ``1/(4 pi)`` with an outer fluid of equal
     viscosity; ``u = gamma/eta``. The form holds for ``r << R``; where
     ``u t >= R`` the logarithm changes sign and NaN is returned.
@@ -78,8 +78,8 @@ def harmonic_blend(first, second):
     """Crossover blend of two laws, ``1/r = 1/r1 + 1/r2`` (docs/physics.md §3).
 
     The smaller of the two governs: the early law at short times, the late
-    one after the crossover (PRL 106, 114501, 2011; Xia, He & Zhang, PNAS
-    2019, show that it approximates their exact solution).
+    one after the crossover (Phys. Rev. Lett. 106, 114501, 2011; PNAS 116,
+    23467, 2019, shows that it approximates an exact solution).
 
     Parameters
     ----------

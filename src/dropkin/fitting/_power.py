@@ -153,7 +153,7 @@ def fit_log_law(
 ) -> LawFit:
     """Fit the ELS viscous law ``r = -C u τ ln(uτ/R)``, τ = t - t0, with C free.
 
-    Eggers, Lister & Stone (J. Fluid Mech. 401, 293, 1999); u = γ/η. The
+    The ELS law (J. Fluid Mech. 401, 293, 1999); u = γ/η. The
     result's ``prefactor`` is ``C u`` (m/s); its ``exponent`` is what a power-law
     fit would report for the law over the same points (its local exponent is
     ``1 + 1/ln(uτ/R)``, docs/physics.md §2 A1).

@@ -120,8 +120,11 @@ def prediction_to_dict(prediction: Prediction) -> dict:
                 "from": c.early,
                 "to": c.late,
                 "time_s": _num(c.time),
+                "time_range_s": [_num(v) for v in c.time_range],
                 "radius_m": _num(c.radius),
+                "radius_range_m": [_num(v) for v in c.radius_range],
                 "reached": c.reached,
+                "possible": c.possible,
                 "formula": c.formula,
                 "status": c.status,
                 "note": c.note,
@@ -232,12 +235,20 @@ def _regime_lines(p: Prediction) -> list[str]:
 
 
 def _crossover_lines(p: Prediction) -> list[str]:
+    """One line a crossover: central time and radius, each with its range over the constants."""
     lines = []
     for c in p.crossovers:
-        mark = "" if c.reached else "  (not reached: r_c ≥ R)"
+        if c.reached:
+            mark = ""
+        elif c.possible:
+            mark = "  (not reached with the central constants; reached within their ranges)"
+        else:
+            mark = "  (not reached)"
+        (t_lo, t_hi), (r_lo, r_hi) = c.time_range, c.radius_range
         lines.append(
-            f"  {c.early} → {c.late}: t ≈ {_eng(c.time, 's')}, r ≈ {_eng(c.radius, 'm')}"
-            f"  [{c.formula}; {c.status}; {c.note}]{mark}"
+            f"  {c.early} → {c.late}: t ≈ {_eng(c.time, 's')} ({_eng(t_lo, 's')} – "
+            f"{_eng(t_hi, 's')}), r ≈ {_eng(c.radius, 'm')} ({_eng(r_lo, 'm')} – "
+            f"{_eng(r_hi, 'm')}){mark}\n      [{c.formula}; {c.status}; {c.note}]"
         )
     return lines
 

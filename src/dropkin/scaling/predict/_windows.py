@@ -2,9 +2,11 @@
 
 A regime governs from its crossover with the earlier regime (or from
 contact) until its law reaches a fraction of the drop radius, or until the
-next regime takes over; the crossovers come from matching the laws
-(docs/physics.md §3) with the catalogue's O(1) prefactors, so the spans are
-estimates to a factor of a few.
+next regime takes over. Free drops take their stages from the phase
+diagram (:mod:`dropkin.scaling.regimes._phase_diagram`), the one the
+catalogue's conditions read; the other geometries match their laws
+(docs/physics.md §3). Spans use the central O(1) constants, so they are
+estimates to a factor of a few: the crossovers carry the ranges.
 """
 
 from __future__ import annotations
@@ -12,6 +14,7 @@ from __future__ import annotations
 import math
 
 from ..regimes._catalogue import regime
+from ..regimes._crossovers import coalescence_diagram
 from ..regimes._matching import power_law_crossing, tanner_gravity_crossover
 from ..regimes._numbers import SampleNumbers
 from ..regimes._regime import Regime
@@ -50,39 +53,27 @@ def governing_spans(numbers: SampleNumbers, geometry, plausible, prefactors, end
     )
     # c_v: C_v of the viscous side of the matchings, C_v (γ/η) t.
     if geometry == "coalescence":
-        return _coalescence_spans(numbers, plausible, prefactors, r_end, c_v)
+        return _coalescence_spans(numbers, plausible, prefactors, end_fraction)
     if geometry == "sessile-coalescence":
         return _sessile_spans(numbers, plausible, prefactors, r_end)
     return _spreading_spans(numbers, plausible, prefactors, r_end, c_v)
 
 
 def _els_end(n: SampleNumbers) -> float:
-    """Where the ELS log law -x ln x peaks: r = R/(e π)."""
+    """Where the ELS log law peaks: r = R/(e π)."""
     return n.viscous_time / math.e
 
 
-def _coalescence_spans(n: SampleNumbers, plausible, prefactors, r_end, c_v) -> Spans:
-    """Free drops: the viscous stage, then the first plausible late regime."""
+def _coalescence_spans(n: SampleNumbers, plausible, prefactors, end_fraction) -> Spans:
+    """Free drops: the stages of the phase diagram expected with the central constants."""
+    diagram = coalescence_diagram(n, prefactors, end_fraction)
     spans: Spans = {}
-    late = next((k for k in ("viscous-outer", "inertial-outer", "inertial") if plausible[k]), None)
-    t_c = math.inf
-    if late is not None:
-        _, _, a, k = regime_power(regime(late), n, prefactors)
-        t_c, _ = power_law_crossing(c_v * n.capillary_speed, 1.0, a, k)
-        t_end = time_at(a, k, r_end)
-        if t_c < t_end:
-            spans[late] = (t_c, t_end, "after the viscous stage")
-        else:
-            t_c = math.inf
-    linear_end = min(t_c, r_end / (c_v * n.capillary_speed))
-    spans["inertially-limited-viscous"] = (
-        0.0,
-        linear_end,
-        "the crossover to the ELS log law is not predicted (docs/physics.md gives no formula)",
-    )
-    for key in ("viscous", "viscous-equal-outer"):
-        if plausible.get(key):
-            spans[key] = (0.0, min(t_c, _els_end(n)), "shares its start with the ILV stage")
+    for stage in diagram.stages:
+        if stage.expected and plausible.get(stage.key) and stage.end > stage.start:
+            spans[stage.key] = (stage.start, stage.end, stage.note)
+    viscous = diagram.stage("viscous")
+    if plausible.get("viscous-equal-outer") and viscous.expected:
+        spans["viscous-equal-outer"] = (viscous.start, viscous.end, viscous.note)
     return spans
 
 
@@ -134,7 +125,8 @@ def _spreading_spans(n: SampleNumbers, plausible, prefactors, r_end, c_v) -> Spa
             start = power_law_crossing(c_v * n.capillary_speed, 1.0, a, k)[0]
         end = min(time_at(a, k, r_end), power_law_crossing(a, k, tanner[2], tanner[3])[0])
         if start < end:
-            spans["inertial-spreading"] = (start, end, "lasts about τ_i (Biance et al.)")
+            note = "lasts about τ_i (Phys. Rev. E 69, 016301, 2004)"
+            spans["inertial-spreading"] = (start, end, note)
             t_vi = start
     if plausible["viscous-spreading"]:
         spans["viscous-spreading"] = (0.0, min(t_vi, _els_end(n)), "")

@@ -10,14 +10,15 @@ import math
 from fractions import Fraction
 
 from . import _conditions as _c
-from ._conditions import OH_OUTER_CROSSOVER, OH_VISCOUS
+from ._conditions import OH_OUTER_CROSSOVER
+from ._phase_diagram import ELS_PEAK, ILV_SPEED, INERTIAL_PREFACTOR
 from ._regime import Regime, powers
 
 __all__ = ["COALESCENCE_LAWS"]
 
 _COALESCENCE = ("coalescence",)
 _SIDE = ("side",)
-_ELS = "Eggers, Lister & Stone, J. Fluid Mech. 401, 293 (1999); Hopper, JFM 213, 349 (1990)"
+_ELS = "J. Fluid Mech. 401, 293 (1999); the 2-D solution of J. Fluid Mech. 213, 349 (1990)"
 
 #: A1–A4: the neck between two drops, seen from the side.
 COALESCENCE_LAWS: tuple[Regime, ...] = (
@@ -37,12 +38,14 @@ COALESCENCE_LAWS: tuple[Regime, ...] = (
         prefactor_range=None,
         prefactor_status="V",
         normalisation="R is the drop radius (in the logarithm)",
-        conditions=f"Oh ≥ {OH_VISCOUS}, outer fluid inviscid (η/η_o ≥ 10), r ≪ R",
+        conditions="after the ILV stage, once viscous momentum has crossed the drop "
+        "(t ≳ K_s R²/ν: Oh of a few or more); r < R/(eπ) ≈ 0.12 R; outer fluid inviscid "
+        "(η/η_o ≥ 10)",
         reference=_ELS,
         status="V",
         note="a pure power-law fit of this law returns n ≈ 0.8–0.9",
         condition=_c.viscous,
-        max_radius_ratio=1.0 / (math.e * math.pi),
+        max_radius_ratio=ELS_PEAK,
         validity_source="the ELS formula peaks at r/R = 1/(eπ) ≈ 0.12 (D; J. Fluid Mech. 401, "
         "293, 1999)",
     ),
@@ -62,7 +65,8 @@ COALESCENCE_LAWS: tuple[Regime, ...] = (
         prefactor_range=None,
         prefactor_status="V",
         normalisation="R is the drop radius (in the logarithm)",
-        conditions="outer viscosity comparable: 0.1 ≤ η/η_o ≤ 10; r ≪ R",
+        conditions="outer viscosity comparable: 0.1 ≤ η/η_o ≤ 10; after the ILV stage as A1; "
+        "r < R/(eπ)",
         reference=_ELS + " (a toroidal bubble of outer fluid forms)",
         status="V",
         condition=_c.viscous_equal_outer,
@@ -82,14 +86,16 @@ COALESCENCE_LAWS: tuple[Regime, ...] = (
         logarithmic=False,
         group_powers=powers(surface_tension="1", viscosity="-1"),
         group_formula="γ/η",
-        prefactor=1.0,
-        prefactor_range=None,
-        prefactor_status="M",
+        prefactor=ILV_SPEED.value,
+        prefactor_range=(ILV_SPEED.low, ILV_SPEED.high),
+        prefactor_status=ILV_SPEED.status,
         normalisation="none (no length in the group)",
-        conditions="the earliest dynamics for all viscosities; until r ~ Oh R (low Oh)",
-        reference="Paulsen et al., PNAS 109, 6857 (2012); Aarts et al., PRL 95, 164503 (2005)",
+        conditions="the earliest dynamics for all viscosities; until inertia (r ~ Oh R) or "
+        "the Stokes flow (t ~ R²/ν) takes over",
+        reference="PNAS 109, 6857 (2012); Phys. Rev. Lett. 95, 164503 (2005); "
+        "Phys. Rev. E 88, 063010 (2013)",
         status="M",
-        note="C is O(1) and not verified here: fit it",
+        note="C is O(1) and not verified here (range 0.5–2 assumed): fit it",
         condition=_c.always_first,
         max_radius_ratio=0.5,
         validity_source="constant-speed opening is reported up to r/R of order 0.5 when no "
@@ -107,13 +113,14 @@ COALESCENCE_LAWS: tuple[Regime, ...] = (
         logarithmic=False,
         group_powers=powers(surface_tension="1/4", radius="1/4", density="-1/4"),
         group_formula="(γR/ρ)^(1/4)",
-        prefactor=1.2,
-        prefactor_range=(1.0, 1.7),
-        prefactor_status="M",
+        prefactor=INERTIAL_PREFACTOR.value,
+        prefactor_range=(INERTIAL_PREFACTOR.low, INERTIAL_PREFACTOR.high),
+        prefactor_status=INERTIAL_PREFACTOR.status,
         normalisation="R is the drop radius (papers using diameter or tip radius differ)",
-        conditions="Oh < 1 (r_c ~ Oh R < R), outer fluid negligible, r ≪ R",
-        reference="Duchemin, Eggers & Josserand, JFM 487, 167 (2003); Aarts et al. 2005; "
-        "Thoroddsen et al. 2005",
+        conditions="after the ILV stage, once r > (D0²/C_v) Oh R (reached when < R); outer "
+        "fluid negligible, r ≪ R",
+        reference="J. Fluid Mech. 487, 167 (2003); Phys. Rev. Lett. 95, 164503 (2005); "
+        "J. Fluid Mech. 527, 85 (2005); Phys. Rev. Lett. 106, 114501 (2011)",
         status="V",
         note="same n as viscous-outer, inertial-outer, inertial-spreading: rank on C",
         condition=_c.inertial_free_or_right_angle,

@@ -1,14 +1,17 @@
 """Conditions of validity of the catalogue's regimes, in terms of a sample's numbers.
 
 Each condition takes a :class:`SampleNumbers` and returns ``(plausible,
-reason)``; the reason shows the numbers that decided, in one line.
+reason)``; the reason shows the numbers that decided, in one line. The
+free-drop conditions read the phase diagram (:mod:`._phase_diagram`), the
+same one that ``predict`` lays out: a regime is plausible when its stage is
+possible for some values of the diagram's constants inside their ranges.
 
 Examples
 --------
 >>> from dropkin.scaling import sample_numbers
 >>> n = sample_numbers(surface_tension=0.0634, viscosity=1.414, density=1261.0, radius=1e-3)
->>> inertial(n)
-(False, 'Oh = 5 (inertia reached before r ~ R when < 1); outer fluid unknown, taken as negligible')
+>>> inertial(n)[0], viscous(n)[0]
+(False, True)
 """
 
 from __future__ import annotations
@@ -16,9 +19,12 @@ from __future__ import annotations
 import math
 
 from ._numbers import SampleNumbers
+from ._phase_diagram import ELS_PEAK, free_drop_diagram
 
-#: Viscosity slows coalescence above this Oh (Re_v = Oh**-2 < 5000; Thoroddsen,
-#: Takehara & Etoh, J. Fluid Mech. 527, 85, 2005; status V).
+#: Viscosity starts to slow coalescence above this Oh (Re_v = Oh**-2 < 5000;
+#: J. Fluid Mech. 527, 85, 2005; status V). A threshold for viscous effects,
+#: not a criterion for the Stokes regime: free drops read the phase diagram;
+#: the substrate's viscous laws still use it.
 OH_VISCOUS = 0.014
 #: The outer fluid's viscosity governs the late neck above this outer Oh
 #: (Nat. Commun. 5, 3182, 2014; status V).
@@ -39,10 +45,30 @@ def _outer_negligible(n: SampleNumbers) -> tuple[bool, str]:
     return ok, f"η/η_o = {_g(lam)}, ρ_o/ρ = {_g(dr)}"
 
 
+def _um(x) -> str:
+    """A length in µm, mm or m."""
+    for scale, unit in ((1.0, "m"), (1e-3, "mm")):
+        if x >= scale:
+            return f"{x / scale:.3g} {unit}"
+    return f"{x * 1e6:.3g} µm"
+
+
+def _stokes(n) -> tuple[bool, str]:
+    """Whether the Stokes (log-law) stage is possible in the phase diagram, and why."""
+    x = free_drop_diagram(n).crossover("viscous")
+    lo, hi = x.radius_range
+    peak = ELS_PEAK * n.radius
+    text = (
+        f"Oh = {_g(n.ohnesorge)} with ILV → Stokes at r ≈ {_um(x.radius)} ({_um(lo)}–{_um(hi)}), "
+        f"the log law ends at R/(eπ) = {_um(peak)}"
+    )
+    return lo < peak, text
+
+
 def viscous(n):
     ok, outer = _outer_negligible(n)
-    good = n.ohnesorge >= OH_VISCOUS and ok
-    return good, f"Oh = {_g(n.ohnesorge)} (viscous when ≥ {OH_VISCOUS}); {outer}"
+    stokes, text = _stokes(n)
+    return stokes and ok, f"{text}; {outer}"
 
 
 def viscous_equal_outer(n):
@@ -50,19 +76,26 @@ def viscous_equal_outer(n):
     if lam is None:
         return False, "outer viscosity unknown"
     good = 1.0 / COMPARABLE <= lam <= COMPARABLE
-    return good, f"η/η_o = {_g(lam)} (comparable when within a decade of 1)"
+    stokes, text = _stokes(n)
+    return good and stokes, f"η/η_o = {_g(lam)} (comparable when within a decade of 1); {text}"
 
 
 def always_first(n):
-    return True, "the earliest regime for every viscosity (PNAS 2012)"
+    return True, "the earliest regime for every viscosity (PNAS 109, 6857, 2012)"
 
 
 def inertial(n):
     ok, outer = _outer_negligible(n)
     if n.ohnesorge_outer is not None and n.ohnesorge_outer >= OH_OUTER_CROSSOVER:
         ok = False
-    good = n.ohnesorge < 1.0 and ok
-    return good, f"Oh = {_g(n.ohnesorge)} (inertia reached before r ~ R when < 1); {outer}"
+    x = free_drop_diagram(n).crossover("inertial")
+    lo, hi = x.radius_range
+    good = lo < n.radius and ok
+    text = (
+        f"Oh = {_g(n.ohnesorge)} with ILV → inertial at r ≈ {_um(x.radius)} "
+        f"({_um(lo)}–{_um(hi)}; reached when < R)"
+    )
+    return good, f"{text}; {outer}"
 
 
 def viscous_outer(n):

@@ -86,8 +86,9 @@ class CrossoverFit:
 def predicted_crossover(numbers, geometry, early, late):
     """The catalogue's crossover time for two regimes, and how it was made.
 
-    The crossovers of :func:`crossovers` first (its viscous side is the
-    linear law ``C_v (γ/η) t``, so it also stands for the ILV regime); else
+    The crossovers of :func:`crossovers` first (the phase diagram's: they
+    leave the ILV stage, whose linear law ``C_v (γ/η) t`` also stands for a
+    viscous side fitted with the log law); else
     the crossing of the two published laws (C = 1 where none is published).
     Returns ``(None, "")`` when neither applies.
     """
@@ -98,7 +99,7 @@ def predicted_crossover(numbers, geometry, early, late):
     linear_like = {"viscous", "inertially-limited-viscous"}
     for x in known:
         if x.late == late.key and (
-            x.early == early.key or (x.early == "viscous" and early.key in linear_like)
+            x.early == early.key or (x.early in linear_like and early.key in linear_like)
         ):
             return x.time, x.formula
     if early.logarithmic or late.logarithmic or early.exponent == late.exponent:
