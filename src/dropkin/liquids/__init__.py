@@ -54,6 +54,7 @@ from ._lookup import liquid_names as liquid_names
 from ._lookup import liquid_properties as liquid_properties
 from ._resolve import DEFAULT_TEMPERATURE as DEFAULT_TEMPERATURE
 from ._resolve import resolve_fluids as resolve_fluids
+from ._resolve import stated_uncertainties as stated_uncertainties
 from ._user import LiquidLibrary as LiquidLibrary
 from ._user import UserLiquid as UserLiquid
 from ._user import liquid_library_from_toml as liquid_library_from_toml
@@ -72,5 +73,6 @@ __all__ = [
     "liquid_library_from_toml",
     "load_liquid_library",
     "resolve_fluids",
+    "stated_uncertainties",
     "celsius_text",
 ]
