@@ -77,7 +77,8 @@ def test_liquids_mixture_text():
         "liquids", "glycerol-water", "--temperature", "25 degC", "--glycerol-mass-fraction", "0.9"
     )
     assert result.exit_code == 0, result.output
-    assert "156.3 mPa s" in result.stdout and "Cheng (2008)" in result.stdout
+    assert "156.3 mPa s" in result.stdout and "Ind. Eng. Chem. Res. 47, 3285" in result.stdout
+    assert "±2 %" in result.stdout  # the viscosity's stated uncertainty
 
 
 def test_liquids_user_file(tmp_path):

@@ -1,7 +1,7 @@
 """The sections of an experiment file, the kind of value each key holds, and their conversion.
 
 Each section (``[recording]``, ``[setup]``, ``[liquid]``, ``[medium]``,
-``[drops]``) is a frozen record; :data:`SCHEMA` gives, for each key, the kind
+``[drops]``, ``[uncertainty]``) is a frozen record; :data:`SCHEMA` gives, for each key, the kind
 of value it holds, and :func:`convert` turns a value of the file into its SI
 form or raises an :class:`~dropkin.errors.ExperimentError` naming the key. The
 whole file, and the :class:`~dropkin.experiment.Experiment` it becomes, are in
@@ -20,7 +20,7 @@ from dataclasses import dataclass
 from numbers import Real
 
 from .errors import ExperimentError
-from .units import parse_si, registry
+from .units import parse_relative, parse_si, registry
 
 __all__ = [
     "GEOMETRIES",
@@ -29,6 +29,8 @@ __all__ = [
     "Setup",
     "Fluid",
     "Drops",
+    "Uncertainty",
+    "UNCERTAIN_VALUES",
     "SCHEMA",
     "known",
     "check_number",
@@ -118,8 +120,46 @@ class Drops:
     radius: float | None = None
 
 
+#: The values an ``[uncertainty]`` section may qualify, and the key each stands for.
+UNCERTAIN_VALUES = {
+    "surface_tension": "liquid.surface_tension",
+    "viscosity": "liquid.viscosity",
+    "density": "liquid.density",
+    "medium_viscosity": "medium.viscosity",
+    "medium_density": "medium.density",
+    "radius": "drops.radius",
+}
+
+
+@dataclass(frozen=True)
+class Uncertainty:
+    """Relative standard uncertainties the experiment file states; None where it states none.
+
+    Each applies to the value named in :data:`UNCERTAIN_VALUES`, whether the
+    file gives that value or the liquid library fills it in; it takes
+    precedence over the library's stated uncertainty and over the 2 %
+    default. Written ``0.03`` or ``"3 %"`` (a standard uncertainty, k = 1).
+
+    Attributes
+    ----------
+    surface_tension, viscosity, density : float or None
+        Of the liquid's values.
+    medium_viscosity, medium_density : float or None
+        Of the surrounding medium's values.
+    radius : float or None
+        Of the drop radius R.
+    """
+
+    surface_tension: float | None = None
+    viscosity: float | None = None
+    density: float | None = None
+    medium_viscosity: float | None = None
+    medium_density: float | None = None
+    radius: float | None = None
+
+
 # The kind of each key: ("quantity", SI unit) for a positive value with a unit,
-# ("choice", allowed...), ("text",), ("fraction",) or ("index",).
+# ("choice", allowed...), ("text",), ("fraction",), ("index",) or ("relative",).
 SCHEMA: dict[str, tuple[type, dict[str, tuple]]] = {
     "recording": (
         RecordingSettings,
@@ -148,6 +188,7 @@ SCHEMA: dict[str, tuple[type, dict[str, tuple]]] = {
     "drops": (Drops, {"radius": ("quantity", "m")}),
 }
 SCHEMA["medium"] = SCHEMA["liquid"]
+SCHEMA["uncertainty"] = (Uncertainty, {name: ("relative",) for name in UNCERTAIN_VALUES})
 
 
 def known(names) -> str:
@@ -217,6 +258,8 @@ def convert(value, kind: tuple, *, key: str, path):
                 expected="a mass fraction from 0 to 1",
             )
         return float(number)
+    if what == "relative":
+        return parse_relative(value, key=key, path=path)
     if what == "index":
         if isinstance(value, bool) or not isinstance(value, int) or value < 0:
             raise ExperimentError(

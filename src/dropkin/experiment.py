@@ -41,6 +41,7 @@ from ._experiment_schema import (
     Fluid,
     RecordingSettings,
     Setup,
+    Uncertainty,
     check_number,
     convert,
     known,
@@ -54,6 +55,7 @@ __all__ = [
     "Setup",
     "Fluid",
     "Drops",
+    "Uncertainty",
     "GEOMETRIES",
     "VIEWS",
     "EXPERIMENT_FILE_NAME",
@@ -81,6 +83,9 @@ class Experiment:
     medium : Fluid
         The surrounding fluid; air when the file does not say otherwise.
     drops : Drops
+    uncertainty : Uncertainty
+        Relative standard uncertainties the file states for its material
+        values and the drop radius (``[uncertainty]``); empty by default.
     path : pathlib.Path or None
         The file it was read from; None when no file was found.
     """
@@ -90,6 +95,7 @@ class Experiment:
     liquid: Fluid = field(default_factory=Fluid)
     medium: Fluid = field(default_factory=lambda: Fluid(name="air"))
     drops: Drops = field(default_factory=Drops)
+    uncertainty: Uncertainty = field(default_factory=Uncertainty)
     path: Path | None = None
 
     def with_overrides(self, overrides: dict[str, object]) -> Experiment:

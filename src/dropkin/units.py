@@ -35,6 +35,7 @@ __all__ = [
     "registry",
     "parse_quantity",
     "parse_si",
+    "parse_relative",
     "QuantityType",
     "SI_UNITS",
 ]
@@ -280,6 +281,59 @@ def parse_si(text, unit: str, *, key: str | None = None, path=None) -> float:
     what the numeric code works with.
     """
     return float(parse_quantity(text, unit, key=key, path=path).to(unit).magnitude)
+
+
+_RELATIVE = "a relative standard uncertainty from 0 to 1, e.g. 0.02 or '2 %'"
+
+
+def parse_relative(value, *, key: str | None = None, path=None) -> float:
+    """A relative standard uncertainty as written in a file: ``0.02`` or ``"2 %"``.
+
+    A plain number is the fraction itself; a text must be dimensionless
+    (``"2 %"``, ``"0.5 percent"``). Values must lie in [0, 1): a number such
+    as ``5`` (meant as 5 %) is refused rather than read as 500 %.
+
+    Raises
+    ------
+    QuantityError
+        Naming the key, for a value that is not such a fraction.
+
+    Examples
+    --------
+    >>> parse_relative("2 %"), parse_relative(0.015)
+    (0.02, 0.015)
+    """
+    if isinstance(value, Real) and not isinstance(value, bool):
+        number = float(value)
+    elif isinstance(value, str):
+        try:
+            quantity = registry().Quantity(value.strip())
+            number = float(quantity.to("dimensionless").magnitude)
+        except Exception:  # pint raises many kinds (undefined unit, dimensionality, ...)
+            raise QuantityError(
+                "is not a relative uncertainty",
+                key=_where(key),
+                value=value,
+                expected=_RELATIVE,
+                path=path,
+            ) from None
+    else:
+        raise QuantityError(
+            "is not a relative uncertainty",
+            key=_where(key),
+            value=value,
+            expected=_RELATIVE,
+            path=path,
+        )
+    if not (math.isfinite(number) and 0.0 <= number < 1.0):
+        raise QuantityError(
+            "must lie from 0 to below 1",
+            key=_where(key),
+            value=value,
+            expected=_RELATIVE,
+            path=path,
+        )
+    return number
 
 
 class QuantityType(click.ParamType):

@@ -37,6 +37,9 @@ class BuiltInLiquid:
         True when a glycerol mass fraction must be given.
     sources : Mapping[str, str]
         The formula or table behind each property.
+    uncertainties : Mapping[str, float]
+        Relative standard uncertainty (k = 1) of each property, as its
+        source states it or as the source string says it was judged.
     values : callable
         ``values(temperature_K, fraction) -> (surface_tension, viscosity, density)`` in SI.
     fixed_fraction : float or None
@@ -48,6 +51,7 @@ class BuiltInLiquid:
     high: float
     needs_fraction: bool
     sources: Mapping[str, str]
+    uncertainties: Mapping[str, float]
     values: Callable[[float, float | None], tuple[float | None, float, float]]
     fixed_fraction: float | None = None
 
@@ -76,17 +80,49 @@ def _air(t, _fraction):
     return None, _pure.air_viscosity(t), _pure.air_density(t)
 
 
+# Sources give the journal, volume, page and year; each says where its stated
+# uncertainty comes from. "(from memory)" marks what could not be checked here.
+_WATER_SOURCES = {
+    "surface_tension": "IAPWS R1-76(2014); stated uncertainty about 0.5 % near room "
+    "temperature (from memory)",
+    "viscosity": "IAPWS 2008, J. Phys. Chem. Ref. Data 38, 101 (2009), without critical "
+    "enhancement; 1 % for the liquid at 0.1 MPa (from memory)",
+    "density": "J. Chem. Eng. Data 20, 97 (1975); within 2e-5 of IAPWS-95 (CoolProp "
+    "8.0.0), 1e-4 stated",
+}
+_WATER_U = {"surface_tension": 0.005, "viscosity": 0.01, "density": 1e-4}
 _GLYCEROL_SOURCES = {
-    "surface_tension": "Glycerine Producers' Association table (1963), from memory, "
-    "±1.5 mN/m (M); water end IAPWS R1-76(2014)",
-    "viscosity": "Cheng (2008), Ind. Eng. Chem. Res. 47, 3285",
-    "density": "Volk & Kähler (2018), Exp. Fluids 59, 75",
+    "surface_tension": "table of 1963 for glycerol–water at 20 °C, from memory, ±1.5 mN/m "
+    "(2.5 % stated, not checked against a published table); water end IAPWS R1-76(2014)",
+    "viscosity": "Ind. Eng. Chem. Res. 47, 3285 (2008) correlation; 2 % = its rms deviation "
+    "from the table of Ind. Eng. Chem. 43, 2117 (1951) at 0–40 °C (largest 3.5 %)",
+    "density": "Exp. Fluids 59, 75 (2018); within 0.05 % of the glycerine tables, 0.1 % stated",
 }
+_GLYCEROL_U = {"surface_tension": 0.025, "viscosity": 0.02, "density": 0.001}
+_ETHANOL_SOURCES = {
+    "surface_tension": "J. Phys. Chem. Ref. Data 41, 043105 (2012) fit, coefficients as "
+    "in CoolProp 8.0.0; 2 % stated (the paper's per-fluid deviation not checked)",
+    "viscosity": "Andrade form through CoolProp 8.0.0's values (its 2005 correlation, "
+    "Ind. Eng. Chem. Res.) at 20 and 25 °C; within 1 % of it to 60 °C, 2 % stated",
+    "density": "linear through CoolProp 8.0.0 at 20 and 25 °C; within 0.2 % of it to 60 °C",
+}
+_ETHANOL_U = {"surface_tension": 0.02, "viscosity": 0.02, "density": 0.002}
+_AIR_SOURCES = {
+    "surface_tension": "not applicable (a gas)",
+    "viscosity": "Sutherland's law, mu0 = 1.716e-5 Pa s, S = 110.4 K; within 0.5 % of "
+    "CoolProp 8.0.0",
+    "density": "ideal gas, M = 28.9647 g/mol, p = 101.325 kPa; within 0.1 % of CoolProp 8.0.0",
+}
+_AIR_U = {"viscosity": 0.005, "density": 0.001}
 _SILICONE_SOURCES = {
-    "surface_tension": "nominal grade, typical vendor data at 25 °C (M); -0.06 mN/(m K) (M)",
-    "viscosity": "nominal grade, ±5–10 % (M); Andrade B = 1739 K from VTC 0.60 (M)",
-    "density": "nominal grade at 25 °C (docs/physics.md §5.4); expansion 9.6e-4 /K (M)",
+    "surface_tension": "nominal grade, typical data-sheet value at 25 °C, -0.06 mN/(m K), "
+    "from memory, 3 % stated",
+    "viscosity": "nominal grade, sold ±5–10 %; Andrade B = 1739 K from a viscosity-temperature "
+    "coefficient of 0.60, from memory; 10 % stated",
+    "density": "nominal grade at 25 °C (docs/physics.md §5.4), expansion 9.6e-4 /K from "
+    "memory; 1 % stated",
 }
+_SILICONE_U = {"surface_tension": 0.03, "viscosity": 0.10, "density": 0.01}
 
 BUILT_IN: dict[str, BuiltInLiquid] = {
     "water": BuiltInLiquid(
@@ -94,11 +130,8 @@ BUILT_IN: dict[str, BuiltInLiquid] = {
         _c(0.0),
         _c(100.0),
         False,
-        {
-            "surface_tension": "IAPWS R1-76(2014)",
-            "viscosity": "IAPWS 2008 (Huber et al. 2009), without critical enhancement",
-            "density": "Kell (1975), J. Chem. Eng. Data 20, 97",
-        },
+        _WATER_SOURCES,
+        _WATER_U,
         _water,
         None,
     ),
@@ -108,6 +141,7 @@ BUILT_IN: dict[str, BuiltInLiquid] = {
         _c(100.0),
         True,
         _GLYCEROL_SOURCES,
+        _GLYCEROL_U,
         _glycerol_water,
         None,
     ),
@@ -117,6 +151,7 @@ BUILT_IN: dict[str, BuiltInLiquid] = {
         _c(100.0),
         False,
         _GLYCEROL_SOURCES,
+        _GLYCEROL_U,
         _glycerol_water,
         1.0,
     ),
@@ -125,11 +160,8 @@ BUILT_IN: dict[str, BuiltInLiquid] = {
         _c(0.0),
         _c(60.0),
         False,
-        {
-            "surface_tension": "linear through Adamson & Gast's 20 and 30 °C values (V)",
-            "viscosity": "Andrade form through CoolProp/Kiselev (2005) at 20 and 25 °C (C)",
-            "density": "linear through CoolProp 8.0.0 at 20 and 25 °C (C)",
-        },
+        _ETHANOL_SOURCES,
+        _ETHANOL_U,
         _ethanol,
         None,
     ),
@@ -138,11 +170,8 @@ BUILT_IN: dict[str, BuiltInLiquid] = {
         _c(-40.0),
         _c(150.0),
         False,
-        {
-            "surface_tension": "not applicable (a gas)",
-            "viscosity": "Sutherland's law, mu0 = 1.716e-5 Pa s, S = 110.4 K (White)",
-            "density": "ideal gas, M = 28.9647 g/mol, p = 101.325 kPa",
-        },
+        _AIR_SOURCES,
+        _AIR_U,
         _air,
         None,
     ),
@@ -154,6 +183,7 @@ for _grade in _mix.SILICONE_OIL_GRADES:
         _c(35.0),
         False,
         _SILICONE_SOURCES,
+        _SILICONE_U,
         (lambda grade: lambda t, _f: _mix.silicone_oil_properties(t, grade))(_grade),
         None,
     )

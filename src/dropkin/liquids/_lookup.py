@@ -58,6 +58,10 @@ class LiquidProperties:
     sources : Mapping[str, str]
         For each of ``surface_tension``, ``viscosity``, ``density``: the
         formula or table the value comes from (read-only).
+    uncertainties : Mapping[str, float]
+        For the same keys: the relative standard uncertainty (k = 1) the
+        source states, or the library judged and says so in the source text;
+        a user liquid's as its file states them (absent where it states none).
     """
 
     name: str
@@ -67,6 +71,7 @@ class LiquidProperties:
     density: float
     glycerol_mass_fraction: float | None = None
     sources: Mapping[str, str] = field(default_factory=lambda: MappingProxyType({}))
+    uncertainties: Mapping[str, float] = field(default_factory=lambda: MappingProxyType({}))
 
     @property
     def kinematic_viscosity(self) -> float:
@@ -90,6 +95,9 @@ class LiquidInfo:
         True for ``glycerol-water``: the mass fraction must be given.
     sources : Mapping[str, str]
         The formula or table behind each property (read-only).
+    uncertainties : Mapping[str, float]
+        The relative standard uncertainty of each property (read-only), as
+        for :attr:`LiquidProperties.uncertainties`.
     origin : str
         ``"built-in"``, or the path of the user's library file.
     """
@@ -100,6 +108,7 @@ class LiquidInfo:
     temperature_max: float | None
     needs_glycerol_mass_fraction: bool
     sources: Mapping[str, str]
+    uncertainties: Mapping[str, float] = field(default_factory=lambda: MappingProxyType({}))
     origin: str = "built-in"
 
 
@@ -176,6 +185,7 @@ def liquid_info(name: str, *, user_library=None) -> LiquidInfo:
             temperature_max=user.temperature_max,
             needs_glycerol_mass_fraction=False,
             sources=MappingProxyType(_user_sources(user)),
+            uncertainties=MappingProxyType(dict(user.uncertainties)),
             origin=library.path or "user library",
         )
     known, entry = built_in
@@ -186,6 +196,7 @@ def liquid_info(name: str, *, user_library=None) -> LiquidInfo:
         temperature_max=entry.high,
         needs_glycerol_mass_fraction=entry.needs_fraction,
         sources=MappingProxyType(dict(entry.sources)),
+        uncertainties=MappingProxyType(dict(entry.uncertainties)),
     )
 
 
@@ -266,6 +277,7 @@ def properties_of(name, temperature, fraction, library, *, section) -> LiquidPro
             viscosity=user.viscosity,
             density=user.density,
             sources=MappingProxyType(_user_sources(user)),
+            uncertainties=MappingProxyType(dict(user.uncertainties)),
         )
     known, entry = built_in
     _check_temperature(known, temperature, entry.low, entry.high, key=t_key)
@@ -281,6 +293,7 @@ def properties_of(name, temperature, fraction, library, *, section) -> LiquidPro
         density=rho,
         glycerol_mass_fraction=fraction,
         sources=MappingProxyType(dict(entry.sources)),
+        uncertainties=MappingProxyType(dict(entry.uncertainties)),
     )
 
 

@@ -15,7 +15,7 @@ import dataclasses
 from ..errors import ExperimentError, with_path
 from ._lookup import as_library, properties_of
 
-__all__ = ["DEFAULT_TEMPERATURE", "resolve_fluids"]
+__all__ = ["DEFAULT_TEMPERATURE", "resolve_fluids", "stated_uncertainties"]
 
 #: Temperature assumed when an experiment names a liquid but gives none (20 °C).
 DEFAULT_TEMPERATURE = 293.15
@@ -83,15 +83,15 @@ def resolve_fluids(experiment, *, user_library=None):
         raise with_path(exc, getattr(experiment, "path", None)) from None
 
 
-def _resolve(experiment, library):
-    liquid = experiment.liquid
+def _library_values(experiment, library):
+    """(liquid's, medium's) LiquidProperties where the library fills a value, else None."""
+    liquid, medium = experiment.liquid, experiment.medium
+    liquid_props = medium_props = None
     if liquid.name is not None and any(getattr(liquid, n) is None for n in _FILLED):
         temperature = DEFAULT_TEMPERATURE if liquid.temperature is None else liquid.temperature
-        properties = properties_of(
+        liquid_props = properties_of(
             liquid.name, temperature, liquid.glycerol_mass_fraction, library, section="liquid"
         )
-        liquid = _fill(liquid, properties, _FILLED)
-    medium = experiment.medium
     untouched = medium.name is None and all(
         getattr(medium, n) is None for n in (*_FILLED, "temperature")
     )
@@ -103,10 +103,81 @@ def _resolve(experiment, library):
             temperature = liquid.temperature
         else:
             temperature = DEFAULT_TEMPERATURE
-        properties = properties_of(
+        medium_props = properties_of(
             name, temperature, medium.glycerol_mass_fraction, library, section="medium"
         )
+    return liquid_props, medium_props
+
+
+def _resolve(experiment, library):
+    liquid_props, medium_props = _library_values(experiment, library)
+    liquid, medium = experiment.liquid, experiment.medium
+    if liquid_props is not None:
+        liquid = _fill(liquid, liquid_props, _FILLED)
+    if medium_props is not None:
         medium = _fill(
-            dataclasses.replace(medium, name=name), properties, ("viscosity", "density")
+            dataclasses.replace(medium, name=medium.name or "air"), medium_props, _MEDIUM_FILLED
         )
     return dataclasses.replace(experiment, liquid=liquid, medium=medium)
+
+
+_MEDIUM_FILLED = ("viscosity", "density")
+# (name in the analysis, experiment section, value, key of the [uncertainty] section)
+_UNCERTAIN = (
+    ("surface_tension", "liquid", "surface_tension", "surface_tension"),
+    ("viscosity", "liquid", "viscosity", "viscosity"),
+    ("density", "liquid", "density", "density"),
+    ("outer_viscosity", "medium", "viscosity", "medium_viscosity"),
+    ("outer_density", "medium", "density", "medium_density"),
+)
+
+
+def stated_uncertainties(experiment, *, user_library=None) -> dict[str, tuple[float, str]]:
+    """The relative standard uncertainties stated for an experiment's values, and by whom.
+
+    For each of the liquid's surface tension, viscosity and density, the
+    medium's viscosity and density (``outer_viscosity``, ``outer_density``,
+    the names :func:`dropkin.scaling.analyze_series` uses) and the drop
+    ``radius``: the experiment file's ``[uncertainty]`` value when it gives
+    one; else, for a value the library fills in, the library's stated
+    uncertainty. A value given in the file without an uncertainty has none
+    here: the analysis then uses its stated default.
+
+    Parameters
+    ----------
+    experiment : Experiment
+        As read from the file, before :func:`resolve_fluids`.
+    user_library : LiquidLibrary or path, optional
+
+    Returns
+    -------
+    dict
+        name -> (relative uncertainty, where it comes from).
+
+    Examples
+    --------
+    >>> from dropkin.experiment import experiment_from_toml
+    >>> exp = experiment_from_toml('[liquid]\\nname = "water"\\n[uncertainty]\\nradius = "1 %"')
+    >>> stated = stated_uncertainties(exp)
+    >>> stated["viscosity"][0], stated["radius"]
+    (0.01, (0.01, 'experiment file, uncertainty.radius'))
+    """
+    library = as_library(user_library)
+    try:
+        props = dict(zip(("liquid", "medium"), _library_values(experiment, library), strict=True))
+    except ExperimentError as exc:
+        raise with_path(exc, getattr(experiment, "path", None)) from None
+    out = {}
+    for name, section, value, key in _UNCERTAIN:
+        given = getattr(experiment.uncertainty, key)
+        library_props = props[section]
+        if given is not None:
+            out[name] = (given, f"experiment file, uncertainty.{key}")
+        elif getattr(getattr(experiment, section), value) is None and library_props is not None:
+            u = library_props.uncertainties.get(value)
+            if u is not None:
+                source = library_props.sources.get(value, "")
+                out[name] = (u, f"liquid library ({library_props.name}): {source}")
+    if experiment.uncertainty.radius is not None:
+        out["radius"] = (experiment.uncertainty.radius, "experiment file, uncertainty.radius")
+    return out

@@ -21,6 +21,7 @@ def catalogue_to_dicts(entries) -> list[dict]:
             "temperature_max_k": e.temperature_max,
             "needs_glycerol_mass_fraction": e.needs_glycerol_mass_fraction,
             "sources": dict(e.sources),
+            "relative_uncertainties": dict(e.uncertainties),
             "origin": e.origin,
         }
         for e in entries
@@ -51,6 +52,7 @@ def properties_to_dict(props) -> dict:
         "density_kg_per_m3": props.density,
         "kinematic_viscosity_m2_per_s": props.kinematic_viscosity,
         "sources": dict(props.sources),
+        "relative_uncertainties": dict(props.uncertainties),
     }
 
 
@@ -70,11 +72,14 @@ def format_properties(props, *, assumed_temperature: bool = False) -> str:
     lines = [f"{what} at {celsius_text(props.temperature)}{note}"]
     sigma = "—" if props.surface_tension is None else f"{props.surface_tension * 1e3:.4g} mN/m"
     rows = (
-        ("surface tension", sigma, props.sources.get("surface_tension", "")),
-        ("viscosity", f"{props.viscosity * 1e3:.4g} mPa s", props.sources.get("viscosity", "")),
-        ("density", f"{props.density:.5g} kg/m^3", props.sources.get("density", "")),
-        ("kinematic viscosity", f"{props.kinematic_viscosity * 1e6:.4g} mm^2/s", ""),
+        ("surface tension", sigma, "surface_tension"),
+        ("viscosity", f"{props.viscosity * 1e3:.4g} mPa s", "viscosity"),
+        ("density", f"{props.density:.5g} kg/m^3", "density"),
+        ("kinematic viscosity", f"{props.kinematic_viscosity * 1e6:.4g} mm^2/s", None),
     )
-    for label, value, source_text in rows:
-        lines.append(f"  {label:<20} {value:<16} {source_text}".rstrip())
+    for label, value, key in rows:
+        u = props.uncertainties.get(key) if key else None
+        spread = f"±{u * 100:.2g} %" if u is not None and value != "—" else ""
+        source_text = props.sources.get(key, "") if key else ""
+        lines.append(f"  {label:<20} {value:<16} {spread:<8} {source_text}".rstrip())
     return "\n".join(lines)

@@ -10,10 +10,13 @@ Examples
 ... density = "960 kg/m^3"
 ... temperature_min = "15 degC"
 ... temperature_max = "30 degC"
+... uncertainty = { viscosity = "3 %", density = 0.001 }
 ... ''')
 >>> oil = library.entries["my-oil"]
 >>> oil.viscosity, round(oil.temperature_max - 273.15, 2)
 (0.05, 30.0)
+>>> dict(oil.uncertainties)
+{'viscosity': 0.03, 'density': 0.001}
 """
 
 from __future__ import annotations
@@ -26,7 +29,7 @@ from types import MappingProxyType
 
 from .._toml import load_toml
 from ..errors import ExperimentError
-from ..units import parse_si
+from ..units import parse_relative, parse_si
 
 __all__ = ["UserLiquid", "LiquidLibrary", "liquid_library_from_toml", "load_liquid_library"]
 
@@ -52,6 +55,10 @@ class UserLiquid:
         none, and then any temperature is accepted.
     source : str
         Where the values come from, in the user's words (may be empty).
+    uncertainties : Mapping[str, float]
+        Relative standard uncertainties the file states (``uncertainty``
+        table: ``surface_tension``, ``viscosity``, ``density``); a value
+        without one gets the analysis' stated default.
     """
 
     name: str
@@ -62,6 +69,7 @@ class UserLiquid:
     temperature_min: float | None = None
     temperature_max: float | None = None
     source: str = ""
+    uncertainties: Mapping[str, float] = field(default_factory=lambda: MappingProxyType({}))
 
 
 @dataclass(frozen=True)
@@ -88,6 +96,7 @@ _QUANTITY_KEYS = {
     "temperature_max": "K",
 }
 _TEXT_KEYS = ("description", "source")
+_UNCERTAIN = ("surface_tension", "viscosity", "density")
 _REQUIRED = ("viscosity", "density")
 
 
@@ -108,7 +117,7 @@ def _entry(name: str, table, *, path) -> UserLiquid:
     where = f'liquid."{name}"'
     if not isinstance(table, dict):
         raise ExperimentError("must be a table", key=where, path=path)
-    known = (*_QUANTITY_KEYS, *_TEXT_KEYS)
+    known = (*_QUANTITY_KEYS, *_TEXT_KEYS, "uncertainty")
     for key in table:
         if key not in known:
             raise ExperimentError(
@@ -147,7 +156,28 @@ def _entry(name: str, table, *, path) -> UserLiquid:
             path=path,
         )
     values.setdefault("surface_tension", None)
+    values["uncertainties"] = _uncertainties(table.get("uncertainty", {}), where, path)
     return UserLiquid(name=name, **values)
+
+
+def _uncertainties(table, where, path):
+    """The entry's ``uncertainty`` table: property -> relative standard uncertainty."""
+    key = f"{where}.uncertainty"
+    if not isinstance(table, dict):
+        raise ExperimentError(
+            "must be a table", key=key, path=path, expected="e.g. { viscosity = '3 %' }"
+        )
+    out = {}
+    for name, value in table.items():
+        if name not in _UNCERTAIN:
+            raise ExperimentError(
+                "unknown key",
+                key=f"{key}.{name}",
+                path=path,
+                expected=f"one of {', '.join(_UNCERTAIN)}",
+            )
+        out[name] = parse_relative(value, key=f"{key}.{name}", path=path)
+    return MappingProxyType(out)
 
 
 def liquid_library_from_toml(text: str, *, path=None) -> LiquidLibrary:
@@ -156,7 +186,9 @@ def liquid_library_from_toml(text: str, *, path=None) -> LiquidLibrary:
     The file holds one table per liquid, ``[liquid."NAME"]``, with
     ``viscosity`` and ``density`` (required), ``surface_tension``
     (optional, e.g. for a medium), an optional range ``temperature_min`` /
-    ``temperature_max``, and optional ``description`` and ``source`` texts.
+    ``temperature_max``, optional ``description`` and ``source`` texts, and
+    an optional ``uncertainty`` table of relative standard uncertainties
+    (``{ viscosity = "3 %" }``; numbers such as 0.03 too).
     Values with a unit are strings, as in ``experiment.toml``. A user entry
     takes precedence over a built-in liquid of the same name (so measured
     values can replace a nominal silicone-oil grade).

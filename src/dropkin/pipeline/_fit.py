@@ -12,8 +12,10 @@ it into the sample's dimensionless numbers and the verdict of
 from __future__ import annotations
 
 import math
-from dataclasses import dataclass, replace
+from collections.abc import Mapping
+from dataclasses import dataclass, field, replace
 from pathlib import Path
+from types import MappingProxyType
 
 from ..contact import frames_bracket
 from ..errors import DropkinError, ExperimentError
@@ -37,11 +39,19 @@ class Measurement:
         the drop radius from the series when the experiment has none.
     path : pathlib.Path
         The ``radius.csv`` (read, or written by the same run).
+    uncertainties : Mapping[str, (float, str)]
+        Relative standard uncertainties stated for the material values and
+        the drop radius, with where each comes from
+        (:func:`dropkin.liquids.stated_uncertainties`); the fit uses its
+        stated default for the others.
     """
 
     series: RadiusSeries
     experiment: Experiment
     path: Path
+    uncertainties: Mapping[str, tuple[float, str]] = field(
+        default_factory=lambda: MappingProxyType({})
+    )
 
 
 def check_sample(experiment: Experiment) -> Experiment:
@@ -105,7 +115,7 @@ def load_measurement(radius_csv, *, experiment=None, overrides=None) -> Measurem
     DropkinError
         If a file cannot be read or the sample is not described.
     """
-    from ..liquids import resolve_fluids
+    from ..liquids import resolve_fluids, stated_uncertainties
 
     path = Path(radius_csv)
     series = read_series(path)
@@ -128,7 +138,12 @@ def load_measurement(radius_csv, *, experiment=None, overrides=None) -> Measurem
     if overrides:
         exp = exp.with_overrides(overrides)
     exp = sample_of(exp, series)
-    return Measurement(series=series, experiment=resolve_fluids(exp), path=path)
+    return Measurement(
+        series=series,
+        experiment=resolve_fluids(exp),
+        path=path,
+        uncertainties=MappingProxyType(stated_uncertainties(exp)),
+    )
 
 
 def fit_measurement(
@@ -178,6 +193,8 @@ def fit_measurement(
         geometry=exp.setup.geometry,
         view=exp.setup.view,
         t0=t0,
+        material_uncertainty={k: u for k, (u, _) in measurement.uncertainties.items()},
+        material_uncertainty_sources={k: s for k, (_, s) in measurement.uncertainties.items()},
         seed=seed,
         bootstrap=bootstrap,
         radius_levels=dict(series.level_radii) or None,

@@ -333,6 +333,7 @@ def analyze_into(
     DropkinError
         For any other input that cannot be read or measured.
     """
+    from ..liquids import stated_uncertainties
     from ..report import write_analysis_report
 
     out = Path(out)
@@ -342,7 +343,9 @@ def analyze_into(
     series, method = measure_into(out, exp, rec, settings, progress=progress, experiment_file=copy)
     if series.contact_time is None:
         raise MeasurementError(method, path=rec.path)
-    measurement = Measurement(series, sample_of(sample, series), out / "radius.csv")
+    measurement = Measurement(
+        series, sample_of(sample, series), out / "radius.csv", stated_uncertainties(exp)
+    )
     verdict, numbers = _fit_and_write(measurement, out, **settings.fit_settings())
     used = measurement.experiment
     report = None

@@ -162,6 +162,12 @@ class RegimeVerdict:
         return self.success
 
 
+def _sources(relative, given) -> dict:
+    """Where each relative uncertainty comes from; the stated default where none is named."""
+    given = dict(given or {})
+    return {name: given.get(name, "stated default") for name in relative}
+
+
 def analyze_series(
     time,
     radius,
@@ -176,6 +182,7 @@ def analyze_series(
     view="side",
     t0=None,
     material_uncertainty=None,
+    material_uncertainty_sources=None,
     seed=0,
     bootstrap=200,
     radius_levels=None,
@@ -217,6 +224,9 @@ def analyze_series(
     material_uncertainty : Mapping[str, float], optional
         Relative uncertainties of the material values (default 2 % each;
         see :data:`DEFAULT_MATERIAL_UNCERTAINTY`).
+    material_uncertainty_sources : Mapping[str, str], optional
+        Where each of them comes from (the liquid library, the experiment
+        file, the stated default), recorded beside them in ``settings``.
     seed : int
         Seed of the bootstrap.
     bootstrap : int
@@ -264,6 +274,7 @@ def analyze_series(
         "initial_radius": bool(initial_radius),
         "seed": seed,
         "material_uncertainty": dict(relative),
+        "material_uncertainty_sources": _sources(relative, material_uncertainty_sources),
         "loss": "soft_l1",
         "robust_scale": ROBUST_SCALE,
     }
