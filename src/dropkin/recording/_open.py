@@ -19,7 +19,9 @@ import numpy as np
 
 from ..errors import RecordingError
 from ._base import FileTiming, Recording
+from ._cine import CINE_SUFFIXES, open_cine
 from ._folder import FRAME_SUFFIXES, open_image_folder
+from ._mraw import MRAW_SUFFIXES, open_mraw
 from ._tiff import TIFF_SUFFIXES, open_tiff_stack
 from ._video import VIDEO_SUFFIXES, open_video
 
@@ -49,12 +51,14 @@ class FileFormat:
 FILE_FORMATS = (
     FileFormat("a TIFF stack", TIFF_SUFFIXES, open_tiff_stack),
     FileFormat("a video", VIDEO_SUFFIXES, open_video),
+    FileFormat("a .cine file", CINE_SUFFIXES, open_cine),
+    FileFormat("a .mraw recording with its .cih/.cihx header", MRAW_SUFFIXES, open_mraw),
 )
 
 #: Suffix (lower case) → the reader that opens a file with it.
 OPENERS = {suffix: form.opener for form in FILE_FORMATS for suffix in form.suffixes}
 
-#: Suffixes of the single files that are recordings (TIFF stacks and videos).
+#: Suffixes of the single files that are recordings (TIFF stacks, videos, camera files).
 RECORDING_SUFFIXES = tuple(OPENERS)
 
 NO_FRAME_RATE = "no frame rate: give recording.frame_rate in the experiment file or --frame-rate"
@@ -227,6 +231,7 @@ def _select(frames, path, rate, origin, pixel_size, first_frame, last_frame):
     if len(kept) != n:
         notes.append(f"frames {first} to {last} of {n} kept")
     timing = frames.timing
+    given_rate = rate
     if rate is not None:
         times = np.arange(len(kept)) / rate
         if timing is not None:
@@ -268,4 +273,21 @@ def _select(frames, path, rate, origin, pixel_size, first_frame, last_frame):
         pixel_size=pixel_size,
         indices=kept,
         notes=tuple(notes),
+        trigger_time=_trigger_time(frames, timing, given_rate, first),
     )
+
+
+def _trigger_time(frames, timing: FileTiming | None, given_rate, first: int) -> float | None:
+    """The trigger's instant on the recording's time axis (0 at frame `first`), or None.
+
+    With a given frame rate the trigger's frame is placed on that rate's axis;
+    otherwise the file's own trigger instant is moved to the axis of its times.
+    """
+    if given_rate is not None or timing is None or timing.trigger is None:
+        place = getattr(frames, "trigger_frame", None)
+        if given_rate is None or place is None:
+            return None
+        return (float(place) - first) / given_rate
+    if timing.times is not None:
+        return float(timing.trigger - timing.times[first])
+    return float(timing.trigger - first * timing.interval)
