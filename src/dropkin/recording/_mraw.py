@@ -105,13 +105,15 @@ class MrawRecording(CameraFrames):
         packing = _PACKING[header["Color Bit"]]
         self._layout = Layout(np.zeros(0, np.int64), rows, cols, packing)
         size = file_size(self.path)
-        if count > size // max(self._layout.frame_bytes, 1) + 1:
+        whole = size // self._layout.frame_bytes
+        if count > whole:
             raise RecordingError(
-                f"claims {count} frames; the .mraw file ({size} bytes) holds "
-                f"{size // self._layout.frame_bytes} at most",
-                path=where,
+                f"is truncated: the header claims {count} frames of {self._layout.frame_bytes} "
+                f"bytes, the .mraw file ({size} bytes) ends inside frame {whole}",
+                path=self.path,
                 key=names["Total Frame"],
                 value=count,
+                frame=whole,
             )
         self._layout = Layout(
             np.arange(count, dtype=np.int64) * self._layout.frame_bytes, rows, cols, packing

@@ -159,7 +159,7 @@ def open_recording(
     first_frame: int = 0,
     last_frame: int | None = None,
 ) -> Recording:
-    """Open a folder of frames, a TIFF stack or a video file as a :class:`Recording`.
+    """Open a folder of frames, a TIFF stack, a video or a camera file as a :class:`Recording`.
 
     Nothing is decoded beyond what is needed to check the recording: every
     frame file's header in a folder, the page structure of a TIFF file, the
@@ -169,12 +169,15 @@ def open_recording(
     ----------
     source : str or os.PathLike
         A folder of PNG, TIFF, BMP or JPEG frames (see ``FRAME_SUFFIXES``), a
-        multi-page TIFF file, or a video file (see ``VIDEO_SUFFIXES``).
+        multi-page TIFF file, a video file (see ``VIDEO_SUFFIXES``), a .cine
+        file, or a .mraw recording (its .mraw, .cih or .cihx file).
     frame_rate : float, optional
         Frames per second, in hertz. When given it is used, whatever the file
         says. When not, the file's own timing is used: per-frame OME ``DeltaT``
-        times, an OME ``TimeIncrement`` or an ImageJ ``finterval``. A video
-        container's frame rate is never used (it is a playback rate).
+        times, an OME ``TimeIncrement`` or an ImageJ ``finterval``; a camera
+        file's per-frame time stamps or its saved-frame rate (record rate over
+        save step). A video container's frame rate is never used (it is a
+        playback rate).
     frame_rate_origin : str, optional
         Where a given `frame_rate` came from, e.g. "experiment file" or
         "command line"; kept as ``Recording.frame_rate_origin``.
