@@ -592,7 +592,7 @@ def camera_cases():
         "mraw_cut",
         {"mraw_cut.cih": cih_text(4, 6, 8), "mraw_cut.mraw": bytes(6 * 8 * 2 + 20)},
         "mraw_cut.cih",
-        words=["mraw_cut.mraw", "truncated", "Total Frame"],
+        words=["mraw_cut.cih", "mraw_cut.mraw", "truncated", "Total Frame"],
         about="a .cih header claiming 4 frames for a .mraw file of 2.4",
     )
     camera(

@@ -108,9 +108,9 @@ class MrawRecording(CameraFrames):
         whole = size // self._layout.frame_bytes
         if count > whole:
             raise RecordingError(
-                f"is truncated: the header claims {count} frames of {self._layout.frame_bytes} "
-                f"bytes, the .mraw file ({size} bytes) ends inside frame {whole}",
-                path=self.path,
+                f"claims {count} frames of {self._layout.frame_bytes} bytes: the recording "
+                f"is truncated, {self.path.name} ({size} bytes) ends inside frame {whole}",
+                path=where,
                 key=names["Total Frame"],
                 value=count,
                 frame=whole,
