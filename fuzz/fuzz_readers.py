@@ -46,6 +46,8 @@ READERS = {
     "bmp": "frames/frame_1.bmp",
     "jpeg": "frames/frame_1.jpg",
     "video": "input.avi",  # OpenCV's FFmpeg back end
+    "cine": "input.cine",  # dropkin's own .cine reader
+    "cih": "input.cih",  # a .cih header, with a sound .mraw file beside it
 }
 SUMMARY_EVERY = 100  # inputs between two summaries written by a child
 
@@ -98,6 +100,11 @@ def write_seeds(reader: str, folder: Path) -> None:
         for k, image in enumerate(images):
             assert cv2.imwrite(str(scratch / f"s{suffix}"), image)
             keep(f"seed{k}{suffix}", scratch / f"s{suffix}")
+    elif reader == "cine":
+        for name, packed in (("u16", False), ("p12", True)):
+            (folder / f"{name}.cine").write_bytes(_cine_seed(frames12, packed=packed))
+    elif reader == "cih":
+        (folder / "seed.cih").write_text(_CIH_SEED)
     elif reader == "video":
         writer = cv2.VideoWriter(
             str(scratch / "s.avi"), cv2.VideoWriter_fourcc(*"MJPG"), 30.0, (32, 24)
@@ -107,6 +114,45 @@ def write_seeds(reader: str, folder: Path) -> None:
         writer.release()
         keep("mjpg.avi", scratch / "s.avi")
     shutil.rmtree(scratch)
+
+
+_CIH_SEED = (
+    "#Camera Information Header\nRecord Rate(fps) : 60000\nTotal Frame : 3\n"
+    "Start Frame : -1\nCorrect Trigger Frame : 0\nSave Step : 36\nImage Width : 10\n"
+    "Image Height : 12\nColor Type : Mono\nColor Bit : 12\nFile Format : MRaw\n"
+    "EffectiveBit Depth : 12\nEffectiveBit Side : Lower\n"
+)
+
+
+def _cine_seed(frames, *, packed: bool) -> bytes:
+    """A gray .cine file written by hand from the format's layout (no library writes one):
+    file header, bitmap header, a setup block (mark, length, frame rate, bits), a
+    time-stamp block, the image offsets, then each image behind its annotation."""
+    import struct
+
+    import numpy as np
+
+    from dropkin.recording._camera import pack12
+
+    count, rows, cols = frames.shape
+    setup = bytearray(13484)
+    setup[140:144] = b"ST" + struct.pack("<H", len(setup))
+    struct.pack_into("<I", setup, 768, 60000)
+    struct.pack_into("<I", setup, 896, 12)
+    stamps = (np.arange(count, dtype=np.uint64) * 71583 + (1 << 40)).astype("<u8").tobytes()
+    block = struct.pack("<IHH", 8 + len(stamps), 1002, 0) + stamps
+    images = [pack12(f) if packed else f[::-1].astype("<u2").tobytes() for f in frames]
+    table_at = 84 + len(setup) + len(block)
+    first = table_at + 8 * count
+    offsets = [first + k * (8 + len(images[0])) for k in range(count)]
+    header = struct.pack(
+        "<2sHHHiIiIIIIQ", b"CI", 44, 0, 1, -1, count, -1, count, 44, 84, table_at, 1 << 40
+    )
+    bitmap = struct.pack(
+        "<IiiHHIIiiII", 40, cols, rows, 1, 16, 1024 if packed else 0, len(images[0]), 0, 0, 0, 0
+    )
+    body = b"".join(struct.pack("<II", 8, len(i)) + i for i in images)
+    return header + bitmap + bytes(setup) + block + struct.pack(f"<{count}q", *offsets) + body
 
 
 # -- one input --------------------------------------------------------------------
@@ -119,6 +165,8 @@ class Campaign:
         self.reader, self.crashes, self.inputs, self.summary = reader, crashes, inputs, summary
         self.target = work / READERS[reader]
         self.target.parent.mkdir(parents=True, exist_ok=True)
+        if reader == "cih":  # the header is fuzzed; the frames beside it are sound
+            (work / "input.mraw").write_bytes(bytes(3 * 12 * 10 * 3 // 2))
         if self.target.parent != work:  # a folder: a sound PNG frame comes first
             import cv2
             import numpy as np

@@ -528,6 +528,92 @@ def recording_cases():
     )
 
 
+def cine_bytes(frames: int, rows: int, cols: int, *, mark: bytes = b"ST") -> bytes:
+    """A gray 16-bit .cine file by the format's layout: file header, bitmap header,
+    a setup block that ends after its Length field, the image offsets, the images
+    (each behind an 8-byte annotation: its size, then the image's size)."""
+    setup = bytes(140) + mark + struct.pack("<H", 144)
+    table_at = 44 + 40 + len(setup)
+    image = b"".join(
+        struct.pack("<H", (40 + r + c) % 4096) for r in range(rows) for c in range(cols)
+    )
+    first = table_at + 8 * frames
+    offsets = [first + k * (8 + len(image)) for k in range(frames)]
+    header = struct.pack(
+        "<2sHHHiIiIIIIQ", b"CI", 44, 0, 1, 0, frames, 0, frames, 44, 84, table_at, 0
+    )
+    bitmap = struct.pack("<IiiHHIIiiII", 40, cols, rows, 1, 16, 0, len(image), 0, 0, 0, 0)
+    body = b"".join(struct.pack("<II", 8, len(image)) + image for _ in range(frames))
+    return header + bitmap + setup + struct.pack(f"<{frames}q", *offsets) + body
+
+
+def cih_text(frames: int, rows: int, cols: int) -> str:
+    """A .cih header of a gray 8-bit .mraw recording."""
+    return (
+        "#Camera Information Header\nRecord Rate(fps) : 20000\n"
+        f"Total Frame : {frames}\nStart Frame : -1\nSave Step : 1\n"
+        f"Image Width : {cols}\nImage Height : {rows}\nColor Type : Mono\n"
+        "Color Bit : 8\nFile Format : MRaw\nEffectiveBit Depth : 8\n"
+    )
+
+
+def camera_cases():
+    good = GOOD_EXPERIMENT
+
+    def camera(name, files: dict, given: str, *, words, about):
+        files = {f"recordings/{k}": v for k, v in files.items()}
+        files[f"recordings/{given.rsplit('.', 1)[0]}.toml"] = good
+        case(
+            name,
+            "recording",
+            files=files,
+            input=f"recordings/{given}",
+            commands=REC,
+            words=words,
+            about=about,
+        )
+
+    whole = cine_bytes(3, 8, 10)
+    camera(
+        "cine_cut",
+        {"cine_cut.cine": whole[:-50]},
+        "cine_cut.cine",
+        words=["cine_cut.cine", "truncated", "frame 2"],
+        about="a .cine file cut inside its last image",
+    )
+    camera(
+        "cine_no_setup",
+        {"cine_no_setup.cine": cine_bytes(3, 8, 10, mark=b"??")},
+        "cine_no_setup.cine",
+        words=["cine_no_setup.cine", "no setup block", "OffSetup"],
+        about="a .cine file whose setup block lacks its 'ST' mark",
+    )
+    camera(
+        "mraw_cut",
+        {"mraw_cut.cih": cih_text(4, 6, 8), "mraw_cut.mraw": bytes(6 * 8 * 2 + 20)},
+        "mraw_cut.cih",
+        words=["mraw_cut.cih", "mraw_cut.mraw", "truncated", "Total Frame"],
+        about="a .cih header claiming 4 frames for a .mraw file of 2.4",
+    )
+    camera(
+        "cih_no_width",
+        {
+            "cih_no_width.cih": cih_text(2, 6, 8).replace("Image Width : 8\n", ""),
+            "cih_no_width.mraw": bytes(2 * 6 * 8),
+        },
+        "cih_no_width.mraw",
+        words=["cih_no_width.cih", "Image Width", "missing"],
+        about="a .cih header without its image width, the .mraw given",
+    )
+    camera(
+        "cihx_broken",
+        {"cihx_broken.cihx": "<cih><frameInfo><totalFrame>2</cih>", "cihx_broken.mraw": bytes(96)},
+        "cihx_broken.cihx",
+        words=["cihx_broken.cihx", "not well-formed XML"],
+        about="a .cihx header whose XML is cut",
+    )
+
+
 def series_cases():
     def series(name, text, *, words, about, experiment=GOOD_EXPERIMENT, **extra):
         files = {f"series/{name}/radius.csv": text}
@@ -1155,6 +1241,7 @@ def build() -> dict[str, bytes]:
     CASES.clear()
     experiment_cases()
     recording_cases()
+    camera_cases()
     series_cases()
     liquids_cases()
     option_cases()

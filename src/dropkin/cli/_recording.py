@@ -27,7 +27,8 @@ MEASURE_SETTINGS = ("roi", "threshold", "background", "jobs", "chunk_size", "ove
 @click.option("--json", "as_json", is_flag=True, help="Print the description as JSON.")
 @click.pass_context
 def info_command(ctx, source, as_json, **options):
-    """Describe the recording SOURCE (a folder of frames, a TIFF stack or a video)."""
+    """Describe the recording SOURCE (a folder of frames, a TIFF stack, a video, a
+    .cine file or a .mraw recording with its .cih/.cihx header)."""
     from ..liquids import resolve_fluids
     from ..pipeline._steps import open_source
     from ..recording._describe import describe, format_description

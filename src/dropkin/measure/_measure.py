@@ -137,6 +137,7 @@ def measure(
         level_radii={
             level: level_radius[:, i] * pixel for i, level in enumerate(options.other_levels)
         },
+        trigger_time=getattr(recording, "trigger_time", None),
     )
     extras = {"preparation": prep, "contact": contact}
     if keep_edges:

@@ -1,4 +1,5 @@
-"""Readers for recordings: a folder of frames, a multi-page TIFF, a video file.
+"""Readers for recordings: a folder of frames, a multi-page TIFF, a video file,
+a .cine file, a .mraw recording with its .cih/.cihx header.
 
 Every reader gives the same :class:`Recording`: a lazy sequence of 2-D
 grayscale frames with their times (seconds from the first kept frame), the

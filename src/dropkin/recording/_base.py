@@ -38,11 +38,15 @@ class FileTiming:
     times : (K,) ndarray or None
         Per-frame times in seconds (any zero), when the file gives them; K is
         the number of frames of the source.
+    trigger : float or None
+        The instant of the camera's trigger in seconds, on the axis of `times`
+        (or of ``index * interval``), when the file records one.
     """
 
     origin: str
     interval: float | None = None
     times: np.ndarray | None = None
+    trigger: float | None = None
 
 
 class FrameSource(Protocol):
@@ -56,6 +60,9 @@ class FrameSource(Protocol):
     notes: tuple[str, ...]
     files: tuple[Path, ...] | None
     timing: FileTiming | None
+    # Optional: ``trigger_frame`` (float, the trigger's place in the source's
+    # frames, fractional when it fell between two saved frames) and
+    # ``header_facts`` (dict, what a camera file's header says, for ``info``).
 
     def __len__(self) -> int: ...
 
@@ -96,6 +103,8 @@ class Recording:
         The frames of `source` to show, in order; all of them by default.
     notes : tuple of str, optional
         Notes added to those of the source.
+    trigger_time : float, optional
+        The camera's trigger instant on the axis of `times` (s), when known.
 
     Attributes
     ----------
@@ -127,6 +136,18 @@ class Recording:
         For an image folder, the file of each frame; None for a single file.
     source_frames : range
         For each frame, its index in the source (the frame number errors name).
+    trigger_time : float or None
+        The instant of the camera's trigger on the axis of `times` (s; negative
+        when it came before the first frame kept), for camera files whose
+        header records it; None otherwise.
+    time_since_trigger : (K,) ndarray or None
+        ``times - trigger_time``: each frame's time from the trigger (s).
+    trigger_frame : float or None
+        The trigger's place among the source's frames (fractional when it fell
+        between two saved frames), or None.
+    header_facts : dict
+        What a camera file's header says (record rate, save step, bit depths,
+        whether it has per-frame time stamps); empty for other sources.
     """
 
     def __init__(
@@ -139,8 +160,10 @@ class Recording:
         pixel_size: float | None,
         indices: range | None = None,
         notes: tuple[str, ...] = (),
+        trigger_time: float | None = None,
     ) -> None:
         self._source = source
+        self.trigger_time = trigger_time
         self._indices = range(len(source)) if indices is None else indices
         self._times = _read_only(times)
         if self._times.shape != (len(self._indices),):
@@ -191,6 +214,18 @@ class Recording:
     def source_frames(self) -> range:
         return self._indices
 
+    @property
+    def time_since_trigger(self) -> np.ndarray | None:
+        return None if self.trigger_time is None else self._times - self.trigger_time
+
+    @property
+    def trigger_frame(self) -> float | None:
+        return getattr(self._source, "trigger_frame", None)
+
+    @property
+    def header_facts(self) -> dict:
+        return dict(getattr(self._source, "header_facts", None) or {})
+
     def __len__(self) -> int:
         return len(self._indices)
 
@@ -215,6 +250,7 @@ class Recording:
                 pixel_size=self.pixel_size,
                 indices=self._indices[key],
                 notes=self._notes[len(self._source.notes) :],
+                trigger_time=self.trigger_time,
             )
         try:
             index = operator.index(key)

@@ -44,7 +44,10 @@ def describe(recording, experiment) -> dict:
         ``frame_interval_s``, ``duration_s`` (frames times the mean interval),
         ``pixel_size_m``, ``field_of_view_m`` (rows, cols), ``geometry``,
         ``view``, ``liquid``, ``medium``, ``drop_radius_m``,
-        ``experiment_file`` and ``notes``.
+        ``experiment_file``, ``notes``, and for a camera file whose header
+        records them ``trigger_frame``, ``trigger_time_s`` (on the axis of the
+        frame times) and ``camera_header`` (what the header says: record
+        rate, save step, saved-frame rate, bit depths, time stamps).
     """
     rows, cols = recording.shape
     times = recording.times
@@ -77,7 +80,54 @@ def describe(recording, experiment) -> dict:
         "drop_radius_m": experiment.drops.radius,
         "experiment_file": None if experiment.path is None else str(experiment.path),
         "notes": list(recording.notes),
+        **_camera(recording),
     }
+
+
+def _camera(recording) -> dict:
+    """The trigger and the camera header's facts, for a camera file (else nothing)."""
+    facts = getattr(recording, "header_facts", None) or {}
+    if not facts:
+        return {}
+    return {
+        "trigger_frame": recording.trigger_frame,
+        "trigger_time_s": recording.trigger_time,
+        "camera_header": facts,
+    }
+
+
+def _camera_lines(d: dict) -> list[str]:
+    """Lines on what a camera file's header says (none for other sources)."""
+    facts = d.get("camera_header")
+    if not facts:
+        return []
+    lines = []
+    rate, step, saved = (
+        facts.get(k) for k in ("record_rate_hz", "save_step", "saved_frame_rate_hz")
+    )
+    if rate:
+        lines.append(f"record rate     {rate:.6g} fps, save step {step:g}")
+    if saved:
+        lines.append(f"saved rate      {saved:.6g} fps (record rate / save step)")
+    if d.get("trigger_frame") is not None:
+        line = f"trigger         at frame {d['trigger_frame']:g} of the file"
+        if d.get("trigger_time_s") is not None:
+            line += f" ({_readable(d['trigger_time_s'], 's')} on the time axis)"
+        lines.append(line)
+    if facts.get("first_frame_number") is not None:
+        lines.append(f"first frame     number {facts['first_frame_number']} from the trigger")
+    depth = f"bit depth       {facts.get('bit_depth')} bits"
+    if facts.get("effective_bit_depth"):
+        depth += f" (header's effective bit depth {facts['effective_bit_depth']})"
+    lines.append(depth + f", stored as {_PACKINGS.get(facts.get('packing'), '?')}")
+    if facts.get("per_frame_timestamps"):
+        lines.append("time stamps     per frame, in the file (the times come from them)")
+    else:
+        lines.append("time stamps     none in the file (times from the saved-frame rate)")
+    return lines
+
+
+_PACKINGS = {"u8": "8-bit bytes", "u16": "16-bit words", "p12": "packed 12-bit"}
 
 
 def _readable(value, unit: str, digits: int = 4) -> str:
@@ -127,6 +177,7 @@ def format_description(description: dict) -> str:
             f"duration        {_readable(d['duration_s'], 's')}"
             f" (interval {_readable(d['frame_interval_s'], 's')})"
         )
+    lines.extend(_camera_lines(d))
     if d["pixel_size_m"] is not None:
         fov_rows, fov_cols = (
             registry().Quantity(v, "m").to("mm").magnitude for v in d["field_of_view_m"]

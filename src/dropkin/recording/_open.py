@@ -19,7 +19,9 @@ import numpy as np
 
 from ..errors import RecordingError
 from ._base import FileTiming, Recording
+from ._cine import CINE_SUFFIXES, open_cine
 from ._folder import FRAME_SUFFIXES, open_image_folder
+from ._mraw import MRAW_SUFFIXES, open_mraw
 from ._tiff import TIFF_SUFFIXES, open_tiff_stack
 from ._video import VIDEO_SUFFIXES, open_video
 
@@ -49,12 +51,14 @@ class FileFormat:
 FILE_FORMATS = (
     FileFormat("a TIFF stack", TIFF_SUFFIXES, open_tiff_stack),
     FileFormat("a video", VIDEO_SUFFIXES, open_video),
+    FileFormat("a .cine file", CINE_SUFFIXES, open_cine),
+    FileFormat("a .mraw recording with its .cih/.cihx header", MRAW_SUFFIXES, open_mraw),
 )
 
 #: Suffix (lower case) → the reader that opens a file with it.
 OPENERS = {suffix: form.opener for form in FILE_FORMATS for suffix in form.suffixes}
 
-#: Suffixes of the single files that are recordings (TIFF stacks and videos).
+#: Suffixes of the single files that are recordings (TIFF stacks, videos, camera files).
 RECORDING_SUFFIXES = tuple(OPENERS)
 
 NO_FRAME_RATE = "no frame rate: give recording.frame_rate in the experiment file or --frame-rate"
@@ -155,7 +159,7 @@ def open_recording(
     first_frame: int = 0,
     last_frame: int | None = None,
 ) -> Recording:
-    """Open a folder of frames, a TIFF stack or a video file as a :class:`Recording`.
+    """Open a folder of frames, a TIFF stack, a video or a camera file as a :class:`Recording`.
 
     Nothing is decoded beyond what is needed to check the recording: every
     frame file's header in a folder, the page structure of a TIFF file, the
@@ -165,12 +169,15 @@ def open_recording(
     ----------
     source : str or os.PathLike
         A folder of PNG, TIFF, BMP or JPEG frames (see ``FRAME_SUFFIXES``), a
-        multi-page TIFF file, or a video file (see ``VIDEO_SUFFIXES``).
+        multi-page TIFF file, a video file (see ``VIDEO_SUFFIXES``), a .cine
+        file, or a .mraw recording (its .mraw, .cih or .cihx file).
     frame_rate : float, optional
         Frames per second, in hertz. When given it is used, whatever the file
         says. When not, the file's own timing is used: per-frame OME ``DeltaT``
-        times, an OME ``TimeIncrement`` or an ImageJ ``finterval``. A video
-        container's frame rate is never used (it is a playback rate).
+        times, an OME ``TimeIncrement`` or an ImageJ ``finterval``; a camera
+        file's per-frame time stamps or its saved-frame rate (record rate over
+        save step). A video container's frame rate is never used (it is a
+        playback rate).
     frame_rate_origin : str, optional
         Where a given `frame_rate` came from, e.g. "experiment file" or
         "command line"; kept as ``Recording.frame_rate_origin``.
@@ -227,6 +234,7 @@ def _select(frames, path, rate, origin, pixel_size, first_frame, last_frame):
     if len(kept) != n:
         notes.append(f"frames {first} to {last} of {n} kept")
     timing = frames.timing
+    given_rate = rate
     if rate is not None:
         times = np.arange(len(kept)) / rate
         if timing is not None:
@@ -268,4 +276,21 @@ def _select(frames, path, rate, origin, pixel_size, first_frame, last_frame):
         pixel_size=pixel_size,
         indices=kept,
         notes=tuple(notes),
+        trigger_time=_trigger_time(frames, timing, given_rate, first),
     )
+
+
+def _trigger_time(frames, timing: FileTiming | None, given_rate, first: int) -> float | None:
+    """The trigger's instant on the recording's time axis (0 at frame `first`), or None.
+
+    With a given frame rate the trigger's frame is placed on that rate's axis;
+    otherwise the file's own trigger instant is moved to the axis of its times.
+    """
+    if given_rate is not None or timing is None or timing.trigger is None:
+        place = getattr(frames, "trigger_frame", None)
+        if given_rate is None or place is None:
+            return None
+        return (float(place) - first) / given_rate
+    if timing.times is not None:
+        return float(timing.trigger - timing.times[first])
+    return float(timing.trigger - first * timing.interval)

@@ -10,7 +10,8 @@ count from the first frame; ``since_contact_s`` is empty before contact (and
 everywhere when the contact instant is unknown); ``radius_m`` and
 ``radius_err_m`` are empty where a frame has no measurement. After them come
 the radii at the other edge levels (``radius_level_0.4_m``...; see
-:mod:`dropkin.series._csv`), empty where not measured.
+:mod:`dropkin.series._csv`), empty where not measured, and, for a recording
+whose camera header records its trigger, ``time_since_trigger_s``.
 """
 
 from __future__ import annotations
@@ -28,7 +29,7 @@ import numpy as np
 from .._atomic import write_text_atomic
 from ..errors import DropkinError
 from ..status import STATUSES
-from ._csv import CSV_COLUMNS, level_column, read_columns
+from ._csv import CSV_COLUMNS, TRIGGER_COLUMN, level_column, read_columns
 
 __all__ = [
     "STATUSES",
@@ -88,6 +89,10 @@ class RadiusSeries:
         outline lies, as ``details["edge_level"]`` for `radius`), by level,
         in increasing order; NaN where not measured. Their spread is the
         fit's systematic interval. Empty when only one level was measured.
+    trigger_time : float or None
+        The camera's trigger instant (s, same origin as `time`), when the
+        recording's header gives it; ``time - trigger_time`` is radius.csv's
+        ``time_since_trigger_s``.
     """
 
     frame: np.ndarray
@@ -106,6 +111,7 @@ class RadiusSeries:
     details: dict = field(default_factory=dict)
     angles: np.ndarray | None = None
     level_radii: Mapping = field(default_factory=dict)
+    trigger_time: float | None = None
 
     def __post_init__(self):
         n = len(self.frame)
@@ -154,12 +160,14 @@ _INFO_FIELDS = {
     "frame_rate_hz": "frame_rate",
     "pixel_size_m": "pixel_size",
 }
-_NOT_DETAILS = {*_INFO_FIELDS, "frames", "status_counts", "provenance"}
+_NOT_DETAILS = {*_INFO_FIELDS, "trigger_time_s", "frames", "status_counts", "provenance"}
 
 
 def series_to_dict(series: RadiusSeries) -> dict:
     """The content of ``measure.json`` (JSON-ready): all of the record but its columns."""
     fields = {key: getattr(series, name) for key, name in _INFO_FIELDS.items()}
+    if series.trigger_time is not None:  # only camera files have one
+        fields["trigger_time_s"] = series.trigger_time
     counts = {"frames": len(series), "status_counts": series.status_counts}
     return {**fields, **counts, **series.details, "provenance": series.provenance}
 
@@ -192,6 +200,10 @@ def series_from_dict(info: Mapping, columns: Mapping) -> RadiusSeries:
     if values["contact_time"] is None:
         values["contact_time"] = _contact_from_since(columns["time_s"], columns["since_contact_s"])
     details = {k: v for k, v in info.items() if k not in _NOT_DETAILS}
+    trigger = info.get("trigger_time_s")
+    since_trigger = columns.get(TRIGGER_COLUMN)
+    if trigger is None and since_trigger is not None and len(since_trigger):
+        trigger = float(columns["time_s"][0] - since_trigger[0])
     return RadiusSeries(
         frame=columns["frame"],
         time=columns["time_s"],
@@ -201,6 +213,7 @@ def series_from_dict(info: Mapping, columns: Mapping) -> RadiusSeries:
         provenance=dict(info.get("provenance") or {}),
         details=details,
         level_radii=dict(sorted((columns.get("level_radii") or {}).items())),
+        trigger_time=trigger,
         **values,
     )
 
@@ -219,13 +232,15 @@ def _csv_text(header, rows) -> str:
 
 def series_to_csv(series: RadiusSeries) -> str:
     """The text of ``radius.csv``: the columns of :data:`CSV_COLUMNS`, then the
-    radius at each other edge level."""
+    radius at each other edge level, then the time from the trigger (when known)."""
     columns = (series.time, series.since_contact, series.radius, series.radius_err)
     levels = sorted(series.level_radii)
     header = (*CSV_COLUMNS, *map(level_column, levels))
-    others = np.column_stack(
-        [series.level_radii[v] for v in levels] or [np.empty((len(series), 0))]
-    )
+    others = [series.level_radii[v] for v in levels]
+    if series.trigger_time is not None:
+        header += (TRIGGER_COLUMN,)
+        others.append(np.asarray(series.time, dtype=np.float64) - series.trigger_time)
+    others = np.column_stack(others or [np.empty((len(series), 0))])
     rows = zip(series.frame, *columns, series.status, others, strict=True)
     return _csv_text(
         header,

@@ -3,7 +3,9 @@
 The first columns are a contract (docs/architecture.md), in this order:
 :data:`CSV_COLUMNS`. After them come the radii at the other edge levels, one
 column per level, named by :func:`level_column` (``radius_level_0.4_m``);
-a file without them (written before they existed) still reads.
+a file without them (written before they existed) still reads. Last, for a
+camera file whose header records its trigger, :data:`TRIGGER_COLUMN`: each
+frame's time from the trigger (s, negative before it).
 """
 
 from __future__ import annotations
@@ -19,9 +21,12 @@ import numpy as np
 from ..errors import DropkinError
 from ..status import STATUSES
 
-__all__ = ["CSV_COLUMNS", "level_column", "level_of_column", "read_columns"]
+__all__ = ["CSV_COLUMNS", "TRIGGER_COLUMN", "level_column", "level_of_column", "read_columns"]
 
 CSV_COLUMNS = ("frame", "time_s", "since_contact_s", "radius_m", "radius_err_m", "status")
+
+#: The optional last column: time from the camera's trigger (s).
+TRIGGER_COLUMN = "time_since_trigger_s"
 
 _LEVEL_COLUMN = re.compile(r"radius_level_([0-9]*\.?[0-9]+)_m")
 
@@ -61,7 +66,7 @@ def _parse_float(text: str, *, path, line: int, column: str) -> float:
         raise DropkinError(
             f"line {line}: {column} is NaN", path=path, value=text, expected="a number, or nothing"
         )
-    if value < 0 and column != "time_s":
+    if value < 0 and column not in ("time_s", TRIGGER_COLUMN):
         raise DropkinError(f"line {line}: {column} is negative", path=path, value=text)
     return value
 
@@ -105,16 +110,18 @@ def _parse_row(row: list, previous: dict | None, *, path, line: int, width: int)
     return values
 
 
-def _header_levels(header, *, path) -> list[float]:
-    """The edge levels of the columns after :data:`CSV_COLUMNS` in a header."""
+def _header_levels(header, *, path) -> tuple[list[float], bool]:
+    """The edge levels of the columns after :data:`CSV_COLUMNS` in a header, and
+    whether :data:`TRIGGER_COLUMN` ends it."""
     names = tuple(c.strip() for c in header)
-    expected = ",".join(CSV_COLUMNS) + "[,radius_level_<level>_m ...]"
+    expected = ",".join(CSV_COLUMNS) + f"[,radius_level_<level>_m ...][,{TRIGGER_COLUMN}]"
     if names[: len(CSV_COLUMNS)] != CSV_COLUMNS:
         raise DropkinError("has other columns than a radius series", path=path, expected=expected)
-    levels = [level_of_column(name) for name in names[len(CSV_COLUMNS) :]]
+    trigger = len(names) > len(CSV_COLUMNS) and names[-1] == TRIGGER_COLUMN
+    levels = [level_of_column(name) for name in names[len(CSV_COLUMNS) : len(names) - trigger]]
     if None in levels or len(set(levels)) != len(levels):
         raise DropkinError("has other columns than a radius series", path=path, expected=expected)
-    return levels
+    return levels, trigger
 
 
 def read_columns(path: Path) -> dict:
@@ -124,7 +131,8 @@ def read_columns(path: Path) -> dict:
     -------
     dict
         Arrays by the names of :data:`CSV_COLUMNS`, and ``level_radii``: the
-        radii (m) at the other edge levels by level (empty without them).
+        radii (m) at the other edge levels by level (empty without them),
+        and :data:`TRIGGER_COLUMN` when the file has it.
     """
     try:
         text = path.read_text(encoding="utf-8")
@@ -135,22 +143,25 @@ def read_columns(path: Path) -> dict:
         raise DropkinError(
             "is empty", path=path, expected="a header line " + ",".join(CSV_COLUMNS)
         )
-    levels = _header_levels(rows[0], path=path)
-    width = len(CSV_COLUMNS) + len(levels)
+    levels, trigger = _header_levels(rows[0], path=path)
+    width = len(CSV_COLUMNS) + len(levels) + trigger
     parsed, extra, previous = [], [], None
     for line, row in enumerate(rows[1:], start=2):
         if row:
             previous = _parse_row(row, previous, path=path, line=line, width=width)
             parsed.append(previous)
+            names = [*map(level_column, levels), *[TRIGGER_COLUMN] * trigger]
             extra.append(
                 [
-                    _parse_float(text, path=path, line=line, column=level_column(level))
-                    for level, text in zip(levels, row[len(CSV_COLUMNS) :], strict=True)
+                    _parse_float(text, path=path, line=line, column=name)
+                    for name, text in zip(names, row[len(CSV_COLUMNS) :], strict=True)
                 ]
             )
     out = {c: np.asarray([v[c] for v in parsed], dtype=np.float64) for c in CSV_COLUMNS[1:5]}
     out["frame"] = np.asarray([v["frame"] for v in parsed], dtype=np.int64)
     out["status"] = tuple(v["status"] for v in parsed)
-    values = np.asarray(extra, dtype=np.float64).reshape(len(parsed), len(levels))
+    values = np.asarray(extra, dtype=np.float64).reshape(len(parsed), len(levels) + trigger)
     out["level_radii"] = {level: values[:, i] for i, level in enumerate(levels)}
+    if trigger:
+        out[TRIGGER_COLUMN] = values[:, -1]
     return out
