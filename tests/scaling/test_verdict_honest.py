@@ -225,12 +225,19 @@ def test_no_initial_radius_is_kept_on_a_pure_power_law():
 
 
 def test_a_bend_read_as_the_same_regime_twice_is_warned_about():
-    # The series with a finite initial radius (r0 = 8 µm, as above) fitted without r0:
-    # two regimes beat one, but both sides are inertial. The warning says the bend is
-    # no change of regime; the clean power law does not raise it.
+    # The series with a finite initial radius fitted without r0. With r0 = 8 µm (as
+    # above) the best two-regime fit, a broken power law, changes the exponent by less
+    # than 0.01: since issue 14 that is one law (docs/physics.md §4.8, a change of
+    # exponent above 0.04 is needed), and the verdict says why. With r0 = 40 µm two
+    # regimes beat one and both sides name the same regime: the warning says the bend
+    # is no change of regime. The clean power law raises neither.
     t, r, err, status, bracket, _ = series(seed=5, shape=lambda x: 8e-6 + 1.2 * G * x**0.5)
+    small = run(t, r, err, status, bracket)
+    assert not small.two_regime and small.regimes == ("inertial",)
+    assert "a bend within one law" in small.model_reason
+    t, r, err, status, bracket, _ = series(seed=5, shape=lambda x: 4e-5 + 1.2 * G * x**0.5)
     bent = run(t, r, err, status, bracket)
-    assert bent.two_regime and bent.regimes == ("inertial", "inertial")
+    assert bent.two_regime and bent.regimes[0] == bent.regimes[1]
     assert "same-regime-sides" in codes(bent)
     t, r, err, status, bracket, _ = series(seed=6)
     assert "same-regime-sides" not in codes(run(t, r, err, status, bracket))

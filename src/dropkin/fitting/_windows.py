@@ -11,7 +11,11 @@ clearly: the best two-regime model must have an AIC (Akaike's, with the
 noise scale estimated: ``N ln(χ²/N) + 2k``) more than :data:`AIC_THRESHOLD`
 = 10 below the best one-regime model (a power law with n free, or any
 catalogue law, the log law included), and its crossover must leave at least
-a third of a decade and :data:`MIN_POINTS` points on each side. The
+a third of a decade and :data:`MIN_POINTS` points on each side. A model
+whose exponents are fitted (not a pair of catalogue laws) must also change
+the exponent by more than :data:`MIN_EXPONENT_CHANGE`: a smaller bend (a
+neck slowing as it nears the drop size, a contact instant slightly off) is
+one law within the tolerance the verdict allows it, not two regimes. The
 two-regime models are a harmonic blend with free exponents and a broken
 power law; when they gain more than 5, also the harmonic blends of every
 ordered pair of catalogue laws whose exponents change the way the data's
@@ -46,7 +50,13 @@ from ._local import LocalExponent
 from ._records import BlendFit, LawFit
 from ._two_laws import blend_fit
 
-__all__ = ["AIC_THRESHOLD", "EXPONENT_TOLERANCE", "ModelScore", "consistent_window"]
+__all__ = [
+    "AIC_THRESHOLD",
+    "EXPONENT_TOLERANCE",
+    "MIN_EXPONENT_CHANGE",
+    "ModelScore",
+    "consistent_window",
+]
 
 #: Allowance added to each side of a local-exponent band (and, by the verdict,
 #: of a fitted exponent interval): the accuracy asked of a fitted exponent.
@@ -54,6 +64,10 @@ EXPONENT_TOLERANCE = 0.02
 
 #: A two-regime model is kept only when its AIC is this much below the best one-regime model.
 AIC_THRESHOLD = 10.0
+#: A two-regime model with fitted exponents counts only when they differ by more than this:
+#: twice the tolerance, so that no single exponent lies within the tolerance of both sides
+#: (one law would then pass check (a) on each side, and the verdict could not call them two).
+MIN_EXPONENT_CHANGE = 2.0 * EXPONENT_TOLERANCE
 #: The free two-regime models must already gain this much before catalogue pairs are tried.
 _PAIR_GATE = 5.0
 
@@ -198,6 +212,29 @@ def sides_ok(data: Series, fit: BlendFit) -> bool:
     )
 
 
+def exponents_differ(fit: BlendFit) -> bool:
+    """Whether a two-regime fit changes the exponent by more than :data:`MIN_EXPONENT_CHANGE`.
+
+    Always true for a blend of two catalogue laws (their exponents are the laws').
+    """
+    if fit.exponents_fixed:
+        return True
+    return bool(abs(fit.early_exponent - fit.late_exponent) > MIN_EXPONENT_CHANGE)
+
+
+def _no_two_reason(two, data) -> str:
+    """Why no two-regime model was kept although some were fitted."""
+    bends = [m for m in two if sides_ok(data, m.fit) and not exponents_differ(m.fit)]
+    if not bends:
+        return "no two-regime model with a crossover inside the data"
+    best = min(bends, key=lambda m: m.aic)
+    change = abs(best.fit.early_exponent - best.fit.late_exponent)
+    return (
+        f"the best two-regime fit inside the data ({best.name}) changes the exponent by "
+        f"only {change:.3f} (≤ {MIN_EXPONENT_CHANGE:g}): a bend within one law, not two regimes"
+    )
+
+
 def curvature_direction(data: Series, t0) -> int:
     """-1 if ``ln r`` bends down against ``ln τ`` (a weighted quadratic polyfit), else +1."""
     x = np.log(data.time - t0)
@@ -310,14 +347,13 @@ def search_crossover(
             data, shapes, lo, hi, start, direction
         )
         two += tried
-    inside = [m for m in two if sides_ok(data, m.fit)]
+    inside = [m for m in two if sides_ok(data, m.fit) and exponents_differ(m.fit)]
     best_two = _best(inside)
     models += two
     found = {"models": tuple(models), "pairs": pairs, "context": context,
              "context_fit": context_fit, "direction": direction}  # fmt: skip
     if best_two is None:
-        reason = "no two-regime model with a crossover inside the data"
-        return CrossoverSearch(reason=reason, **found, **one, **none)
+        return CrossoverSearch(reason=_no_two_reason(two, data), **found, **one, **none)
     delta = best_single.aic - best_two.aic
     keep = delta > AIC_THRESHOLD
     reason = (
