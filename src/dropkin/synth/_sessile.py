@@ -64,7 +64,7 @@ class SessileCoalescence:
     drop_radius : float
         Radius a of each drop's footprint, metres.
     contact_angle_deg : float
-        The caps' contact angle theta, degrees (between 5 and 150).
+        The caps' contact angle theta, degrees (between 5 and 90).
     substrate_row_px : float or None
         Row of the plate surface (side view), on a pixel edge; None for 70 %
         down the frame.
@@ -93,9 +93,10 @@ class SessileCoalescence:
 
     def __post_init__(self):
         angle = self.contact_angle_deg
-        if not (math.isfinite(angle) and 5.0 <= angle <= 150.0):
+        # Above 90 degrees the caps' bulges would meet before their footprints.
+        if not (math.isfinite(angle) and 5.0 <= angle <= 90.0):
             raise ExperimentError(
-                "must lie between 5 and 150 degrees", key="contact_angle_deg", value=angle
+                "must lie between 5 and 90 degrees", key="contact_angle_deg", value=angle
             )
         if not 0.0 <= self.reflectivity < 1.0:
             raise ExperimentError("must lie in 0..1", key="reflectivity", value=self.reflectivity)
