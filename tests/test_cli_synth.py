@@ -103,7 +103,7 @@ def test_bad_quantity_is_a_usage_error(tmp_path):
     assert result.exit_code == 2
     lines = _one_line_error(result)
     assert lines[-1].startswith("Error: Invalid value for '--frame-rate'")
-    assert "has the dimension [length], not that of Hz" in lines[-1]
+    assert "has the dimension of a length, not of a rate like Hz" in lines[-1]
 
 
 def test_bad_size_is_a_usage_error(tmp_path):
