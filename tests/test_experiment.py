@@ -223,3 +223,21 @@ def test_deeply_nested_toml_is_one_line_naming_the_file(tmp_path, name, command)
     lines = done.stderr.strip().splitlines()
     assert done.returncode == 1, done.stderr
     assert len(lines) == 1 and name in lines[0] and "nested too deeply" in lines[0]
+
+
+def test_sessile_geometry_and_contact_angle_read_and_written_back():
+    from dropkin.experiment import experiment_from_toml, experiment_to_toml
+
+    text = '[setup]\ngeometry = "sessile-coalescence"\n[drops]\ncontact_angle = "40 deg"\n'
+    exp = experiment_from_toml(text)
+    assert exp.setup.geometry == "sessile-coalescence"
+    assert exp.drops.contact_angle == pytest.approx(math.radians(40.0))
+    assert experiment_from_toml(experiment_to_toml(exp)) == exp
+
+
+@pytest.mark.parametrize("value", ["40", '"40"', '"200 deg"', '"0 rad"', '"40 m"'])
+def test_contact_angle_without_unit_or_out_of_range_is_refused(value):
+    from dropkin.experiment import experiment_from_toml
+
+    with pytest.raises(ExperimentError, match="drops.contact_angle"):
+        experiment_from_toml(f"[drops]\ncontact_angle = {value}\n")

@@ -16,6 +16,7 @@ Examples
 from __future__ import annotations
 
 import math
+import re
 from dataclasses import dataclass
 from numbers import Real
 
@@ -37,7 +38,7 @@ __all__ = [
     "convert",
 ]
 
-GEOMETRIES = ("coalescence", "spreading")
+GEOMETRIES = ("coalescence", "sessile-coalescence", "spreading")
 VIEWS = ("side", "bottom")
 
 
@@ -70,7 +71,8 @@ class Setup:
     Attributes
     ----------
     geometry : str or None
-        ``"coalescence"`` or ``"spreading"``; None when not stated.
+        ``"coalescence"`` (free drops), ``"sessile-coalescence"`` (two drops
+        on a plate) or ``"spreading"``; None when not stated.
     view : str
         ``"side"`` or ``"bottom"``.
     """
@@ -109,15 +111,21 @@ class Fluid:
 
 @dataclass(frozen=True)
 class Drops:
-    """The drops' size.
+    """The drops' size and, on a plate, their contact angle.
 
     Attributes
     ----------
     radius : float or None
         Drop radius (m); None means it is to be measured from the frames.
+        For drops on a plate, the radius of the caps' footprint.
+    contact_angle : float or None
+        The drops' contact angle on the plate (rad, between 0 and pi), for
+        sessile coalescence; written in the file as ``"40 deg"`` or
+        ``"0.7 rad"``.
     """
 
     radius: float | None = None
+    contact_angle: float | None = None
 
 
 #: The values an ``[uncertainty]`` section may qualify, and the key each stands for.
@@ -185,7 +193,7 @@ SCHEMA: dict[str, tuple[type, dict[str, tuple]]] = {
             "density": ("quantity", "kg/m^3"),
         },
     ),
-    "drops": (Drops, {"radius": ("quantity", "m")}),
+    "drops": (Drops, {"radius": ("quantity", "m"), "contact_angle": ("quantity", "rad")}),
 }
 SCHEMA["medium"] = SCHEMA["liquid"]
 SCHEMA["uncertainty"] = (Uncertainty, {name: ("relative",) for name in UNCERTAIN_VALUES})
@@ -197,10 +205,15 @@ def known(names) -> str:
 
 
 def check_number(value: float, kind: tuple, *, key: str, path) -> float:
-    """Check an SI magnitude: finite and strictly positive (all dropkin's are)."""
+    """Check an SI magnitude: finite and strictly positive (all dropkin's are);
+    an angle also below 180 degrees."""
     unit = kind[1]
     if not math.isfinite(value):
         raise ExperimentError("is not a finite number", key=key, value=value, path=path)
+    if unit == "rad" and not 0 < value < math.pi:
+        raise ExperimentError(
+            "must lie between 0 and 180 degrees", key=key, value=value, path=path
+        )
     if value <= 0:
         raise ExperimentError(
             "must be positive",
@@ -212,10 +225,39 @@ def check_number(value: float, kind: tuple, *, key: str, path) -> float:
     return value
 
 
+#: An angle as the file writes it: a number and deg, degrees, ° or rad.
+_ANGLE = re.compile(
+    r"^\s*([-+]?(?:\d+\.?\d*|\.\d+)(?:[eE][-+]?\d+)?)\s*(deg|degrees?|°|rad|radians?)\s*$"
+)
+
+
+def _angle(value, *, key: str, path) -> float:
+    """An angle in radians from ``"40 deg"``, ``"40°"`` or ``"0.7 rad"``; a
+    bare number is refused (degrees or radians would be a guess)."""
+    match = _ANGLE.match(value) if isinstance(value, str) else None
+    if match is None:
+        raise ExperimentError(
+            "is not an angle with its unit",
+            key=key,
+            value=value,
+            path=path,
+            expected="e.g. '40 deg' or '0.7 rad'",
+        )
+    number = float(match.group(1))
+    return number if match.group(2).startswith("rad") else math.radians(number)
+
+
 def convert(value, kind: tuple, *, key: str, path):
     """Turn one value of the file into its SI form, or raise naming the key."""
     what = kind[0]
     if what == "quantity":
+        if kind[1] == "rad":
+            angle = _angle(value, key=key, path=path)
+            if not 0 < angle < math.pi:
+                raise ExperimentError(
+                    "must lie between 0 and 180 degrees", key=key, value=value, path=path
+                )
+            return angle
         si = parse_si(value, kind[1], key=key, path=path)
         return check_number(si, kind, key=key, path=path)
     if what == "choice":

@@ -340,10 +340,12 @@ def experiment_cases():
         about="a geometry dropkin does not know",
     )
     _experiment(
-        "geometry_not_in_files",
-        _replace('geometry = "coalescence"', 'geometry = "sessile-coalescence"'),
-        words=["setup.geometry", "sessile-coalescence"],
-        about="a geometry that `dropkin predict --geometry` knows but experiment files do not",
+        "contact_angle_bare",
+        _replace('geometry = "coalescence"', 'geometry = "sessile-coalescence"').replace(
+            'radius = "1 mm"', 'radius = "1 mm"\ncontact_angle = 40'
+        ),
+        words=["drops.contact_angle", "40"],
+        about="sessile drops whose contact angle has no unit (degrees or radians?)",
     )
     _experiment(
         "view_unknown",

@@ -28,7 +28,7 @@ def test_samples_are_small():
     assert total < 6e6
 
 
-@pytest.mark.parametrize("name", ["viscous_pair", "fast_pair", "spreading_drop"])
+@pytest.mark.parametrize("name", ["viscous_pair", "fast_pair", "spreading_drop", "sessile_pair"])
 def test_sample_truth_matches_the_script(name):
     build, target = _script().SAMPLES[name]
     recording = build()  # describes the recording and computes its truth; renders nothing

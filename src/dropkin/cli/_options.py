@@ -105,7 +105,7 @@ def experiment_options(command):
         click.option("--pixel-size", type=positive("m"), help='Length of one pixel, e.g. "5 um".'),
         click.option(
             "--geometry",
-            type=click.Choice(["coalescence", "spreading"]),
+            type=click.Choice(["coalescence", "sessile-coalescence", "spreading"]),
             help="What was filmed.",
         ),
         click.option("--view", type=click.Choice(["side", "bottom"]), help="Camera view."),

@@ -153,7 +153,7 @@ def _geometry_and_pixel(recording, experiment):
             "is needed to measure",
             key="setup.geometry",
             path=experiment.path,
-            expected="coalescence or spreading",
+            expected="coalescence, sessile-coalescence or spreading",
         )
     pixel = recording.pixel_size or experiment.recording.pixel_size
     if pixel is None:
@@ -191,6 +191,8 @@ def _collect(recording, prep: Preparation, options, progress) -> _PixelFrames:
 
 
 def _drop_radii_px(prep) -> np.ndarray:
+    if prep.sessile is not None:
+        return prep.sessile.radii
     if prep.spreading is not None:
         return np.array([prep.spreading.drop_radius])
     return np.asarray(prep.pair.radii, dtype=np.float64)
@@ -206,6 +208,11 @@ def _drop_radius(experiment, prep, pixel: float) -> float:
 
 def _unresolved_criterion(prep, options) -> str:
     limit = f"{options.gap_blurs:g} edge blurs ({options.gap_blurs * prep.blur:.3g} px)"
+    if prep.sessile is not None:
+        return (
+            f"notch beside the bridge, 2 rho = h (h + 2c) / (R_s - c - h), narrower than {limit},"
+            " or the bridge lower than half of that"
+        )
     if prep.spreading is not None:
         if prep.spreading.view == "bottom":
             return "not used in bottom view (the wetted disc is seen directly)"

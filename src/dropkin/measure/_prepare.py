@@ -33,6 +33,8 @@ class Preparation:
         The drops (coalescence).
     spreading : SpreadingSetup or None
         The drop and the substrate (spreading).
+    sessile : SessilePair or None
+        The two drops on the plate (sessile coalescence, side view).
     reference_frame : int
         Index (in the recording) of the frame they were found in.
     """
@@ -44,6 +46,7 @@ class Preparation:
     pair: object | None
     reference_frame: int
     spreading: object | None = None
+    sessile: object | None = None
 
 
 def _noise(trans) -> float:
@@ -91,6 +94,8 @@ def prepare(
         try:
             if geometry == "spreading":
                 return _prepare_spreading(frame, trans, illumination, dark, index, view, options)
+            if geometry == "sessile-coalescence" and view == "side":
+                return _prepare_sessile(frame, trans, illumination, dark, index, options)
             pair = vision.find_drop_pair(trans, level=options.level)
         except MeasurementError as exc:
             reason = exc.message
@@ -100,6 +105,17 @@ def prepare(
     raise MeasurementError(
         f"the drops were not found in the first frames ({reason})", path=recording.path
     )
+
+
+def _prepare_sessile(frame, trans, illumination, dark, index, options):
+    """The plate and the two caps; the backlight refitted away from a mirror image."""
+    pair = vision.find_sessile_pair(trans, level=options.level)
+    if options.background is None:
+        mask = vision.sessile_background_mask(frame.shape, pair)
+        illumination = vision.fit_illumination(frame, background=mask)
+        trans = vision.transmission(frame, illumination, dark)
+        pair = vision.find_sessile_pair(trans, level=options.level)
+    return Preparation(illumination, dark, _noise(trans), pair.blur, None, index, sessile=pair)
 
 
 def _prepare_spreading(frame, trans, illumination, dark, index, view, options):

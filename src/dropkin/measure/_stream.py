@@ -46,6 +46,17 @@ def _measure_chunk(bounds):
 
 def _chunk_result(frames, prep, options, cache, hint=None):
     """The NeckResult or ContactLineResult of a chunk of (cropped) frames."""
+    if prep.sessile is not None:
+        return vision.measure_bridges(
+            frames,
+            prep.sessile,
+            illumination=prep.illumination,
+            dark=prep.dark,
+            noise=prep.noise,
+            level=options.level,
+            gap_blurs=options.gap_blurs,
+            levels=options.other_levels,
+        )
     if prep.spreading is not None:
         return vision.measure_contact_lines(
             frames,

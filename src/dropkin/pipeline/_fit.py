@@ -19,7 +19,7 @@ from types import MappingProxyType
 
 from ..contact import frames_bracket
 from ..errors import DropkinError, ExperimentError
-from ..experiment import Drops, Experiment, load_experiment, read_experiment
+from ..experiment import Experiment, load_experiment, read_experiment
 from ..series import RadiusSeries, read_series
 
 __all__ = ["Measurement", "check_sample", "sample_of", "load_measurement", "fit_measurement"]
@@ -78,7 +78,7 @@ def check_sample(experiment: Experiment) -> Experiment:
     full = resolve_fluids(experiment)
     probe = full
     if probe.drops.radius is None:
-        probe = replace(probe, drops=Drops(radius=1.0))  # any size: measured later
+        probe = replace(probe, drops=replace(probe.drops, radius=1.0))  # any size: measured later
     sample_numbers_from_experiment(probe)
     return full
 
@@ -90,7 +90,9 @@ def sample_of(experiment: Experiment, series: RadiusSeries) -> Experiment:
     experiment has none.
     """
     if experiment.drops.radius is None and series.drop_radius:
-        experiment = replace(experiment, drops=Drops(radius=float(series.drop_radius)))
+        experiment = replace(
+            experiment, drops=replace(experiment.drops, radius=float(series.drop_radius))
+        )
     if experiment.setup.geometry is None and series.geometry:
         experiment = experiment.with_overrides({"setup.geometry": series.geometry})
     return experiment
@@ -165,7 +167,7 @@ def fit_measurement(
     from ..scaling import analyze_series, sample_numbers_from_experiment
 
     exp = measurement.experiment
-    numbers = sample_numbers_from_experiment(exp)
+    numbers = sample_numbers_from_experiment(exp, contact_angle=exp.drops.contact_angle)
     series = measurement.series
     contact = series.contact_time  # from measure.json, or else since_contact_s
     if contact is None and t0 is None:

@@ -95,7 +95,11 @@ def write_overlays(recording, series, extras, out_dir, *, count: int = 6) -> lis
         shifted = [c + np.array([[[int(offset[1]), int(offset[0])]]]) for c in contours]
         cv2.drawContours(image, shifted, -1, _OUTLINE, 1, cv2.LINE_AA)
         setup = prep.spreading
-        circles = [setup.drop] if setup is not None else list(pair.circles)
+        sessile = getattr(prep, "sessile", None)
+        if sessile is not None:
+            circles = list(sessile.caps)
+        else:
+            circles = [setup.drop] if setup is not None else list(pair.circles)
         for circle in circles:
             centre, radius = pt(circle.centre + offset), int(round(circle.radius * scale))
             cv2.circle(image, centre, radius, _FIT, 1, cv2.LINE_AA, shift)
@@ -113,6 +117,13 @@ def write_overlays(recording, series, extras, out_dir, *, count: int = 6) -> lis
                     cv2.LINE_AA,
                     shift,
                 )
+        elif sessile is not None:
+            # The plate line, across the frame.
+            cols = image.shape[1] - 1 - offset[1]
+            ends = [(sessile.line.rows(c), c) for c in (-offset[1], cols)]
+            cv2.line(
+                image, pt(ends[0] + offset), pt(ends[1] + offset), _AXIS, 1, cv2.LINE_AA, shift
+            )
         else:
             c0, c1 = (c.centre + offset for c in pair.circles)
             cv2.line(image, pt(c0), pt(c1), _AXIS, 1, cv2.LINE_AA, shift)

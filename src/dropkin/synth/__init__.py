@@ -62,6 +62,9 @@ from ._scenes import WettedDiscScene as WettedDiscScene
 from ._scenes import bridge_fillet as bridge_fillet
 from ._scenes import cap_height as cap_height
 from ._scenes import cap_sphere as cap_sphere
+from ._sessile import SessileCoalescence as SessileCoalescence
+from ._sessile import SessileScene as SessileScene
+from ._sessile import sessile_law as sessile_law
 from ._setups import Camera as Camera
 from ._setups import Coalescence as Coalescence
 from ._setups import Spreading as Spreading
@@ -93,6 +96,9 @@ __all__ = [
     "Camera",
     "Coalescence",
     "Spreading",
+    "SessileCoalescence",
+    "SessileScene",
+    "sessile_law",
     "Optics",
     "Sensor",
     "Truth",

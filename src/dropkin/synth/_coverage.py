@@ -269,7 +269,7 @@ def render_opacity(scene, shape):
 
     Parameters
     ----------
-    scene : PairScene, CapScene or WettedDiscScene
+    scene : PairScene, CapScene, WettedDiscScene or SessileScene
     shape : tuple of int
         (M, N) of the frame.
 
@@ -287,4 +287,8 @@ def render_opacity(scene, shape):
         return _cap_opacity(scene, shape)
     if isinstance(scene, WettedDiscScene):
         return _wetted_opacity(scene, shape)
+    from ._sessile import SessileScene, sessile_opacity
+
+    if isinstance(scene, SessileScene):
+        return sessile_opacity(scene, shape)
     raise TypeError(f"not a scene: {type(scene).__name__}")

@@ -45,6 +45,9 @@ class Truth:
     contact_time, contact_frame : float
         The contact instant in seconds and in frames (possibly fractional).
     law : RadiusLaw
+    bridge : dict
+        Sessile coalescence: ``height`` and ``width`` (K,) of the bridge,
+        metres (``radius`` is the one the view shows); empty otherwise.
     """
 
     frame_times: np.ndarray
@@ -54,6 +57,7 @@ class Truth:
     contact_time: float
     contact_frame: float
     law: RadiusLaw = field(repr=False)
+    bridge: dict = field(default_factory=dict, repr=False)
 
 
 def _truth(setup, law: RadiusLaw, camera: Camera, frames: int, contact_frame: float) -> Truth:
@@ -96,9 +100,15 @@ def _truth(setup, law: RadiusLaw, camera: Camera, frames: int, contact_frame: fl
                 frame=int(bad[0]),
                 expected="fewer frames or a higher frame rate",
             )
+    bridge = {}
+    if setup.geometry == "sessile-coalescence":
+        # The law gives the bridge height; the view shows the height or the width.
+        setup.check_heights(radius)
+        bridge = {"height": radius, "width": setup.bridge_width(radius)}
+        radius = setup.observed(radius)
     speed = setup.approach_speed or 0.5 * camera.pixel_size * camera.frame_rate
     gap = np.where(since < 0, -since * speed, 0.0)
-    return Truth(times, since, radius, gap, contact_time, float(contact_frame), law)
+    return Truth(times, since, radius, gap, contact_time, float(contact_frame), law, bridge)
 
 
 @dataclass(frozen=True, eq=False)
@@ -132,8 +142,10 @@ class SyntheticRecording:
         return len(self.truth.frame_times)
 
     def scene(self, index: int):
-        """The scene of frame `index` (a PairScene, CapScene or WettedDiscScene)."""
+        """The scene of frame `index` (a PairScene, CapScene, WettedDiscScene or SessileScene)."""
         radius, gap = float(self.truth.radius[index]), float(self.truth.gap[index])
+        if self.truth.bridge:
+            radius = float(self.truth.bridge["height"][index])
         return scene_at(self.setup, self.camera, radius, gap)
 
     def iter_frames(self) -> Iterator[np.ndarray]:

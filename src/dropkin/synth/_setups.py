@@ -175,11 +175,15 @@ def check_setup(setup, camera: Camera) -> None:
 def scene_at(setup: Coalescence | Spreading, camera: Camera, radius: float, gap: float):
     """The scene of one instant: a PairScene, CapScene or WettedDiscScene.
 
-    `radius` is the neck or contact radius and `gap` the distance before
-    contact, both in metres.
+    `radius` is the neck or contact radius (the bridge height for sessile
+    drops) and `gap` the distance before contact, both in metres.
     """
     if setup.geometry == "coalescence":
         return _pair_scene(setup, camera, radius, gap)
+    if setup.geometry == "sessile-coalescence":
+        from ._sessile import sessile_scene_at
+
+        return sessile_scene_at(setup, camera, radius, gap)
     return _spreading_scene(setup, camera, radius, gap)
 
 

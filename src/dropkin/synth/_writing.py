@@ -117,7 +117,10 @@ def experiment_toml(recording: SyntheticRecording) -> str:
     ]
     if len(set(setup.radii)) > 1:
         lines.append("# 2 R1 R2 / (R1 + R2) of the two drop radii (see truth.json)")
-    lines += [f'radius = "{_num(setup.effective_radius * 1e3)} mm"', ""]
+    lines += [f'radius = "{_num(setup.effective_radius * 1e3)} mm"']
+    if setup.geometry == "sessile-coalescence":
+        lines.append(f'contact_angle = "{_num(setup.contact_angle_deg)} deg"')
+    lines.append("")
     return "\n".join(lines)
 
 
@@ -134,6 +137,8 @@ def truth_record(recording: SyntheticRecording) -> dict:
         ar, ac = first.axis()
         scene["contact_px"] = [first.centre_1_px[0] + r1 * ar, first.centre_1_px[1] + r1 * ac]
         scene["needle_width_m"] = setup.needle_width
+    elif setup.geometry == "sessile-coalescence":
+        scene.update(_sessile_scene(recording))
     else:
         first = recording.scene(0)
         if setup.view == "side":
@@ -142,7 +147,11 @@ def truth_record(recording: SyntheticRecording) -> dict:
             scene["reflectivity"] = setup.reflectivity
         else:
             scene["centre_px"] = list(first.centre_px)
-    quantity = "neck radius" if setup.geometry == "coalescence" else "contact radius"
+    quantity = {
+        "coalescence": "neck radius",
+        "sessile-coalescence": f"bridge {'height' if setup.view == 'side' else 'half-width'}",
+    }.get(setup.geometry, "contact radius")
+    bridge = {f"bridge_{key}_m": values.tolist() for key, values in truth.bridge.items()}
     return {
         "description": f"synthetic recording; radius_m is the true {quantity}",
         "dropkin_version": __version__,
@@ -183,7 +192,19 @@ def truth_record(recording: SyntheticRecording) -> dict:
         "radius_m": truth.radius.tolist(),
         "radius_px": (truth.radius / px).tolist(),
         "gap_m": truth.gap.tolist(),
+        **bridge,
     }
+
+
+def _sessile_scene(recording: SyntheticRecording) -> dict:
+    """The truth file's scene block of sessile drops."""
+    setup, first = recording.setup, recording.scene(0)
+    scene = {"contact_angle_deg": setup.contact_angle_deg, "reflectivity": setup.reflectivity}
+    if setup.view == "side":
+        scene["substrate_row_px"] = first.substrate_row_px
+        scene["axis_col_px"] = first.centre_col_px
+        scene["sphere_radius_px"] = first.sphere_radius_px
+    return scene
 
 
 def _resolve(out: Path, fmt: str | None) -> str:

@@ -15,6 +15,10 @@ from ..status import UNRESOLVED as UNRESOLVED
 from ._band import Band as Band
 from ._band import make_band as make_band
 from ._band import sample_band as sample_band
+from ._bridge import SessilePair as SessilePair
+from ._bridge import find_sessile_pair as find_sessile_pair
+from ._bridge import sessile_background_mask as sessile_background_mask
+from ._bridge_chunk import measure_bridges as measure_bridges
 from ._circle import CircleFit as CircleFit
 from ._circle import fit_circle as fit_circle
 from ._neck import NeckResult as NeckResult
@@ -44,6 +48,10 @@ __all__ = [
     "STATUS_NAMES",
     "UNRESOLVED",
     "Band",
+    "SessilePair",
+    "find_sessile_pair",
+    "measure_bridges",
+    "sessile_background_mask",
     "CircleFit",
     "ContactLineResult",
     "SpreadingSetup",

@@ -94,7 +94,8 @@ def predict_sample(
         ``coalescence``, ``sessile-coalescence`` or ``spreading``; default the
         experiment's, else ``coalescence`` (with a note saying so).
     contact_angle : float, optional
-        Contact angle on the substrate, degrees.
+        Contact angle on the substrate, degrees; default the experiment
+        file's ``drops.contact_angle``.
     user_library : LiquidLibrary or path, optional
         The user's liquid library, searched before the built-in liquids.
 
@@ -113,7 +114,7 @@ def predict_sample(
         geometry = exp.setup.geometry or "coalescence"
         if exp.setup.geometry is None:
             notes.append("geometry not given: coalescence assumed")
-    angle = None if contact_angle is None else math.radians(contact_angle)
+    angle = exp.drops.contact_angle if contact_angle is None else math.radians(contact_angle)
     numbers = sample_numbers_from_experiment(full, contact_angle=angle)
     prediction = predict(
         numbers,
