@@ -64,7 +64,8 @@ def _guides(verdict):
 
 
 def _entry(head: str, names) -> str:
-    return textwrap.fill(f"{head}: {', '.join(names)}", _WRAP, subsequent_indent="  ")
+    text = f"{head}: {', '.join(names)}"
+    return textwrap.fill(text, _WRAP, subsequent_indent="  ", break_on_hyphens=False)
 
 
 def _draw_guides(ax, verdict, t, speed, drop_radius):

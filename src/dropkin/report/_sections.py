@@ -74,6 +74,61 @@ _STATUS_MEANING = {
 }
 
 
+#: The symbols and codes of the report; "(b)" is filled in with the verdict's band.
+_TERMS = (
+    ("τ", "time since the contact instant, τ = t − t₀ (t from the first frame)"),
+    ("t₀", "the contact instant fitted with the laws inside its bracket (or fixed by --t0)"),
+    ("t_c", "the contact instant measured from the frames (measure.json)"),
+    ("r, R", "the neck or contact radius; the drop radius"),
+    (
+        "n",
+        (
+            "the exponent of a law r = A τⁿ; 'ELS log' marks the logarithmic law "
+            "r = −C (γτ/η) ln(γτ/(ηR)), whose local exponent is 1 + 1/ln(γτ/(ηR)), not 1"
+        ),
+    ),
+    ("C", "the dimensionless coefficient of a law, on the group of the sample's values"),
+    ("A", "the dimensional prefactor A = C × group, in the unit shown"),
+    ("d ln r / d ln τ", "the local exponent: the slope of ln r against ln τ"),
+    ("window", "the range of τ over which a law is fitted and holds"),
+    ("AIC", "Akaike's information criterion of a fit; lower is better, differences count"),
+    (
+        "(a)",
+        (
+            "check on the exponent: the law's n lies inside the fitted exponent's "
+            "combined 95 % interval"
+        ),
+    ),
+    ("(b)", ""),
+    (
+        "(c)",
+        (
+            "check on the numbers: the sample's dimensionless numbers (Oh, Bo, ratios) "
+            "allow the regime"
+        ),
+    ),
+    ("(d)", "information: the AIC, used to rank candidates that pass the same checks"),
+    ("consistent", "a candidate that passes (a), (b) and (c)"),
+    (
+        "statistical / systematic / combined",
+        (
+            "95 % intervals from the bootstrap; from the "
+            "edge level (and, for C, the material values); both together"
+        ),
+    ),
+    ("V", "status label of a law or value: verified against a source text"),
+    ("C (label)", "status label: computed here by running the formula or a library"),
+    (
+        "D",
+        (
+            "status label: derived here by dimensional analysis or a few lines of algebra; "
+            "check before relying on it"
+        ),
+    ),
+    ("M", "status label: from memory, not verified; used as a prior, never to reject"),
+)
+
+
 def glossary(verdict) -> list[tuple[str, str]]:
     """Every symbol and code the report uses, with its meaning."""
     settings = dict(getattr(verdict, "settings", None) or {})
@@ -83,48 +138,7 @@ def glossary(verdict) -> list[tuple[str, str]]:
     )
     prefactor = "the fitted prefactor over the one the sample's own γ, η, ρ and R predict"
     prefactor += f" lies within {band_text}" if band_text else " is of order one"
-    rows = [
-        ("τ", "time since the contact instant, τ = t − t₀ (t from the first frame)"),
-        ("t₀", "the contact instant fitted with the laws inside its bracket (or fixed by --t0)"),
-        ("t_c", "the contact instant measured from the frames (measure.json)"),
-        ("r, R", "the neck or contact radius; the drop radius"),
-        (
-            "n",
-            "the exponent of a law r = A τⁿ; 'ELS log' marks the logarithmic law "
-            "r = −C (γτ/η) ln(γτ/(ηR)), whose local exponent is 1 + 1/ln(γτ/(ηR)), not 1",
-        ),
-        ("C", "the dimensionless coefficient of a law, on the group of the sample's values"),
-        ("A", "the dimensional prefactor A = C × group, in the unit shown"),
-        ("d ln r / d ln τ", "the local exponent: the slope of ln r against ln τ"),
-        ("window", "the range of τ over which a law is fitted and holds"),
-        ("AIC", "Akaike's information criterion of a fit; lower is better, differences count"),
-        (
-            "(a)",
-            "check on the exponent: the law's n lies inside the fitted exponent's "
-            "combined 95 % interval",
-        ),
-        ("(b)", f"check on the prefactor: {prefactor}"),
-        (
-            "(c)",
-            "check on the numbers: the sample's dimensionless numbers (Oh, Bo, ratios) "
-            "allow the regime",
-        ),
-        ("(d)", "information: the AIC, used to rank candidates that pass the same checks"),
-        ("consistent", "a candidate that passes (a), (b) and (c)"),
-        (
-            "statistical / systematic / combined",
-            "95 % intervals from the bootstrap; from the "
-            "edge level (and, for C, the material values); both together",
-        ),
-        ("V", "status label of a law or value: verified against a source text"),
-        ("C (label)", "status label: computed here by running the formula or a library"),
-        (
-            "D",
-            "status label: derived here by dimensional analysis or a few lines of algebra; "
-            "check before relying on it",
-        ),
-        ("M", "status label: from memory, not verified; used as a prior, never to reject"),
-    ]
+    rows = [(t, f"check on the prefactor: {prefactor}" if t == "(b)" else m) for t, m in _TERMS]
     rows += [(f"status {s}", _STATUS_MEANING.get(s, s)) for s in STATUSES]
     return rows
 
