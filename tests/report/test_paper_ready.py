@@ -262,6 +262,17 @@ def test_the_log_law_is_drawn_as_its_own_local_exponent_not_at_one(runs):
     assert np.allclose(n[ok][1:-1], slope[1:-1], atol=2e-3)
 
 
+def test_the_log_law_local_exponent_matches_the_tabulated_values():
+    # docs/physics.md §2 A1 (C): 1 + 1/ln(x) is 0.89, 0.86, 0.78 and 0.57 at
+    # x = γt/(ηR) = 1e-4, 1e-3, 1e-2, 1e-1; past the peak (x ≥ 1/e) it is not defined
+    from dropkin.report._local import log_law_local_exponent
+
+    x = np.array([1e-4, 1e-3, 1e-2, 1e-1, 0.5])
+    n = log_law_local_exponent(x, speed=1.0, drop_radius=1.0)
+    assert np.round(n[:4], 2).tolist() == [0.89, 0.86, 0.78, 0.57]
+    assert np.isnan(n[4])
+
+
 @pytest.mark.parametrize("name", ["pair", "spreading", "viscous"])
 def test_every_log_axis_labels_at_least_three_ticks(runs, name):
     _, _, figures = _figures(runs[name])
