@@ -8,6 +8,7 @@ The figures are drawn from the records of the analysis, the
 from __future__ import annotations
 
 import math
+import warnings
 from pathlib import Path
 
 import numpy as np
@@ -364,7 +365,12 @@ def write_plots(out_dir, *, series, verdict, overlays_dir=None) -> list[Path]:
     if files:
         figures["overlays"] = lambda: _plot_overlays(files)
     written: list[Path] = []
-    with matplotlib.rc_context(_RC):
+    with matplotlib.rc_context(_RC), warnings.catch_warnings(), np.errstate(all="ignore"):
+        # data spanning hundreds of decades overflow matplotlib's transforms or
+        # make it adjust a log axis itself, with a warning (attributed to the
+        # caller); the figure is still drawn, and the numbers are in the files
+        warnings.simplefilter("ignore", UserWarning)
+        warnings.simplefilter("ignore", RuntimeWarning)
         for stem, draw in figures.items():
             written += _save(draw(), plots_dir, stem)
     for stem in set(PLOT_NAMES) - set(figures):
