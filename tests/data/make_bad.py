@@ -1022,8 +1022,9 @@ def option_cases():
         ["--t0", "1 s"],
         ["fit"],
         words=["radius.csv", "before contact"],
-        keeps=["fit.json"],
-        about="a contact instant after the last frame: fit.json records the failed verdict",
+        keeps=["fit.json", "report.html", "plots/radius.png", "plots/radius.svg"],
+        about="a contact instant after the last frame: fit.json records the failed verdict, "
+        "the report says why",
     )
     options(
         "glycerol_fraction_above_one",

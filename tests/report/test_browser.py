@@ -106,6 +106,8 @@ class _Visit:
         self.images: list[dict] = []
         self.page_size: list[int] = []
         self.overflow: dict[int, int] = {}
+        self.frames: list[dict] = []
+        self.steps: list[dict] = []
 
     def attach(self, context, page):
         def on_console(message):
@@ -168,6 +170,7 @@ def _open(chromium, user_data_dir: Path, url: str, screenshot: Path):
                 " document.documentElement.scrollHeight]"
             )
             page.screenshot(path=str(screenshot), full_page=True)
+            _step_overlays(page, visit)
             for width in NARROW_WIDTHS:
                 page.set_viewport_size({"width": width, "height": VIEWPORT["height"]})
                 visit.overflow[width] = page.evaluate(
@@ -177,6 +180,37 @@ def _open(chromium, user_data_dir: Path, url: str, screenshot: Path):
         finally:
             context.close()
     return visit
+
+
+#: The state of the overlay stepper as a reader sees it.
+_STEPPER_STATE = """() => {
+    const img = document.getElementById("overlay-image");
+    const frames = JSON.parse(document.getElementById("overlay-frames").textContent);
+    const i = Number(document.getElementById("overlay-slider").value);
+    return {value: i, complete: img.complete, naturalWidth: img.naturalWidth,
+            src_is_frame: img.src === frames[i].uri, alt: img.alt,
+            caption: document.getElementById("overlay-caption").textContent,
+            position: document.getElementById("overlay-position").textContent};
+}"""
+
+
+def _step_overlays(page, visit):
+    """Step the overlay slider with the keyboard to its end, then back with a button."""
+    if page.locator("#overlay-slider").count() == 0:
+        return
+    visit.frames = page.evaluate(
+        """() => JSON.parse(document.getElementById("overlay-frames").textContent)
+                 .map((f) => ({name: f.name, caption: f.caption}))"""
+    )
+    loaded = "() => document.getElementById('overlay-image').complete"
+    page.focus("#overlay-slider")
+    for _ in range(len(visit.frames) + 1):  # one press past the end: it must stay there
+        page.wait_for_function(loaded)
+        visit.steps.append(page.evaluate(_STEPPER_STATE))
+        page.keyboard.press("ArrowRight")
+    page.click("#overlay-previous")
+    page.wait_for_function(loaded)
+    visit.steps.append(page.evaluate(_STEPPER_STATE))
 
 
 def _png_size(path: Path) -> tuple[int, int]:
@@ -230,12 +264,34 @@ def test_every_image_loaded(report_visit):
     # HTML Living Standard, the img element: `complete` is true once the
     # image is fully available or broken; a broken one has naturalWidth 0.
     images = report_visit.images
-    # four plots (radius, local exponent, residuals, overlay montage) and the overlay frames
-    assert len(images) == 4 + report_visit.n_overlays
+    # three plots (radius, local exponent, residuals) and the one overlay frame
+    # the slider steps (the montage is in plots/, not shown twice)
+    assert len(images) == 3 + 1
     bad = [i for i in images if not (i["complete"] and i["naturalWidth"] > 0)]
     assert bad == []
     assert all(i["src"].startswith("data:image/") for i in images)
     assert all(i["shownWidth"] > 50 for i in images), images
+
+
+def test_the_slider_steps_through_every_overlay_frame(report_visit):
+    """One overlay section; the slider (arrow keys) and the buttons step the frames."""
+    frames, steps = report_visit.frames, report_visit.steps
+    n = report_visit.n_overlays
+    assert n >= 3 and len(frames) == n
+    assert [f["name"] for f in frames] == sorted(f["name"] for f in frames)
+    # one state per frame in order, then one press past the end stays at the end
+    assert [s["value"] for s in steps[:n]] == list(range(n))
+    assert steps[n]["value"] == n - 1
+    for i, step in enumerate(steps[:n]):
+        assert step["src_is_frame"] and step["complete"] and step["naturalWidth"] > 0, step
+        assert step["alt"] == frames[i]["name"]
+        assert step["caption"] == frames[i]["caption"]
+        assert step["position"] == f"{i + 1} / {n}"
+    # each frame has its own caption (frame number, status, τ, radius)
+    assert len({s["caption"] for s in steps[:n]}) == n
+    assert all(s["caption"].startswith("frame ") for s in steps[:n])
+    # the "previous" button goes back one
+    assert steps[-1]["value"] == n - 2 and steps[-1]["src_is_frame"]
 
 
 def test_no_request_left_the_machine(report_visit):

@@ -14,7 +14,7 @@ from click.testing import CliRunner
 
 import dropkin.cli
 from dropkin.pipeline import read_fit, write_analysis_outputs
-from dropkin.report import write_plots, write_report
+from dropkin.report import origin_dict, time_origin, write_plots, write_report
 from dropkin.scaling import verdict_from_dict
 from dropkin.series import read_series
 
@@ -56,6 +56,11 @@ def analysed(request, tmp_path_factory):
     return out, report
 
 
+def _angle_plot(out: Path) -> tuple[str, ...]:
+    """``("contact_angle",)`` for a folder with contact angles (spreading, side view)."""
+    return ("contact_angle",) if (out / "angles.csv").is_file() else ()
+
+
 def test_report_from_the_files_is_the_report_of_the_run(analysed):
     # The run passes its records in memory; the files read back give the same ones.
     out, report = analysed
@@ -70,14 +75,18 @@ def test_records_read_back_give_their_files_again(analysed):
     inputs, files = _inputs(out), _files(out)
     assert series_to_csv(inputs["series"]) == (out / "radius.csv").read_text(encoding="utf-8")
     assert series_to_dict(inputs["series"]) == files["measure_info"]
-    assert verdict_to_dict(inputs["verdict"]) == files["fit"]
+    # fit.json is the verdict's dict plus the time origin of the run's outputs
+    fit = dict(files["fit"])
+    origin = fit.pop("time_origin")
+    assert verdict_to_dict(inputs["verdict"]) == fit
+    assert origin == origin_dict(time_origin(inputs["series"], inputs["verdict"]))
 
 
 def test_plots_are_valid_png_and_svg(analysed):
     import matplotlib.image as mpimg
 
     out, _ = analysed
-    for stem in ("radius", "local_exponent", "residuals", "overlays"):
+    for stem in ("radius", "local_exponent", "residuals", "overlays", *_angle_plot(out)):
         png = out / "plots" / f"{stem}.png"
         assert png.read_bytes()[:8] == PNG_SIGNATURE, png
         shape = mpimg.imread(png).shape
@@ -91,10 +100,9 @@ def test_write_plots_returns_the_files_it_wrote(analysed, tmp_path):
     out, _ = analysed
     written = write_plots(tmp_path, **_inputs(out))
     names = sorted(p.name for p in written)
-    # no overlays folder in tmp_path, so no montage
-    assert names == sorted(
-        f"{s}.{e}" for s in ("radius", "local_exponent", "residuals") for e in ("png", "svg")
-    )
+    # no overlays folder in tmp_path, so no montage; contact angles for spreading
+    stems = ("radius", "local_exponent", "residuals", *_angle_plot(out))
+    assert names == sorted(f"{s}.{e}" for s in stems for e in ("png", "svg"))
     assert all(p.is_file() and p.parent == tmp_path / "plots" for p in written)
     assert not [p for p in (tmp_path / "plots").iterdir() if p.name.startswith(".")]
 
@@ -104,11 +112,20 @@ def test_report_is_self_contained(analysed):
     assert report == out / "report.html"
     html = report.read_text(encoding="utf-8")
     sources = re.findall(r"<img\b[^>]*\bsrc=\"([^\"]*)\"", html)
-    n_overlays = len(list((out / "overlays").glob("*.png")))
-    assert len(sources) == 4 + n_overlays
+    # radius, local exponent, residuals (and contact angles), and one overlay
+    # frame: the overlays are shown once, stepped by the slider
+    assert len(sources) == 3 + len(_angle_plot(out)) + 1
     assert all(s.startswith("data:image/") for s in sources)
     assert "http://" not in html and "https://" not in html
-    assert "<script" not in html.lower()
+    # the only scripts: the overlay frames' data and the few lines that step them
+    scripts = re.findall(r"<script\b([^>]*)>(.*?)</script>", html.lower(), flags=re.S)
+    assert [attrs.strip() for attrs, _ in scripts] == [
+        'type="application/json" id="overlay-frames"',
+        'id="overlay-stepper"',
+    ]
+    code = scripts[1][1]
+    for word in ("fetch", "xmlhttprequest", "import", "eval(", "websocket", '.src = "http'):
+        assert word not in code, word
     assert "<link" not in html.lower()
 
 
@@ -168,7 +185,7 @@ def test_warnings_for_few_points_edge_frames_and_cut_regime(analysed, tmp_path):
     )
     assert "Only 3 frames were measured as ok" in html
     assert "no drop found (status not-found)" in html
-    assert f"{len(late)} frame(s) had the drop touching the image edge" in html
+    assert f"{len(late)} frames had the drop touching the image edge" in html
     assert "may be cut by the field of view" in html
 
 

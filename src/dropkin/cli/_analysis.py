@@ -21,19 +21,24 @@ __all__ = ["fit_command", "analyze_command"]
 FIT_SETTINGS = ("t0", "seed", "bootstrap", "initial_radius")
 
 
-def _report_verdict(verdict, radius_csv, path) -> None:
-    """Print the verdict; then where it went, or (no verdict) the reason, as an error."""
+def _report_verdict(verdict, series, radius_csv, out) -> None:
+    """Print the verdict, the time origin and the files written; without a
+    verdict, the files and then the reason, as the error line (exit code 1)."""
+    from ..report import origin_sentence, time_origin
     from ..scaling import format_verdict
 
+    written = [out / "fit.json", out / "plots", out / "report.html"]
     if not verdict:  # said once, as the error line (format_verdict would repeat it)
+        click.echo("wrote " + ", ".join(map(str, written)) + " (the report says why)")
         raise DropkinError(verdict.reason, path=radius_csv)
     click.echo(format_verdict(verdict))
-    click.echo(f"wrote {path}")
+    click.echo(origin_sentence(time_origin(series, verdict)))
+    click.echo("wrote " + ", ".join(map(str, written)))
 
 
 @click.command("fit")
 @click.argument("radius_csv", type=click.Path(exists=True, dir_okay=False, path_type=str))
-@output_option("Folder for fit.json.")
+@output_option("Folder for fit.json, plots/ and report.html.")
 @click.option(
     "--experiment",
     type=click.Path(exists=True, dir_okay=False, path_type=str),
@@ -42,16 +47,18 @@ def _report_verdict(verdict, radius_csv, path) -> None:
 @fit_options
 @click.pass_context
 def fit_command(ctx, radius_csv, out, experiment, t0, seed, bootstrap, initial_radius):
-    """Fit the scaling regimes to RADIUS_CSV (from dropkin measure) and give the verdict."""
+    """Fit the scaling regimes to RADIUS_CSV (from dropkin measure) and give the
+    verdict: fit.json, plots/ and a self-contained report.html, as analyze."""
     from pathlib import Path
 
     from ..pipeline._steps import fit_into
+    from ..series import read_series
 
     fit = {"t0": t0, "seed": seed, "bootstrap": bootstrap, "initial_radius": initial_radius}
     detail(ctx, "settings: " + ", ".join(f"{k} = {v!r}" for k, v in fit.items()))
     verdict, _, used = fit_into(radius_csv, out, experiment=experiment, **fit)
     detail_experiment(ctx, used.path)
-    _report_verdict(verdict, radius_csv, Path(out) / "fit.json")
+    _report_verdict(verdict, read_series(radius_csv), radius_csv, Path(out))
 
 
 @click.command("analyze")
@@ -90,5 +97,4 @@ def analyze_command(ctx, source, out, **options):
     detail_experiment(ctx, result.series.provenance.get("experiment_file"))
     detail(ctx, f"contact: {result.contact_method}")
     click.echo(measure_summary(result.series, out))
-    _report_verdict(result.verdict, out / "radius.csv", out / "fit.json")
-    click.echo(f"wrote {result.report}")
+    _report_verdict(result.verdict, result.series, out / "radius.csv", out)

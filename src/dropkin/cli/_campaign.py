@@ -4,6 +4,7 @@ from __future__ import annotations
 
 import click
 
+from .._words import count
 from ._console import verbosity
 from ._main import EXIT_BATCH_PARTIAL, EXIT_INTERRUPTED
 from ._options import output_option
@@ -75,13 +76,14 @@ def batch_command(ctx, manifest, out, jobs, scheduler, redo, allow_outside_paths
     finished = len(summary.done) + len(summary.skipped) + len(summary.failed)
     if summary.interrupted:
         click.echo(
-            f"dropkin: interrupted: {finished} of {summary.total} recordings finished and "
+            f"dropkin: interrupted: {finished} of {count(summary.total, 'recording')} "
+            "finished and "
             "catalogued; run the same command again to do the rest",
             err=True,
         )
         ctx.exit(EXIT_INTERRUPTED)
     click.echo(
-        f"{summary.total} recordings: {len(summary.done)} analysed, "
+        f"{count(summary.total, 'recording')}: {len(summary.done)} analysed, "
         f"{len(summary.skipped)} unchanged, {len(summary.failed)} failed; "
         f"catalogue {Path(out) / CATALOGUE_NAME}"
     )
@@ -119,7 +121,7 @@ def collapse_command(out, regime, dest):
         published = "" if curve.published is None else f" (published {curve.published:g})"
         click.echo(
             f"{curve.regime}: C = {curve.pooled.value:.4g} [{lo:.4g}, {hi:.4g}] from "
-            f"{curve.pooled.k} recording{'' if curve.pooled.k == 1 else 's'}{published}"
+            f"{count(curve.pooled.k, 'recording')}{published}"
         )
         for member in curve.members:
             if not member.collapses:

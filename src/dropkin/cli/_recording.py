@@ -45,12 +45,16 @@ def info_command(ctx, source, as_json, **options):
 
 
 def measure_summary(series, out) -> str:
-    """One line: frames per status, the contact instant, where the series went."""
+    """One line: frames per status, the measured contact instant, where the series went."""
+    from ..report._origin import time_text
+
     counts = {s: series.status.count(s) for s in dict.fromkeys(series.status)}
     summary = ", ".join(f"{n} {s}" for s, n in counts.items() if n)
     return (
-        f"{len(series)} frames: {summary}; contact at {series.contact_time:.6g} s "
-        f"± {series.contact_time_err:.2g} s; wrote {out / 'radius.csv'}"
+        f"{len(series)} frames: {summary}; measured contact t_c = "
+        f"{time_text(series.contact_time, 4)} ± {time_text(series.contact_time_err, 2)} "
+        f"after the first frame (radius.csv's since_contact_s counts from it); "
+        f"wrote {out / 'radius.csv'}"
     )
 
 

@@ -24,13 +24,24 @@ if TYPE_CHECKING:
 __all__ = ["write_fit", "read_fit", "write_analysis_outputs"]
 
 
-def write_fit(verdict: RegimeVerdict, out_dir) -> Path:
-    """Write ``fit.json`` into `out_dir` atomically; return its path."""
+def write_fit(verdict: RegimeVerdict, out_dir, *, series=None) -> Path:
+    """Write ``fit.json`` into `out_dir` atomically; return its path.
+
+    With the `series` the verdict was fitted to, the file also holds
+    ``time_origin``: the origin its times count from (the fitted t0) and the
+    measured contact instant ``radius.csv``'s ``since_contact_s`` counts from
+    (see :mod:`dropkin.report._origin`).
+    """
     from ..scaling import verdict_to_dict  # scipy: imported when needed
 
     out_dir = Path(out_dir)
     out_dir.mkdir(parents=True, exist_ok=True)
-    text = json.dumps(verdict_to_dict(verdict), indent=2, allow_nan=False) + "\n"
+    data = verdict_to_dict(verdict)
+    if series is not None:
+        from ..report import origin_dict, time_origin
+
+        data["time_origin"] = origin_dict(time_origin(series, verdict))
+    text = json.dumps(data, indent=2, allow_nan=False) + "\n"
     return write_text_atomic(out_dir / "fit.json", text)
 
 
@@ -76,7 +87,9 @@ def _named_experiment(series):
 def write_analysis_outputs(out_dir, *, experiment=None) -> Path:
     """Read an analysis folder's three files; write its plots and its report.
 
-    The files are ``radius.csv``, ``measure.json`` and ``fit.json``.
+    The files are ``radius.csv``, ``measure.json`` and ``fit.json`` (and
+    ``angles.csv`` when there is one). A failed fit gets its plots and a
+    report that says why, as in the run.
 
     Without `experiment`, the experiment file named in the measurement's
     provenance is read, when it is still there. Returns the report's path.

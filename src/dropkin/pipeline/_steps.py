@@ -6,7 +6,8 @@ the :class:`~dropkin.scaling.RegimeVerdict`) to the next in memory; the files
 are outputs only. :func:`open_source` reads the experiment and opens the
 recording it describes; :func:`measure_into` measures it and writes
 ``radius.csv``, ``measure.json`` and ``overlays/``; :func:`fit_into` fits a
-``radius.csv`` read from disk and writes ``fit.json`` (``dropkin fit``).
+``radius.csv`` read from disk and writes ``fit.json``, ``plots/`` and
+``report.html`` as ``analyze`` does (``dropkin fit``).
 Nothing here prints: the command line and the batch runner report progress
 their own way.
 """
@@ -107,6 +108,7 @@ class Analysis:
     experiment : Experiment
         As used, with the library's values filled in.
     report : pathlib.Path or None
+        ``report.html``, written whether the fit succeeded or not.
     """
 
     series: object
@@ -254,8 +256,25 @@ def _fit_and_write(measurement, out, **fit):
 
     verdict, numbers = fit_measurement(measurement, **fit)
     remove_temporaries(out, Path(out) / "plots")  # left by a run that was killed
-    write_fit(verdict, out)
+    write_fit(verdict, out, series=measurement.series)
     return verdict, numbers
+
+
+def _write_report(out, measurement, verdict) -> Path:
+    """``OUT/plots/`` and ``OUT/report.html`` for a verdict, whether it succeeded or not.
+
+    A failed or undecided fit still gets the radius plot and a report that
+    says why. The overlay frames are those beside the ``radius.csv``.
+    """
+    from ..report import write_analysis_report
+
+    return write_analysis_report(
+        out,
+        series=measurement.series,
+        verdict=verdict,
+        experiment=measurement.experiment,
+        overlays_dir=Path(measurement.path).parent / "overlays",
+    )
 
 
 def fit_into(
@@ -268,16 +287,18 @@ def fit_into(
     bootstrap: int = 200,
     initial_radius: bool = False,
 ):
-    """Fit the regimes to a ``radius.csv``; write ``OUT/fit.json``.
+    """Fit the regimes to a ``radius.csv``; write ``fit.json``, ``plots/`` and ``report.html``.
 
-    The series is read with the ``measure.json`` beside it (see
-    :func:`~dropkin.pipeline._fit.load_measurement`).
+    The series is read with the ``measure.json`` (and ``angles.csv``) beside
+    it (see :func:`~dropkin.pipeline._fit.load_measurement`); the report
+    shows the overlay frames of that folder. The outputs are those of
+    :func:`analyze_into` after its measurement.
 
     Returns
     -------
     verdict : RegimeVerdict
-        Falsy (with its reason) when the data cannot support a fit; ``fit.json``
-        is written in both cases.
+        Falsy (with its reason) when the data cannot support a fit; the
+        files are written in both cases, the report saying why.
     numbers : SampleNumbers
     experiment : Experiment
         The sample as used.
@@ -285,6 +306,7 @@ def fit_into(
     measurement = load_measurement(radius_csv, experiment=experiment)
     fit = {"t0": t0, "seed": seed, "bootstrap": bootstrap, "initial_radius": initial_radius}
     verdict, numbers = _fit_and_write(measurement, out, **fit)
+    _write_report(out, measurement, verdict)
     return verdict, numbers, measurement.experiment
 
 
@@ -334,7 +356,6 @@ def analyze_into(
         For any other input that cannot be read or measured.
     """
     from ..liquids import stated_uncertainties
-    from ..report import write_analysis_report
 
     out = Path(out)
     exp, rec = open_source(source, experiment=experiment, overrides=overrides, origin=origin)
@@ -348,9 +369,7 @@ def analyze_into(
     )
     verdict, numbers = _fit_and_write(measurement, out, **settings.fit_settings())
     used = measurement.experiment
-    report = None
-    if verdict:
-        report = write_analysis_report(out, series=series, verdict=verdict, experiment=used)
+    report = _write_report(out, measurement, verdict)  # also when the fit failed
     return Analysis(
         series=series,
         contact_method=method,

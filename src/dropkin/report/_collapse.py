@@ -6,6 +6,7 @@ from pathlib import Path
 
 import numpy as np
 
+from .._words import count
 from ._style import _RC, OKABE_ITO, _exponent_text, _log_axis, _new_figure, _save
 
 __all__ = ["write_master_curve"]
@@ -70,6 +71,6 @@ def write_master_curve(curve, dest) -> list[Path]:
         _log_axis(ax.yaxis)
         ax.set_xlabel("t / τ")
         ax.set_ylabel("r / R")
-        ax.set_title(f"{curve.regime}: {len(curve.members)} recordings")
+        ax.set_title(f"{curve.regime}: {count(len(curve.members), 'recording')}")
         ax.legend(loc="upper left", fontsize=6, handlelength=1.5)
         return _save(fig, Path(dest), f"collapse-{curve.regime}")

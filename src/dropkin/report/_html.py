@@ -4,8 +4,10 @@ One file, ``OUT/report.html``, made from the analysis' records (the
 :class:`~dropkin.series.RadiusSeries`, the
 :class:`~dropkin.scaling.RegimeVerdict` and the experiment) with the package
 template ``templates/report.html.j2``: CSS inline, every image a base64
-``data:`` URI, no external reference and no JavaScript. Every string from the
-inputs passes through jinja2's autoescaping.
+``data:`` URI, no external reference; the only script is a few inline lines
+that step the overlay frames with a slider. Every string from the inputs
+passes through jinja2's autoescaping (the frames' list through ``tojson``).
+A failed or undecided fit gets a report too, that says why.
 """
 
 from __future__ import annotations
@@ -16,9 +18,12 @@ import json
 import math
 from pathlib import Path
 
-from .._atomic import completed_files, write_text_atomic
+from .._atomic import write_text_atomic
 from .._version import __version__
+from .._words import count
+from ._origin import origin_sentence, time_origin
 from ._plots import PLOT_NAMES, write_plots
+from ._sections import glossary, law_references, overlay_frames
 from ._style import _finite, _num
 
 __all__ = ["write_report", "write_analysis_report", "report_warnings", "FEW_OK_POINTS"]
@@ -27,13 +32,18 @@ __all__ = ["write_report", "write_analysis_report", "report_warnings", "FEW_OK_P
 FEW_OK_POINTS = 15
 
 _PLOT_CAPTIONS = {
-    "radius": "Radius against time since contact (log-log). Solid: dominant fit over its "
-    "window; dashed: consistent candidate laws; grey: frames not measured as ok.",
-    "local_exponent": "Local exponent d ln r / d ln τ with its band; horizontal lines at "
-    "the candidates' theoretical exponents.",
-    "residuals": "Relative residuals of the dominant fit for the ok frames.",
-    "overlays": "Annotated frames (montage).",
+    "radius": "Radius against τ (log-log). Solid: dominant fit over its window; dashed: "
+    "consistent candidate laws; grey: frames not measured as ok, a marker per status.",
+    "local_exponent": "Local exponent d ln r / d ln τ with its band; horizontal lines at the "
+    "power laws' exponents, and the logarithmic laws' own local exponent "
+    "1 + 1/ln(γτ/(ηR)) as a curve; the legend below names every regime of each.",
+    "residuals": "Relative residuals of the dominant fit for the ok frames; shaded: its window.",
+    "contact_angle": "Apparent contact angles at the left and right contact points, from a "
+    "local fit of the outline (angles.csv).",
 }
+#: The figures the report shows (the overlay montage is in plots/ for a paper;
+#: the report steps through the frames themselves).
+_REPORT_PLOTS = tuple(name for name in PLOT_NAMES if name != "overlays")
 
 # The sample's numbers (attributes of the verdict's numbers), in the order of fit.json.
 _NUMBER_LABELS = (
@@ -91,11 +101,11 @@ def report_warnings(*, series, verdict) -> list[str]:
             "exponents and intervals rest on few points."
         )
     if counts["not-found"]:
-        out.append(f"{counts['not-found']} frame(s) had no drop found (status not-found).")
+        found = count(counts["not-found"], "frame had", "frames had")
+        out.append(f"{found} no drop found (status not-found).")
     if counts["at-edge"]:
-        out.append(
-            f"{counts['at-edge']} frame(s) had the drop touching the image edge (status at-edge)."
-        )
+        edge = count(counts["at-edge"], "frame had", "frames had")
+        out.append(f"{edge} the drop touching the image edge (status at-edge).")
     dom = verdict.dominant if verdict else None
     end = _num(dom.window[1]) if dom and dom.window else None
     t0 = _num(verdict.t0) if verdict else None
@@ -108,7 +118,8 @@ def report_warnings(*, series, verdict) -> list[str]:
         if after:
             out.append(
                 f"The {dom.key} regime may be cut by the field of view: its window "
-                f"ends at τ = {end * 1e3:.3g} ms and {len(after)} later frame(s) are "
+                f"ends at τ = {end * 1e3:.3g} ms and "
+                f"{count(len(after), 'later frame is', 'later frames are')} "
                 "at-edge; the regime may last longer than the data show."
             )
     said = [f"{w.message[0].upper()}{w.message[1:]} [{w.code}]." for w in verdict.warnings]
@@ -179,9 +190,10 @@ def _dominant_row(verdict) -> dict | None:
     }
 
 
-def _candidate_row(c) -> dict:
+def _candidate_row(c, references) -> dict:
     n = _num(c.exponent_fit)
     return {
+        "reference": references.get(c.key),
         "rank": c.rank,
         "regime": c.key,
         "exponent_theory": "ELS log" if c.regime.logarithmic else _g(_num(c.exponent_theory)),
@@ -221,9 +233,10 @@ def _measurement_rows(series, verdict) -> list[tuple[str, str]]:
     return [
         ("frames", _g(len(series))),
         ("status counts", ", ".join(f"{k}: {v}" for k, v in counts.items()) or "—"),
-        ("contact time (measured)", measured),
+        ("contact time t_c (measured)", measured),
         ("contact method", str(series.details.get("contact_method", "—"))),
-        ("contact time (fit)", fitted),
+        ("contact time t₀ (fit)", fitted),
+        ("time origin", origin_sentence(time_origin(series, verdict))),
         ("unresolved criterion", str(series.details.get("unresolved_criterion", "—"))),
         ("local exponent method", str(verdict.local.method if verdict and verdict.local else "—")),
     ]
@@ -244,15 +257,18 @@ def _provenance_rows(series, verdict) -> list[tuple[str, str]]:
     ]
 
 
-def _context(out_dir, series, verdict, experiment, plot_files):
+def _context(series, verdict, experiment, plot_files, overlays_dir):
     numbers = verdict.numbers
     crossovers = verdict.crossovers if verdict else ()
-    overlays = completed_files(Path(out_dir) / "overlays", "*.png")
-    title = Path(str(series.provenance.get("input") or Path(out_dir).name)).name
+    title = Path(str(series.provenance.get("input") or Path(overlays_dir).parent.name)).name
+    references, cited = law_references(verdict)
     return {
         "title": title,
+        "success": bool(verdict.success),
+        "reason": verdict.reason or "no reason given",
         "sentence": verdict.sentence or verdict.reason or "No verdict.",
         "decidable": bool(verdict.decidable),
+        "origin": origin_sentence(time_origin(series, verdict)),
         "dominant": _dominant_row(verdict),
         "crossovers": [{"text": _crossover_text(x)} for x in crossovers],
         "warnings": report_warnings(series=series, verdict=verdict),
@@ -260,12 +276,14 @@ def _context(out_dir, series, verdict, experiment, plot_files):
         "numbers": [(label, _g(_num(getattr(numbers, name)))) for name, label in _NUMBER_LABELS]
         if numbers is not None
         else [],
-        "candidates": [_candidate_row(c) for c in verdict.candidates],
+        "candidates": [_candidate_row(c, cited) for c in verdict.candidates],
+        "references": references,
+        "glossary": glossary(verdict),
         "plots": [
             {"name": p.stem, "uri": _data_uri(p), "caption": _PLOT_CAPTIONS.get(p.stem, p.stem)}
             for p in plot_files
         ],
-        "overlays": [{"name": p.stem, "uri": _data_uri(p)} for p in overlays],
+        "overlays": overlay_frames(overlays_dir, series, verdict),
         "measurement": _measurement_rows(series, verdict),
         "provenance": _provenance_rows(series, verdict),
     }
@@ -283,42 +301,48 @@ def _template():
     return env.get_template("report.html.j2")
 
 
-def write_report(out_dir, *, series, verdict, experiment=None) -> Path:
+def write_report(out_dir, *, series, verdict, experiment=None, overlays_dir=None) -> Path:
     """Write ``out_dir/report.html``, one self-contained file; return its path.
 
     Parameters
     ----------
     out_dir : path
         The analysis folder. PNG figures already in ``out_dir/plots/`` (from
-        `write_plots`) and overlay frames in ``out_dir/overlays/`` are inlined
-        as base64 data URIs.
+        `write_plots`; the overlay montage is left out) are inlined as base64
+        data URIs, and so are the overlay frames, shown one at a time with a
+        slider.
     series : RadiusSeries
         The radius series, with what ``measure.json`` holds.
     verdict : RegimeVerdict
-        The regime verdict.
+        The regime verdict; a failed one gives a report that says why.
     experiment : dropkin.experiment.Experiment, optional
         Adds the liquid and the medium to the sample table.
+    overlays_dir : path, optional
+        The annotated frames (default ``out_dir/overlays``).
 
     Notes
     -----
-    CSS is inline, there is no external URL and no JavaScript; every string
-    from the inputs is HTML-escaped (jinja2 autoescape). The file is written
-    atomically.
+    CSS is inline, there is no external URL; the one script steps the
+    overlay frames. Every string from the inputs is HTML-escaped (jinja2
+    autoescape). The file is written atomically.
     """
     out_dir = Path(out_dir)
     plot_files = [
         out_dir / "plots" / f"{name}.png"
-        for name in PLOT_NAMES
+        for name in _REPORT_PLOTS
         if (out_dir / "plots" / f"{name}.png").is_file()
     ]
-    html = _template().render(**_context(out_dir, series, verdict, experiment, plot_files))
+    overlays_dir = Path(overlays_dir) if overlays_dir is not None else out_dir / "overlays"
+    html = _template().render(**_context(series, verdict, experiment, plot_files, overlays_dir))
     return write_text_atomic(out_dir / "report.html", html)
 
 
-def write_analysis_report(out_dir, *, series, verdict, experiment=None) -> Path:
+def write_analysis_report(out_dir, *, series, verdict, experiment=None, overlays_dir=None) -> Path:
     """Write an analysis' plots (``plots/``) and its report; return the report's path.
 
     See :func:`~dropkin.report.write_plots` and :func:`write_report`.
     """
-    write_plots(out_dir, series=series, verdict=verdict)
-    return write_report(out_dir, series=series, verdict=verdict, experiment=experiment)
+    write_plots(out_dir, series=series, verdict=verdict, overlays_dir=overlays_dir)
+    return write_report(
+        out_dir, series=series, verdict=verdict, experiment=experiment, overlays_dir=overlays_dir
+    )

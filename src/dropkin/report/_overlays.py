@@ -60,83 +60,112 @@ def _to_bgr(frame):
     return cv2.cvtColor(scaled, cv2.COLOR_GRAY2BGR)
 
 
+#: Small frames are enlarged (by a whole factor, nearest neighbour) to about
+#: this width, so that the lines and the caption can be read.
+_MIN_WIDTH = 360
+_STRIP = (32, 32, 32)  # caption strip: near black, the caption white on it
+
+
+def _outline_mask(trans, level, setup, roi_shape, sessile=None):
+    """Pixels darker than the edge level; for drops on a plate (side view) only
+    those above the substrate line, so the mirror image is not outlined."""
+    mask = (trans < level).astype(np.uint8)
+    rows, cols = np.indices(roi_shape)
+    if setup is not None and setup.view == "side":
+        mask[rows >= setup.centre[0] + setup.tilt * (cols - setup.centre[1])] = 0
+    elif sessile is not None:
+        mask[rows >= sessile.line.rows(cols)] = 0
+    return mask
+
+
+def _annotate(image, index, series, extras, pt, zoom, offset):
+    """Draw the outline, the circles, the axis or substrate and the neck on `image`."""
+    import cv2
+
+    prep = extras["preparation"]
+    setup = prep.spreading
+    sessile = getattr(prep, "sessile", None)
+    roi = series.provenance.get("options", {}).get("roi")
+    trans = _transmission(extras["frame"], prep, roi)
+    level = series.details.get("edge_level", 0.5)
+    mask = _outline_mask(trans, level, setup, trans.shape, sessile)
+    contours, _ = cv2.findContours(mask, cv2.RETR_EXTERNAL, cv2.CHAIN_APPROX_NONE)
+    for c in contours:
+        rc = (c[:, 0, ::-1] + offset).astype(np.float64)  # (row, col) in the frame
+        poly = np.array([pt(p) for p in rc], dtype=np.int32).reshape(-1, 1, 2)
+        cv2.polylines(image, [poly], True, _OUTLINE, 1, cv2.LINE_AA, 4)
+    before = series.status[index] == "before-contact"
+    # a spreading drop's circle is fitted to the first frames: drawn only while it holds
+    if sessile is not None:
+        circles = list(sessile.caps)
+    elif setup is not None:
+        circles = [setup.drop] if before else []
+    else:
+        circles = list(prep.pair.circles)
+    for circle in circles:
+        r = int(round(circle.radius * zoom * 16))
+        cv2.circle(image, pt(circle.centre + offset), r, _FIT, 1, cv2.LINE_AA, 4)
+    if setup is not None:
+        if setup.view == "side":
+            cols = (image.shape[1] / zoom) - 1
+            row0 = setup.centre[0] + setup.tilt * (0 - offset[1] - setup.centre[1]) + offset[0]
+            row1 = setup.centre[0] + setup.tilt * (cols - offset[1] - setup.centre[1]) + offset[0]
+            cv2.line(image, pt((row0, 0)), pt((row1, cols)), _AXIS, 1, cv2.LINE_AA, 4)
+    elif sessile is not None:  # the plate line, across the frame
+        last = (image.shape[1] / zoom) - 1 - offset[1]
+        ends = [np.array((sessile.line.rows(c), c)) + offset for c in (-offset[1], last)]
+        cv2.line(image, pt(ends[0]), pt(ends[1]), _AXIS, 1, cv2.LINE_AA, 4)
+    else:
+        c0, c1 = (c.centre + offset for c in prep.pair.circles)
+        cv2.line(image, pt(c0), pt(c1), _AXIS, 1, cv2.LINE_AA, 4)
+    edges = extras.get("edges")
+    if edges is not None and np.isfinite(edges[index]).all():
+        a, b = edges[index]
+        cv2.line(image, pt(a), pt(b), _NECK, 1, cv2.LINE_AA, 4)
+        for p in (a, b):
+            cv2.circle(image, pt(p), (2 + zoom) * 16, _NECK, 1, cv2.LINE_AA, 4)
+
+
 def write_overlays(recording, series, extras, out_dir, *, count: int = 6) -> list[Path]:
     """Write annotated PNG frames into `out_dir`; return their paths.
 
-    Each shows the measured outline (magenta), the fitted drop circles
-    (amber), the line of centres or the substrate line (blue), the neck or
-    contact points found in that frame (green) and a caption (frame, status,
-    radius in px).
+    Each shows the measured outline (magenta; for a drop on a plate, only
+    above the substrate line), the fitted drop circles (amber; for a
+    spreading drop only before contact, where the circle fitted to the first
+    frames still describes it), the line of centres or the substrate line
+    (blue), the neck or contact points found in that frame (green), and a
+    caption (frame, status, radius in px) in white on a dark strip above the
+    frame, never over it. Frames narrower than 360 px are enlarged by a whole
+    factor (nearest neighbour) first.
     """
     import cv2
 
     out_dir = Path(out_dir)
     out_dir.mkdir(parents=True, exist_ok=True)
-    prep = extras["preparation"]
-    edges = extras.get("edges")
-    pair = prep.pair
     offset = np.zeros(2)
     roi = series.provenance.get("options", {}).get("roi")
     if roi is not None:
         offset = np.array([roi[0], roi[2]], dtype=np.float64)
     written = []
-    shift = 4  # draw with sub-pixel precision (coordinates x 16)
-    scale = 1 << shift
-
-    def pt(rc):
-        return (int(round((rc[1]) * scale)), int(round((rc[0]) * scale)))
-
     for index in choose_overlay_frames(series.status, count=count):
         raw = recording[index]
         image = _to_bgr(raw)
-        trans = _transmission(raw, prep, roi)
-        mask = (trans < series.details.get("edge_level", 0.5)).astype(np.uint8)
-        contours, _ = cv2.findContours(mask, cv2.RETR_EXTERNAL, cv2.CHAIN_APPROX_NONE)
-        shifted = [c + np.array([[[int(offset[1]), int(offset[0])]]]) for c in contours]
-        cv2.drawContours(image, shifted, -1, _OUTLINE, 1, cv2.LINE_AA)
-        setup = prep.spreading
-        sessile = getattr(prep, "sessile", None)
-        if sessile is not None:
-            circles = list(sessile.caps)
-        else:
-            circles = [setup.drop] if setup is not None else list(pair.circles)
-        for circle in circles:
-            centre, radius = pt(circle.centre + offset), int(round(circle.radius * scale))
-            cv2.circle(image, centre, radius, _FIT, 1, cv2.LINE_AA, shift)
-        if setup is not None:
-            if setup.view == "side":
-                cols = image.shape[1] - 1
-                row0 = setup.centre[0] + setup.tilt * (0 - setup.centre[1])
-                row1 = setup.centre[0] + setup.tilt * (cols - offset[1] - setup.centre[1])
-                cv2.line(
-                    image,
-                    pt((row0, 0) + offset * (1, 0)),
-                    pt((row1, cols)),
-                    _AXIS,
-                    1,
-                    cv2.LINE_AA,
-                    shift,
-                )
-        elif sessile is not None:
-            # The plate line, across the frame.
-            cols = image.shape[1] - 1 - offset[1]
-            ends = [(sessile.line.rows(c), c) for c in (-offset[1], cols)]
-            cv2.line(
-                image, pt(ends[0] + offset), pt(ends[1] + offset), _AXIS, 1, cv2.LINE_AA, shift
+        zoom = max(1, min(4, -(-_MIN_WIDTH // max(image.shape[1], 1))))
+        if zoom > 1:
+            image = cv2.resize(image, None, fx=zoom, fy=zoom, interpolation=cv2.INTER_NEAREST)
+
+        def pt(rc, zoom=zoom):  # (row, col) in frame pixels -> cv2 point, 4 fractional bits
+            return (
+                int(round((rc[1] + 0.5) * zoom * 16 - 8)),
+                int(round((rc[0] + 0.5) * zoom * 16 - 8)),
             )
-        else:
-            c0, c1 = (c.centre + offset for c in pair.circles)
-            cv2.line(image, pt(c0), pt(c1), _AXIS, 1, cv2.LINE_AA, shift)
-        if edges is not None and np.isfinite(edges[index]).all():
-            a, b = edges[index]
-            cv2.line(image, pt(a), pt(b), _NECK, 1, cv2.LINE_AA, shift)
-            for p in (a, b):
-                cv2.circle(image, pt(p), 3 * scale, _NECK, 1, cv2.LINE_AA, shift)
+
+        _annotate(image, index, series, {**extras, "frame": raw}, pt, zoom, offset)
         radius_px = series.radius[index] / series.pixel_size
         label = f"frame {int(series.frame[index])}  {series.status[index]}"
         if np.isfinite(radius_px):
             label += f"  r = {radius_px:.2f} px"
-        _put_label(image, label)
+        image = _with_caption(image, label)
         path = out_dir / f"frame_{int(series.frame[index]):06d}.png"
         with atomic_path(path) as tmp:
             if not cv2.imwrite(str(tmp), image):
@@ -145,22 +174,33 @@ def write_overlays(recording, series, extras, out_dir, *, count: int = 6) -> lis
     return written
 
 
-def _put_label(image, text: str) -> None:
-    """Write `text` at the top left, on as many lines as the frame's width needs."""
+def _caption_lines(text: str, width: int, font, size: float) -> list[str]:
     import cv2
 
-    font, width = cv2.FONT_HERSHEY_SIMPLEX, image.shape[1] - 12
     lines, current = [], ""
     for word in text.split("  "):
         trial = f"{current}  {word}" if current else word
-        if current and cv2.getTextSize(trial, font, 0.45, 1)[0][0] > width:
+        if current and cv2.getTextSize(trial, font, size, 1)[0][0] > width:
             lines.append(current)
             current = word
         else:
             current = trial
     lines.append(current)
+    return lines
+
+
+def _with_caption(image, text: str):
+    """`image` with a dark strip on top holding `text` in white, on as many lines as needed."""
+    import cv2
+
+    font, size = cv2.FONT_HERSHEY_SIMPLEX, 0.5
+    lines = _caption_lines(text, image.shape[1] - 12, font, size)
+    step = 20
+    strip = np.empty((step * len(lines) + 8, image.shape[1], 3), dtype=np.uint8)
+    strip[...] = _STRIP
     for i, line in enumerate(lines):
-        size = 0.45
-        while size > 0.25 and cv2.getTextSize(line, font, size, 1)[0][0] > width:
-            size -= 0.05
-        cv2.putText(image, line, (6, 16 + 16 * i), font, size, _TEXT, 1, cv2.LINE_AA)
+        scale = size
+        while scale > 0.3 and cv2.getTextSize(line, font, scale, 1)[0][0] > image.shape[1] - 12:
+            scale -= 0.05
+        cv2.putText(strip, line, (6, 18 + step * i), font, scale, _TEXT, 1, cv2.LINE_AA)
+    return np.vstack([strip, image])

@@ -8,11 +8,15 @@ The figures are drawn from the records of the analysis, the
 from __future__ import annotations
 
 import math
+import warnings
 from pathlib import Path
 
 import numpy as np
 
 from .._atomic import completed_files
+from ._angles import plot_contact_angles
+from ._local import plot_local_exponent
+from ._origin import time_origin
 from ._style import (
     _CYCLE,
     _DASHES,
@@ -30,10 +34,13 @@ from ._style import (
 
 __all__ = ["write_plots", "PLOT_NAMES", "dominant_curve", "fit_times"]
 
+#: The fit window's fill: light, but a swatch a reader can see in the legend.
+_WINDOW_FILL = "#DCDCDC"
+
 _STATUS_MARKERS = {"unresolved": "v", "not-found": "x", "at-edge": "s", "before-contact": "^"}
 
 #: Stems of the figures that `write_plots` can write (each as .png and .svg).
-PLOT_NAMES = ("radius", "local_exponent", "residuals", "overlays")
+PLOT_NAMES = ("radius", "local_exponent", "residuals", "contact_angle", "overlays")
 
 
 def _window(candidate):
@@ -51,17 +58,13 @@ def _dominant(verdict):
 
 
 def fit_times(series, verdict) -> np.ndarray:
-    """Time of every frame since the fitted contact instant (s); NaN where unknown.
+    """τ of every frame (s), from the outputs' one origin; NaN where unknown.
 
-    The fit's windows count from its own contact time ``verdict.t0`` (which
-    may differ a little from the measured one); plotting against the same
-    origin keeps data and laws on one axis. Without it, the series' own time
-    since contact is used.
+    The origin is the fitted contact instant ``verdict.t0``, whose windows the
+    laws count from, or the measured contact when the fit has none (see
+    :func:`dropkin.report._origin.time_origin`).
     """
-    t0 = _num(verdict.t0) if verdict else None
-    if t0 is not None:
-        return np.asarray(series.time, dtype=float) - t0
-    return np.asarray(series.since_contact, dtype=float)
+    return time_origin(series, verdict).tau(series.time)
 
 
 def _law_radius(tau, *, exponent, prefactor, logarithmic=False, speed=None, drop_radius=None):
@@ -197,7 +200,8 @@ def _plot_crossovers(ax, verdict):
 
 
 def _plot_radius(series, verdict):
-    tau = fit_times(series, verdict)
+    origin = time_origin(series, verdict)
+    tau = origin.tau(series.time)
     r = np.asarray(series.radius, dtype=float)
     err = np.asarray(series.radius_err, dtype=float)
     status = np.asarray(series.status, dtype=object)
@@ -212,75 +216,18 @@ def _plot_radius(series, verdict):
         ax.set_yscale("log")
         _log_axis(ax.xaxis)
         _log_axis(ax.yaxis)
-    ax.set_xlabel("time since contact τ (ms)")
+    else:
+        ax.text(0.5, 0.5, "no radius after contact", transform=ax.transAxes, ha="center")
+    ax.set_xlabel(origin.axis_label)
     ax.set_ylabel("radius r (mm)")
-    ax.legend(loc="upper left", handlelength=2.2)
-    return fig
-
-
-def _exponent_guides(ax, verdict, lo, hi):
-    """A horizontal line at each candidate's theoretical exponent, labelled."""
-    guides: dict[float, list[str]] = {}
-    for cand in verdict.candidates:
-        value = _num(cand.exponent_theory)
-        if _finite(value):
-            guides.setdefault(round(float(value), 9), []).append(cand.key)
-    for k, (value, names) in enumerate(sorted(guides.items())):
-        ax.axhline(
-            value,
-            color=OKABE_ITO[_CYCLE[k % len(_CYCLE)]],
-            ls=_DASHES[k % len(_DASHES)],
-            lw=0.8,
-        )
-        text = f"{_exponent_text(value)}: " + ", ".join(names[:2])
-        if len(names) > 2:
-            text += f" +{len(names) - 2}"
-        ax.annotate(
-            text,
-            xy=(1.0, value),
-            xycoords=("axes fraction", "data"),
-            xytext=(-2, 1),
-            textcoords="offset points",
-            ha="right",
-            va="bottom",
-            fontsize=6,
-            color="#333333",
-            annotation_clip=False,
-        )
-    if guides:
-        values = list(guides) + ([float(np.nanmin(lo)), float(np.nanmax(hi))] if lo.size else [])
-        values = [v for v in values if math.isfinite(v)]
-        pad = 0.1 * max(max(values) - min(values), 0.2)
-        ax.set_ylim(min(values) - pad, max(values) + pad)
-
-
-def _plot_local_exponent(verdict):
-    local = verdict.local if verdict and verdict.local else None
-    t = np.asarray(local.time if local else [], dtype=float)
-    n = np.asarray(local.exponent if local else [], dtype=float)
-    lo = np.asarray(local.lower if local else [], dtype=float)
-    hi = np.asarray(local.upper if local else [], dtype=float)
-    fig = _new_figure(2.2)
-    ax = fig.add_subplot()
-    if t.size and t.size == n.size:
-        if lo.size == t.size and hi.size == t.size:
-            ax.fill_between(
-                t * 1e3, lo, hi, color=OKABE_ITO["sky blue"], alpha=0.35, lw=0, label="band"
-            )
-        ax.plot(t * 1e3, n, "-", marker="o", ms=2, color=OKABE_ITO["blue"], label="d ln r/d ln τ")
-        if np.all(t > 0):
-            ax.set_xscale("log")
-            _log_axis(ax.xaxis)
-    _exponent_guides(ax, verdict, lo, hi)
-    ax.set_xlabel("time since contact τ (ms)")
-    ax.set_ylabel("local exponent n")
-    if t.size:
-        ax.legend(loc="best")
+    if ax.get_legend_handles_labels()[0]:
+        ax.legend(loc="upper left", handlelength=2.2)
     return fig
 
 
 def _plot_residuals(series, verdict):
-    tau = fit_times(series, verdict)
+    origin = time_origin(series, verdict)
+    tau = origin.tau(series.time)
     r = np.asarray(series.radius, dtype=float)
     err = np.asarray(series.radius_err, dtype=float)
     status = np.asarray(series.status, dtype=object)
@@ -300,7 +247,14 @@ def _plot_residuals(series, verdict):
             else ((tau[ok] >= win[0] * (1 - 1e-9)) & (tau[ok] <= win[1] * (1 + 1e-9)))
         )
         if win is not None:
-            ax.axvspan(win[0] * 1e3, win[1] * 1e3, color="#EEEEEE", lw=0, label="fit window")
+            ax.axvspan(
+                win[0] * 1e3,
+                win[1] * 1e3,
+                facecolor=_WINDOW_FILL,
+                edgecolor=_GREY,
+                lw=0.5,
+                label="fit window",
+            )
         ax.errorbar(
             tau[ok][inside] * 1e3,
             rel[inside] * 100,
@@ -330,7 +284,7 @@ def _plot_residuals(series, verdict):
         ax.set_title(f"residuals of the {dom.key} fit", loc="left")
     else:
         ax.text(0.5, 0.5, "no dominant fit", transform=ax.transAxes, ha="center")
-    ax.set_xlabel("time since contact τ (ms)")
+    ax.set_xlabel(origin.axis_label)
     ax.set_ylabel("r / fit − 1 (%)")
     return fig
 
@@ -352,34 +306,44 @@ def _plot_overlays(files):
     return fig
 
 
-def write_plots(out_dir, *, series, verdict) -> list[Path]:
+def write_plots(out_dir, *, series, verdict, overlays_dir=None) -> list[Path]:
     """Write the analysis figures into ``out_dir/plots/`` as PNG and SVG.
 
     Parameters
     ----------
     out_dir : path
-        The analysis folder; figures go to its ``plots/`` subfolder, and the
-        overlay montage reads ``overlays/*.png`` from it.
+        The analysis folder; figures go to its ``plots/`` subfolder.
     series : RadiusSeries
-        The radius series.
+        The radius series (with its contact angles, for a spreading drop seen
+        from the side).
     verdict : RegimeVerdict
-        The regime verdict.
+        The regime verdict; a failed one still gets the radius plot.
+    overlays_dir : path, optional
+        The annotated frames for the montage (default ``out_dir/overlays``).
 
     Returns
     -------
     list of pathlib.Path
-        The files written: ``radius``, ``local_exponent``, ``residuals`` and,
-        when there are overlay frames, ``overlays``, each as ``.png`` and ``.svg``.
+        The files written: ``radius`` always; ``local_exponent`` when the
+        verdict has one; ``residuals`` when it has a dominant regime;
+        ``contact_angle`` when the series has contact angles; ``overlays``
+        when there are overlay frames, each as ``.png`` and ``.svg``. A figure
+        of an earlier run that does not apply any more is removed.
 
     Notes
     -----
+    Every time axis is τ from the one origin of :func:`~dropkin.report._origin.time_origin`
+    (the fitted t₀), named in its label.
+
     - ``radius``: r against τ, log-log; ok frames with error bars, the other
       statuses in grey with their own markers; the dominant free fit as a solid
       line over its window; every consistent candidate's law (theoretical
       exponent, fitted prefactor) dashed; crossovers as vertical dotted lines.
-    - ``local_exponent``: d ln r / d ln τ with its band, and a horizontal guide
-      at each candidate's theoretical exponent.
+    - ``local_exponent``: d ln r / d ln τ with its band, a horizontal guide at
+      each power law's exponent and the log laws' own local exponent as a
+      curve, named in a legend below the axes.
     - ``residuals``: r / fit − 1 of the dominant fit for the ok frames.
+    - ``contact_angle``: the apparent contact angles, left and right.
     - ``overlays``: a montage of the annotated frames.
 
     Each file is written atomically.
@@ -389,12 +353,27 @@ def write_plots(out_dir, *, series, verdict) -> list[Path]:
     out_dir = Path(out_dir)
     plots_dir = out_dir / "plots"
     plots_dir.mkdir(parents=True, exist_ok=True)
+    label = time_origin(series, verdict).axis_label
+    figures = {"radius": lambda: _plot_radius(series, verdict)}
+    if verdict and verdict.local:
+        figures["local_exponent"] = lambda: plot_local_exponent(verdict, series, label)
+    if _dominant(verdict):
+        figures["residuals"] = lambda: _plot_residuals(series, verdict)
+    if series.angles is not None and np.isfinite(np.asarray(series.angles, float)).any():
+        figures["contact_angle"] = lambda: plot_contact_angles(series, verdict)
+    files = completed_files(Path(overlays_dir or out_dir / "overlays"), "*.png")
+    if files:
+        figures["overlays"] = lambda: _plot_overlays(files)
     written: list[Path] = []
-    with matplotlib.rc_context(_RC):
-        written += _save(_plot_radius(series, verdict), plots_dir, "radius")
-        written += _save(_plot_local_exponent(verdict), plots_dir, "local_exponent")
-        written += _save(_plot_residuals(series, verdict), plots_dir, "residuals")
-        files = completed_files(out_dir / "overlays", "*.png")
-        if files:
-            written += _save(_plot_overlays(files), plots_dir, "overlays")
+    with matplotlib.rc_context(_RC), warnings.catch_warnings(), np.errstate(all="ignore"):
+        # data spanning hundreds of decades overflow matplotlib's transforms or
+        # make it adjust a log axis itself, with a warning (attributed to the
+        # caller); the figure is still drawn, and the numbers are in the files
+        warnings.simplefilter("ignore", UserWarning)
+        warnings.simplefilter("ignore", RuntimeWarning)
+        for stem, draw in figures.items():
+            written += _save(draw(), plots_dir, stem)
+    for stem in set(PLOT_NAMES) - set(figures):
+        for ext in ("png", "svg"):
+            (plots_dir / f"{stem}.{ext}").unlink(missing_ok=True)
     return written

@@ -77,11 +77,50 @@ def _exponent_text(n) -> str:
     return f"{n:.3g}" if _finite(n) else "?"
 
 
-def _log_axis(axis):
-    """Log scale with plain tick labels at 1, 2, 5 × 10^k (no minor labels)."""
-    from matplotlib.ticker import FuncFormatter, LogLocator, NullFormatter
+#: Mantissas of the labelled ticks of a log axis, coarsest first; the coarsest
+#: that labels at least :data:`_MIN_LABELS` ticks inside the view is used.
+_LOG_SUBS = ((1.0,), (1.0, 2.0, 5.0), (1.0, 2.0, 3.0, 4.0, 5.0, 6.0, 7.0, 8.0, 9.0))
+_MIN_LABELS = 3
 
-    axis.set_major_locator(LogLocator(base=10, subs=(1.0, 2.0, 5.0)))
+
+def _log_ticks(lo: float, hi: float) -> list[float]:
+    """Tick values for a log axis over [lo, hi]: at least three where the span allows.
+
+    One decade or more gets 1 (and 2, 5) × 10^k; a shorter span every
+    mantissa 1…9; a span too short even for that gets linear ticks.
+    """
+    import numpy as np
+
+    if not (_finite(lo) and _finite(hi) and 0 < lo < hi):
+        return []
+    for subs in _LOG_SUBS:
+        decades = range(math.floor(math.log10(lo)) - 1, math.ceil(math.log10(hi)) + 1)
+        ticks = sorted(
+            v
+            for k in decades
+            for m in subs
+            if lo * (1 - 1e-9) <= (v := float(f"{m * 10.0**k:.12g}")) <= hi * (1 + 1e-9)
+        )
+        if len(ticks) >= _MIN_LABELS:
+            return ticks
+    from matplotlib.ticker import MaxNLocator
+
+    ticks = MaxNLocator(nbins=4, steps=[1, 2, 2.5, 5, 10]).tick_values(lo, hi)
+    return [float(f"{v:.12g}") for v in np.asarray(ticks) if lo <= v <= hi and v > 0]
+
+
+def _log_axis(axis):
+    """Label at least three ticks of a log axis (plain numbers, no minor labels).
+
+    Call it once the data are drawn: the ticks are chosen for the view then.
+    """
+    from matplotlib.ticker import FixedLocator, FuncFormatter, NullFormatter
+
+    axis.axes.autoscale_view()
+    lo, hi = sorted(float(v) for v in axis.get_view_interval())
+    ticks = _log_ticks(lo, hi)
+    if ticks:
+        axis.set_major_locator(FixedLocator(ticks))
     axis.set_major_formatter(FuncFormatter(lambda v, _pos: f"{v:g}"))
     axis.set_minor_formatter(NullFormatter())
 

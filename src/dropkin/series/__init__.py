@@ -21,7 +21,7 @@ import io
 import json
 import math
 from collections.abc import Mapping
-from dataclasses import dataclass, field
+from dataclasses import dataclass, field, replace
 from pathlib import Path
 
 import numpy as np
@@ -29,7 +29,14 @@ import numpy as np
 from .._atomic import write_text_atomic
 from ..errors import DropkinError
 from ..status import STATUSES
-from ._csv import CSV_COLUMNS, TRIGGER_COLUMN, level_column, read_columns
+from ._csv import (
+    ANGLE_COLUMNS,
+    CSV_COLUMNS,
+    TRIGGER_COLUMN,
+    level_column,
+    read_angles,
+    read_columns,
+)
 
 __all__ = [
     "STATUSES",
@@ -248,9 +255,6 @@ def series_to_csv(series: RadiusSeries) -> str:
     )
 
 
-ANGLE_COLUMNS = ("frame", "time_s", "angle_left_deg", "angle_right_deg")
-
-
 def write_series(series: RadiusSeries, out_dir) -> tuple[Path, Path]:
     """Write ``radius.csv`` and ``measure.json`` (and ``angles.csv``, the apparent
     contact angles, when the series has them) into `out_dir`, each atomically."""
@@ -335,7 +339,7 @@ def _read_info(path: Path) -> dict:
 
 
 def read_series(radius_csv) -> RadiusSeries:
-    """Read a ``radius.csv`` and the ``measure.json`` beside it (if any) into one record.
+    """Read a ``radius.csv`` with the ``measure.json`` and ``angles.csv`` beside it.
 
     Raises
     ------
@@ -348,4 +352,8 @@ def read_series(radius_csv) -> RadiusSeries:
     columns = read_columns(path)
     if not len(columns["frame"]):
         raise DropkinError("has no rows, only a header", path=path, expected="one row per frame")
-    return series_from_dict(_read_info(path.with_name("measure.json")), columns)
+    series = series_from_dict(_read_info(path.with_name("measure.json")), columns)
+    angles = path.with_name("angles.csv")
+    if angles.is_file():
+        series = replace(series, angles=read_angles(angles, series.frame))
+    return series

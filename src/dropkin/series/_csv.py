@@ -21,7 +21,15 @@ import numpy as np
 from ..errors import DropkinError
 from ..status import STATUSES
 
-__all__ = ["CSV_COLUMNS", "TRIGGER_COLUMN", "level_column", "level_of_column", "read_columns"]
+__all__ = [
+    "CSV_COLUMNS",
+    "TRIGGER_COLUMN",
+    "ANGLE_COLUMNS",
+    "level_column",
+    "level_of_column",
+    "read_columns",
+    "read_angles",
+]
 
 CSV_COLUMNS = ("frame", "time_s", "since_contact_s", "radius_m", "radius_err_m", "status")
 
@@ -165,3 +173,50 @@ def read_columns(path: Path) -> dict:
     if trigger:
         out[TRIGGER_COLUMN] = values[:, -1]
     return out
+
+
+ANGLE_COLUMNS = ("frame", "time_s", "angle_left_deg", "angle_right_deg")
+
+
+def read_angles(path: Path, frames) -> np.ndarray:
+    """The apparent contact angles of ``angles.csv``, one row per frame of `frames`.
+
+    Returns
+    -------
+    (F, 2) ndarray
+        Degrees at the left and right contact points, in the order of
+        `frames`; NaN where the file has no angle (or no row) for a frame.
+
+    Raises
+    ------
+    DropkinError
+        Naming the file and the line, when the header is not
+        :data:`ANGLE_COLUMNS` or a cell is not a number (empty cells are
+        allowed: no angle).
+    """
+    try:
+        rows = list(csv.reader(io.StringIO(path.read_text(encoding="utf-8"))))
+    except (OSError, UnicodeDecodeError) as exc:
+        raise DropkinError(f"cannot be read ({exc})", path=path) from None
+    if not rows or tuple(c.strip() for c in rows[0]) != ANGLE_COLUMNS:
+        raise DropkinError(
+            "has not the header of an angles file", path=path, expected=",".join(ANGLE_COLUMNS)
+        )
+    by_frame = {}
+    for line, row in enumerate(rows[1:], start=2):
+        if not row:
+            continue
+        if len(row) != len(ANGLE_COLUMNS):
+            raise DropkinError(f"line {line}: has {len(row)} fields", path=path, expected="4")
+        try:
+            frame = int(row[0])
+        except ValueError:
+            raise DropkinError(
+                f"line {line}: frame is not a whole number", path=path, value=row[0]
+            ) from None
+        by_frame[frame] = [
+            _parse_float(text, path=path, line=line, column=column)
+            for column, text in zip(ANGLE_COLUMNS[2:], row[2:], strict=True)
+        ]
+    nan = [math.nan, math.nan]
+    return np.asarray([by_frame.get(int(f), nan) for f in frames], dtype=np.float64).reshape(-1, 2)
