@@ -36,6 +36,7 @@ import numpy as np
 
 from ..status import AT_EDGE, BEFORE_CONTACT, NOT_FOUND, OK, UNRESOLVED
 from ._band import BAND_LIMIT, Band
+from ._neck_curvature import blur_shift, outline_curvature
 
 __all__ = ["NeckResult", "neck_from_band", "gap_on_axis"]
 
@@ -275,6 +276,7 @@ def neck_from_band(
     *,
     noise: float,
     radii,
+    blur: float = 0.0,
     level: float = 0.5,
     min_gap: float = 1.0,
     err_floor: float = 0.1,
@@ -295,6 +297,11 @@ def neck_from_band(
         noise), for the uncertainty.
     radii : (2,) array_like
         The two drops' radii (px), for the resolution criterion.
+    blur : float, optional
+        The edges' blur sigma (px; see :func:`edge_blur`): the radius is
+        corrected for the outward shift that blur gives the concave outline
+        beside the neck (:mod:`dropkin.vision._neck_curvature`); 0 leaves
+        the half-transmission contour as it is.
     level : float, optional
         Transmission of the outline.
     min_gap : float, optional
@@ -334,8 +341,10 @@ def neck_from_band(
     width, bound = _widths(up, down, on_axis_dark, float(band.u[-1]))
     m, rows = np.argmin(width, axis=0), np.arange(k)
     w_min, offset, w_ref = _vertex(width, m, rows)
-    radius_all = 0.5 * w_ref
     err = 0.5 * np.hypot(noise / up.slope[m, rows], noise / down.slope[m, rows])
+    kappa, kappa_err = outline_curvature(width, m, s_step, width_err=2.0 * err)
+    shift, shift_err = blur_shift(kappa, blur, kappa_err)
+    radius_all = 0.5 * w_ref - shift
     r_px = np.asarray(radii, dtype=np.float64)
     gap = radius_all**2 * 0.5 * (1.0 / r_px[0] + 1.0 / r_px[1])
     limit = up.none[m, rows] | down.none[m, rows]
@@ -350,8 +359,9 @@ def neck_from_band(
     radius_err = np.full(k, np.nan)
     s_neck = np.full(k, np.nan)
     radius[measured] = radius_all[measured]
-    radius_err[measured] = np.hypot(err, err_floor)[measured]
+    radius_err[measured] = np.sqrt(err**2 + err_floor**2 + shift_err**2)[measured]
     s_neck[measured] = band.s[m[measured]] + offset[measured] * s_step
     edges = _neck_edges(band, s_neck, up.dist[m, rows], down.dist[m, rows], measured)
     others = _level_radius(t, band.valid, c, m, levels, band.u[c:], allow_coarse, measured)
+    others -= shift[:, None]  # the same shift at every level, to first order
     return NeckResult(radius, radius_err, s_neck, edges, status, gap_width, others)
