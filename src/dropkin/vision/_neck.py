@@ -19,9 +19,20 @@ that touch leave a gap of about ``g = r**2 / 2 * (1/R0 + 1/R1)`` between
 their surfaces (the sagitta of each, ``r**2 / (2 R)``, added). While
 ``g < min_gap`` the notch beside the bridge is too thin for the optics:
 blur fills its tip, the half-transmission contour retreats from it, and
-the measured width is too large. Such frames are ``unresolved``. On
-synthetic frames with a Gaussian blur sigma, ``g`` of three sigma kept the
-bias of the radius below about 0.35 px (``tests/vision/test_neck.py``).
+the measured width is too large. Such frames are ``unresolved``.
+
+*Blur's shift of the outline*: beside the neck the outline is concave (the
+notch's centre of curvature lies in the gap), and blur moves a curved
+edge's half-transmission contour towards its centre of curvature, so the
+contour found reads the neck large even where it counts as resolved: by
+0.45-0.6 px at g = 3 sigma, 0.2 px at 6 sigma, 0.1 px at 10 sigma, decaying
+smoothly (measured on two independent renderers, blur sigma 0.7-1.5 px),
+which a fit takes for physics. The radius is corrected by the shift worked
+out from the contour's measured curvature at the neck (the widths of the
+columns around the narrowest) and the measured blur, and ``radius_err``
+holds what the correction leaves; see :mod:`dropkin.vision._neck_curvature`.
+After it the bias is within 0.1 px from g = 3.5 sigma on
+(``tests/vision/test_neck_blur_shift.py`` gives the tables).
 
 :func:`neck_from_band` measures a chunk sampled on one band;
 :func:`dropkin.vision.measure_necks` (:mod:`dropkin.vision._neck_chunk`)

@@ -38,9 +38,11 @@ blurred indicator computed on a fine grid) moves by 0.424 sigma at
 rho = 1.5 sigma where the first order says 0.333 sigma: the walls of so
 narrow a notch let less light through, and the tip retreats further. The
 excess falls off as about ``0.6 (sigma / rho)**2`` of the shift (0.27,
-0.14, 0.05 of it at rho = 1.5, 2, 3 sigma). It depends on the notch's shape
-beyond its tip, so it is not corrected but stated: ``shift_err`` holds it,
-with the noise of the measured curvature.
+0.14, 0.05 of it at rho = 1.5, 2, 3 sigma; it is held at its value at
+1.5 sigma for sharper tips, which the resolution criterion leaves out). It
+is added to the first order, as the model tip's; it depends on the notch's shape
+beyond its tip, so it is also stated in full as ``shift_err``, with the
+noise of the measured curvature.
 
 The curvature is a least-squares parabola through the widths of the columns
 around the narrowest, over a half-window of about 0.6 rho_m (a first look
@@ -160,6 +162,9 @@ def blur_shift(kappa, blur: float, kappa_err=None):
     slope = np.where(small, 0.5 * var, (root - 1.0) / (2.0 * safe**2 * root))  # d first / d kappa
     # The outline's own curvature, 1 / (rho_m + first), and the second order.
     kappa_true = np.where(small, kappa, 1.0 / (1.0 / safe + first))
-    second = _SECOND_ORDER * first * var * kappa_true**2
+    # Beyond rho = 1.5 sigma (unresolved necks) the expansion is not followed further.
+    second = _SECOND_ORDER * first * np.minimum(var * kappa_true**2, 1.0 / 1.5**2)
     noise = 0.0 if kappa_err is None else np.nan_to_num(slope * np.asarray(kappa_err), nan=0.0)
-    return first + second, np.hypot(noise * (1.0 + 3.0 * second / np.maximum(first, 1e-12)), second)
+    return first + second, np.hypot(
+        noise * (1.0 + 3.0 * second / np.maximum(first, 1e-12)), second
+    )
