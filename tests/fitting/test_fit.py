@@ -249,9 +249,7 @@ def test_fits_the_data_cannot_support_are_falsy_and_say_why():
     assert not few and few.message == "too few points: 7 after contact, at least 8 needed"
     short = fit_power_law(np.linspace(10.0, 20.0, 30), np.linspace(10.0, 20.0, 30) ** 0.5)
     # log10(20/10) = 0.30103, shown rounded down to 4 digits
-    assert (
-        not short and "at least 1/3 decade" in short.message and "0.3010 decades" in short.message
-    )
+    assert not short and "at least 1/3 decade" in short.message and "0.3010 decades" in short.message
     before = fit_power_law(t, r, t0_bracket=(200.0, 210.0))
     assert not before and before.message.startswith("all 50 usable points lie before contact")
     logged = fit_log_law(t[:3], r[:3], capillary_speed=1.0, drop_radius=1e3)
