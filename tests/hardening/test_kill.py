@@ -62,9 +62,9 @@ def _program() -> str:
 
 @pytest.fixture(scope="module")
 def recording(tmp_path_factory) -> Path:
-    """40 frames of 120 x 192 px: two 1 mm water drops at 25 µm per pixel, 50 kfps."""
+    """48 frames of 120 x 192 px: two 1 mm water drops at 25 µm per pixel, 50 kfps."""
     folder = tmp_path_factory.mktemp("kill") / "pair"
-    args = ["--frames", "40", "--size", "120x192", "--pixel-size", "25 um"]
+    args = ["--frames", "48", "--size", "120x192", "--pixel-size", "25 um"]
     args += ["--frame-rate", "50 kHz", "--contact-frame", "3.5"]
     result = CliRunner().invoke(main, ["synth", str(folder), *args])
     assert result.exit_code == 0, result.output

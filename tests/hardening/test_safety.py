@@ -137,7 +137,7 @@ def hostile(tmp_path_factory):
     root = tmp_path_factory.mktemp("hostile")
     # A path component cannot hold "/", so "</script>" spans two folders.
     recording = root / "<script>alert(1)<" / "script>" / IMAGE
-    args = ["--frames", "40", "--size", "120x192", "--pixel-size", "25 um"]
+    args = ["--frames", "48", "--size", "120x192", "--pixel-size", "25 um"]
     args += ["--frame-rate", "50 kHz", "--contact-frame", "3.5", "--liquid-name", SCRIPT]
     result = CliRunner().invoke(main, ["synth", str(recording), *args])
     assert result.exit_code == 0, result.output

@@ -28,7 +28,7 @@ class _Bands:
         (M, N) of the frames.
     pair : DropPair
     illumination : (M, N) ndarray
-    dark, noise, level, min_gap : float
+    dark, noise, blur, level, min_gap : float
         As for :func:`measure_necks` and :func:`neck_from_band`.
     cache : dict or None
         Bands and their illumination, kept between calls (a new dict if None).
@@ -36,12 +36,15 @@ class _Bands:
         Other edge levels measured too (see :func:`neck_from_band`).
     """
 
-    def __init__(self, shape, pair, illumination, dark, noise, level, min_gap, cache, levels=()):
+    def __init__(
+        self, shape, pair, illumination, dark, noise, blur, level, min_gap, cache, levels=()
+    ):
         self.shape = shape
         self.pair = pair
         self.illum = illumination[None]
         self.dark = dark
         self.noise = noise
+        self.blur = blur
         self.level = level
         self.min_gap = min_gap
         self.cache = {} if cache is None else cache
@@ -79,6 +82,7 @@ class _Bands:
             band,
             noise=self.noise,
             radii=self.pair.radii,
+            blur=self.blur,
             level=self.level,
             min_gap=self.min_gap,
             allow_coarse=rough,
@@ -155,7 +159,7 @@ def measure_necks(
         raise ValueError(f"frames must be (K, M, N), got shape {frames.shape}")
     min_gap = gap_blurs * blur
     bands = _Bands(
-        frames.shape[1:], pair, illumination, dark, noise, level, min_gap, cache, levels
+        frames.shape[1:], pair, illumination, dark, noise, blur, level, min_gap, cache, levels
     )
     r_small = float(min(pair.radii))
     full_s = 0.25 * r_small + 6.0
