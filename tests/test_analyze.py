@@ -64,16 +64,6 @@ def test_analyze_names_the_law_the_sample_was_made_with(tmp_path_factory, source
     assert (out / "radius.csv").exists() and (out / "measure.json").exists()
 
 
-_RESOLUTION_BIAS = pytest.mark.xfail(
-    strict=True,
-    reason="known defect, reduced: with the correction for blur's shift of the concave outline "
-    "the first resolved radii read +0.065 px high (was +0.56) at a gap of 3.3 edge blurs, "
-    "+0.05 at 3.8, < 0.03 beyond 4.3; n = 1.0015 and the combined interval [1.0005, 1.0026] "
-    "still misses 1, as the statistical interval of this noise-free sample is +-0.0005 "
-    "(measurement accuracy, issue 15)",
-)
-
-
 @pytest.mark.parametrize(
     ("source", "regime", "exponent"),
     [
@@ -81,7 +71,7 @@ _RESOLUTION_BIAS = pytest.mark.xfail(
         # inertial coalescence 1/2, Phys. Rev. Lett. 95, 164503 (2005); inertially limited
         # viscous 1, PNAS 109, 6857 (2012); inertial spreading 1/2, Phys. Rev. E 69, 016301.
         ("fast_pair.tif", "inertial", 0.5),
-        pytest.param("viscous_pair", "inertially-limited-viscous", 1.0, marks=_RESOLUTION_BIAS),
+        ("viscous_pair", "inertially-limited-viscous", 1.0),
         ("spreading_drop", "inertial-spreading", 0.5),
     ],
 )

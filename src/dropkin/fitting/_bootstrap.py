@@ -2,7 +2,9 @@
 
 Residual bootstrap, not pairs, so that the frame times stay those of the
 camera: the normalised residuals of the best fit are resampled with
-replacement, put back onto the fitted curve with each point's own σ, and
+replacement (scaled up to the stated σ when they scatter less than it:
+:func:`resampled_residuals`), put back onto the fitted curve with each
+point's own σ, and
 the law is fitted again — the contact instant t0 included, inside the same
 bracket as the fit, whenever the fit had it free. Intervals are the 2.5 and
 97.5 percentiles of the refitted values, as they come: when an estimate lies
@@ -28,7 +30,13 @@ from ._linear import LinearModel, profile_many
 from ._records import BlendFit, LawFit
 from ._two_laws import TwoLawModel, build_model, least_squares_fit
 
-__all__ = ["bootstrap_linear", "bootstrap_blend", "percentile_interval", "outside"]
+__all__ = [
+    "bootstrap_linear",
+    "bootstrap_blend",
+    "percentile_interval",
+    "outside",
+    "resampled_residuals",
+]
 
 _PERCENTILES = (2.5, 97.5)
 
@@ -50,6 +58,22 @@ def outside(**pairs) -> tuple[str, ...]:
         for name, (value, (lo, hi)) in pairs.items()
         if math.isfinite(lo) and math.isfinite(hi) and not lo <= value <= hi
     )
+
+
+def resampled_residuals(y, fitted, s):
+    """The normalised residuals a residual bootstrap draws from: centred, and never
+    smaller on the whole than the stated uncertainties.
+
+    When the residuals scatter less than the points' stated σ say (root mean
+    square below 1: a Birge ratio below 1), they are scaled up to unit root
+    mean square, so that the intervals carry at least the uncertainty the
+    measurement states; larger scatter is kept as it is (the usual rule of
+    weighted fits: the larger of the internal and the external error).
+    """
+    e = (np.asarray(y) - fitted) / s
+    e = e - e.mean()
+    rms = float(np.sqrt(np.mean(e**2))) if len(e) else 0.0
+    return e / rms if 0.0 < rms < 1.0 else e
 
 
 def _std(values) -> float:
@@ -82,8 +106,7 @@ def bootstrap_linear(series: Series, model: LinearModel, fit: LawFit, *, f_scale
     if model.shape is None:
         beta.append(fit.exponent)
     fitted = x @ np.asarray(beta) + off
-    e = (data.y - fitted) / data.s
-    e = e - e.mean()
+    e = resampled_residuals(data.y, fitted, data.s)
     idx = rng.integers(0, len(data), size=(n, len(data)))
     y_star = fitted[None, :] + data.s[None, :] * e[idx]
     if fit.t0_free:
@@ -146,8 +169,7 @@ def bootstrap_blend(series: Series, fit: BlendFit, *, f_scale, n, seed, **spec) 
     )
     best = _theta_from_fit(model, fit)
     fitted = model.log_radius(best, data.time)
-    e = (data.y - fitted) / data.s
-    e = e - e.mean()
+    e = resampled_residuals(data.y, fitted, data.s)
     idx = rng.integers(0, len(data), size=(n, len(data)))
     x0 = np.clip(best, bounds[0], bounds[1])
     rows = []

@@ -20,7 +20,7 @@ import math
 
 import numpy as np
 
-from ._bootstrap import outside, percentile_interval
+from ._bootstrap import outside, percentile_interval, resampled_residuals
 from ._core import Series, bracket_ci, information, normal_ci, safe_exp
 from ._records import LawFit
 
@@ -187,8 +187,7 @@ def bootstrap_initial_radius(series: Series, fit: LawFit, *, f_scale, n, seed) -
     best = [math.log(fit.prefactor), fit.exponent, fit.initial_radius]
     best += [fit.t0] if t0_fixed is None else []
     fitted = _log_radius(np.array(best), data.time, t0_fixed)
-    e = (data.y - fitted) / data.s
-    e = e - e.mean()
+    e = resampled_residuals(data.y, fitted, data.s)
     idx = rng.integers(0, len(data), size=(n, len(data)))
     rows = []
     for b in range(n):

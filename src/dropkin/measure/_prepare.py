@@ -37,6 +37,9 @@ class Preparation:
         The two drops on the plate (sessile coalescence, side view).
     reference_frame : int
         Index (in the recording) of the frame they were found in.
+    shift_correction : bool
+        Whether the neck is corrected for blur's shift of its concave outline
+        (free drops; not the footprints of sessile drops seen from below).
     """
 
     illumination: np.ndarray
@@ -47,6 +50,7 @@ class Preparation:
     reference_frame: int
     spreading: object | None = None
     sessile: object | None = None
+    shift_correction: bool = True
 
 
 def _noise(trans) -> float:
@@ -101,7 +105,10 @@ def prepare(
             reason = exc.message
             continue
         blur = vision.edge_blur(trans, pair)
-        return Preparation(illumination, dark, _noise(trans), blur, pair, index)
+        free_drops = geometry != "sessile-coalescence"
+        return Preparation(
+            illumination, dark, _noise(trans), blur, pair, index, shift_correction=free_drops
+        )
     raise MeasurementError(
         f"the drops were not found in the first frames ({reason})", path=recording.path
     )

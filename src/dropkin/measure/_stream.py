@@ -80,6 +80,7 @@ def _chunk_result(frames, prep, options, cache, hint=None):
         cache=cache,
         hint=hint,
         levels=options.other_levels,
+        shift_correction=prep.shift_correction,
     )
 
 

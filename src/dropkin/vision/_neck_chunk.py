@@ -106,6 +106,7 @@ def measure_necks(
     cache: dict | None = None,
     hint: float | None = None,
     levels=(),
+    shift_correction: bool = True,
 ) -> NeckResult:
     """Neck radius in each frame of a chunk, looking only at a band around the neck.
 
@@ -149,6 +150,11 @@ def measure_necks(
     levels : sequence of float, optional
         Other edge levels at which the neck is measured too, in the same
         pass (``level_radius`` of the result; see :func:`neck_from_band`).
+    shift_correction : bool, optional
+        Correct the radius for blur's outward shift of the concave outline
+        beside the neck (:mod:`._neck_curvature`); off for outlines whose
+        notch is not a rounded tip (the footprints of sessile drops seen from
+        below, whose shape is not modelled).
 
     Returns
     -------
@@ -158,9 +164,9 @@ def measure_necks(
     if frames.ndim != 3:
         raise ValueError(f"frames must be (K, M, N), got shape {frames.shape}")
     min_gap = gap_blurs * blur
-    bands = _Bands(
-        frames.shape[1:], pair, illumination, dark, noise, blur, level, min_gap, cache, levels
-    )
+    shift_blur = blur if shift_correction else 0.0  # 0: no correction (neck_from_band)
+    shape = frames.shape[1:]
+    bands = _Bands(shape, pair, illumination, dark, noise, shift_blur, level, min_gap, cache, levels)
     r_small = float(min(pair.radii))
     full_s = 0.25 * r_small + 6.0
     full_u = 1.1 * r_small + 4.0
