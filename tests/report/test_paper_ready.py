@@ -101,10 +101,11 @@ def _page(out: Path) -> _Page:
 
 
 def test_a_failed_fit_writes_its_radius_plot_and_a_report_that_says_why(runs, tmp_path):
-    """The brief's case: the first 30 rows of fast_pair's radius.csv, fitted alone."""
+    """The brief's case: the first rows of fast_pair's radius.csv, fitted alone (through
+    frame 33: eleven resolved necks over less than a third of a decade)."""
     short = tmp_path / "short"
     short.mkdir()
-    rows = (runs["pair"] / "radius.csv").read_text(encoding="utf-8").splitlines()[:31]
+    rows = (runs["pair"] / "radius.csv").read_text(encoding="utf-8").splitlines()[:35]
     (short / "radius.csv").write_text("\n".join(rows) + "\n", encoding="utf-8")
     shutil.copy(runs["pair"] / "measure.json", short)
     shutil.copytree(runs["pair"] / "overlays", short / "overlays")
@@ -187,7 +188,11 @@ def test_one_time_origin_stated_in_every_output(runs):
     # the report and the plots' axes name the origin
     page = _page(out)
     sentence = " ".join(page.text["time-origin"].split())
-    assert "t₀ = 66.7 µs" in sentence and "since_contact_s = τ − 9.38 µs" in sentence
+    # the numbers of fit.json, as the sentence writes them (3 significant digits, µs)
+    t0_us, shift_us = origin["t0_s"] * 1e6, shift * 1e6
+    sign = "−" if shift_us > 0 else "+"
+    assert f"t₀ = {t0_us:.3g} µs" in sentence
+    assert f"since_contact_s = τ {sign} {abs(shift_us):.3g} µs" in sentence
     series, verdict = read_series(out / "radius.csv"), read_fit(out / "fit.json")
     assert time_origin(series, verdict).t0 == origin["t0_s"]
     assert _plot_radius(series, verdict).axes[0].get_xlabel() == (

@@ -165,8 +165,8 @@ def measure_necks(
         raise ValueError(f"frames must be (K, M, N), got shape {frames.shape}")
     min_gap = gap_blurs * blur
     shift_blur = blur if shift_correction else 0.0  # 0: no correction (neck_from_band)
-    shape = frames.shape[1:]
-    bands = _Bands(shape, pair, illumination, dark, noise, shift_blur, level, min_gap, cache, levels)
+    shape, light = frames.shape[1:], (illumination, dark, noise)
+    bands = _Bands(shape, pair, *light, shift_blur, level, min_gap, cache, levels)
     r_small = float(min(pair.radii))
     full_s = 0.25 * r_small + 6.0
     full_u = 1.1 * r_small + 4.0
