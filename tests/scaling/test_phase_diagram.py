@@ -168,3 +168,40 @@ def test_user_prefactors_remove_the_range():
     y = coalescence_diagram(n, {"inertial": 1.4, ILV: 1.0}).crossover(INERTIAL)
     assert y.time_range == (y.time, y.time)
     assert y.radius == pytest.approx(1.4**2 * n.ohnesorge * n.radius, rel=1e-12)
+
+
+def test_free_drops_seen_from_below_have_the_free_drop_laws():
+    # Issue 14, deliver 3: two free drops seen from below (line of centres horizontal)
+    # show the same silhouette neck as from the side (projection across the line of
+    # centres: geometry, common practice), so the same laws are offered; drops on a
+    # plate seen from below show a bridge width, with its own law (B3) only.
+    from dropkin.scaling import candidates, sample_numbers
+
+    n = sample_numbers(surface_tension=0.0727, viscosity=1e-3, density=998.0, radius=1e-3,
+                       outer_viscosity=1.8e-5, outer_density=1.2, contact_angle=0.7)  # fmt: skip
+    side = [c.regime.key for c in candidates(n, "coalescence", "side")]
+    below = [c.regime.key for c in candidates(n, "coalescence", "bottom")]
+    assert below == side and "inertial" in below
+    sessile_below = [c.regime.key for c in candidates(n, "sessile-coalescence", "bottom")]
+    assert "inertial" not in sessile_below and "viscous-sessile-width" in sessile_below
+
+
+def test_tanner_needs_complete_wetting_when_the_equilibrium_angle_is_known():
+    # Issue 14, deliver 3: Tanner's law (J. Phys. D 12, 1473, 1979) is for completely
+    # wetting liquids (Rev. Mod. Phys. 57, 827, 1985); a 5° bound stands for "complete"
+    # (common practice). Unknown angle: assumed, and said so.
+    from dropkin.scaling import candidates, sample_numbers
+
+    oil = {"surface_tension": 0.0209, "viscosity": 0.0965, "density": 964.5, "radius": 0.5e-3,
+           "outer_viscosity": 1.8e-5, "outer_density": 1.2}  # fmt: skip
+
+    def tanner(**extra):
+        (c,) = [c for c in candidates(sample_numbers(**oil, **extra), "spreading")
+                if c.regime.key == "tanner"]  # fmt: skip
+        return c
+
+    assumed = tanner()
+    assert assumed.plausible and "complete wetting assumed" in assumed.reason
+    assert tanner(contact_angle=math.radians(2.0)).plausible
+    partial = tanner(contact_angle=math.radians(40.0))
+    assert not partial.plausible and "partial wetting" in partial.reason

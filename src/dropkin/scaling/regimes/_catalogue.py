@@ -107,6 +107,8 @@ def candidates(numbers: SampleNumbers, geometry: str, view: str = "side") -> tup
     for entry in REGIMES:
         if geometry not in entry.geometries or view not in entry.views:
             continue
+        if geometry != "coalescence" and entry.setting == "free drops" and view != "side":
+            continue  # from below, drops on a plate show a bridge width, not a free neck
         plausible, reason = entry.check(numbers)
         found.append(Candidate(entry, bool(plausible), reason, entry.group(numbers)))
     return tuple(found)

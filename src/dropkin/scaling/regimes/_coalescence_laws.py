@@ -17,10 +17,13 @@ from ._regime import Regime, powers
 __all__ = ["COALESCENCE_LAWS"]
 
 _COALESCENCE = ("coalescence",)
-_SIDE = ("side",)
+#: Two free drops are seen in silhouette from any direction across their line of
+#: centres: from the side, or from below through a transparent floor when the line
+#: of centres is horizontal. The neck radius is the same observable in both.
+_SIDE = ("side", "bottom")
 _ELS = "J. Fluid Mech. 401, 293 (1999); the 2-D solution of J. Fluid Mech. 213, 349 (1990)"
 
-#: A1–A4: the neck between two drops, seen from the side.
+#: A1–A4: the neck between two drops, seen from the side or from below.
 COALESCENCE_LAWS: tuple[Regime, ...] = (
     Regime(
         key="viscous",

@@ -150,10 +150,21 @@ def hertz_like(n):
     return n.ohnesorge >= 1.0, f"Oh = {_g(n.ohnesorge)} (very viscous when ≥ 1)"
 
 
+#: Largest equilibrium contact angle taken as complete wetting for Tanner's law
+#: (common practice: the law needs the dynamic angle far above the equilibrium one,
+#: and a few degrees is where partial-wetting drops are reported to stop short of it).
+TANNER_WETTING_DEG = 5.0
+
+
 def tanner(n):
-    return n.bond < 1.0, (
-        f"Bo = {_g(n.bond)} (small drop when < 1); needs complete wetting (not checked)"
-    )
+    small = n.bond < 1.0
+    size = f"Bo = {_g(n.bond)} (small drop when < 1)"
+    if n.contact_angle is None:
+        return small, f"{size}; complete wetting assumed (no equilibrium angle given)"
+    degrees = math.degrees(n.contact_angle)
+    wets = degrees <= TANNER_WETTING_DEG
+    verdict = "complete wetting" if wets else "partial wetting: needs complete wetting"
+    return small and wets, f"{size}; θ_e = {degrees:.3g}° ({verdict}, ≤ {TANNER_WETTING_DEG:g}°)"
 
 
 def gravity(n):
