@@ -271,3 +271,37 @@ def test_batch_with_a_bad_manifest_runs_nothing(tmp_path):
     line = result.stderr.strip()
     assert "\n" not in line and "m.toml" in line and "recordings[1].path" in line
     assert not (tmp_path / "out").exists()
+
+
+def test_collapse_refuses_a_catalogue_without_the_columns_it_reads(tmp_path):
+    # Issue 17, finding 10: a recordings table with other columns gave a KeyError
+    # traceback; now one line naming the file and the missing columns, exit 1.
+    out = tmp_path / "out"
+    out.mkdir()
+    with sqlite3.connect(out / "catalogue.sqlite") as conn:
+        conn.execute("CREATE TABLE recordings (label TEXT, result TEXT)")
+        conn.execute("INSERT INTO recordings VALUES ('a', 'b')")
+    result = CliRunner().invoke(main, ["collapse", str(out)])
+    assert result.exit_code == 1
+    lines = result.stderr.strip().splitlines()
+    assert len(lines) == 1 and "catalogue.sqlite" in lines[0] and "no status column" in lines[0]
+    assert "Traceback" not in result.output
+
+
+def test_collapse_reads_only_inside_its_output_folder(pool_run, tmp_path):
+    # Issue 17, finding 12: the catalogue's output column named any path; a row that
+    # points outside OUT is left out with its reason, the others still collapse.
+    out, _ = pool_run
+    copy = tmp_path / "out"
+    shutil.copytree(out, copy)
+    outside = tmp_path / "elsewhere"
+    shutil.copytree(copy / "mu120", outside)
+    with sqlite3.connect(copy / "catalogue.sqlite") as conn:
+        conn.execute("UPDATE recordings SET output = ? WHERE label = ?", ("../elsewhere", "mu120"))
+    result = CliRunner().invoke(main, ["collapse", str(copy)])
+    assert result.exit_code == 0, result.output
+    (curve,) = json.loads((copy / "collapse" / "collapse.json").read_text())["curves"]
+    assert "mu120" not in [m["label"] for m in curve["members"]]
+    reasons = dict(curve["left_out"]) if isinstance(curve["left_out"][0], list) else {
+        item["label"]: item["reason"] for item in curve["left_out"]}  # fmt: skip
+    assert "outside" in reasons["mu120"]

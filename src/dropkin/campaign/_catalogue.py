@@ -115,6 +115,10 @@ def write_row(conn: sqlite3.Connection, row: dict) -> None:
         )
 
 
+#: Columns a reader of the catalogue relies on (collapse, reports).
+_READ_COLUMNS = ("label", "status")
+
+
 def read_rows(source) -> list[dict]:
     """Every row of a catalogue (a connection, an output folder or the file)."""
     if isinstance(source, sqlite3.Connection):
@@ -132,8 +136,17 @@ def read_rows(source) -> list[dict]:
         conn.row_factory = sqlite3.Row
         try:
             cursor = conn.execute("SELECT * FROM recordings ORDER BY label")
-            return [dict(r) for r in cursor.fetchall()]
+            names = {d[0] for d in cursor.description}
+            rows = [dict(r) for r in cursor.fetchall()]
         finally:
             conn.close()
     except sqlite3.DatabaseError as exc:
         raise DropkinError(f"is not a dropkin results catalogue ({exc})", path=path) from None
+    missing = [c for c in _READ_COLUMNS if c not in names]
+    if missing:
+        raise DropkinError(
+            "is not a dropkin results catalogue (its recordings table has no "
+            f"{', '.join(missing)} column)",
+            path=path,
+        )
+    return rows

@@ -169,8 +169,16 @@ def _shape_slope(x, y, rel, regime) -> tuple[float, float]:
     return float(fit[0]), math.sqrt(float(cov[0, 0]) * max(chi2, 1.0))
 
 
+def _inside(out_dir: Path, name) -> Path:
+    """The recording's folder named by the catalogue, refused when it lies outside OUT."""
+    folder = (out_dir / str(name)).resolve()
+    if not folder.is_relative_to(out_dir.resolve()):
+        raise DropkinError("names a folder outside the campaign's output folder", path=folder)
+    return folder
+
+
 def _member(row, out_dir: Path, regime) -> Member:
-    folder = out_dir / (row.get("output") or row["label"])
+    folder = _inside(out_dir, row.get("output") or row["label"])
     series = read_radius_csv(folder / "radius.csv")
     verdict = read_fit(folder / "fit.json")
     t0 = verdict.t0 if verdict else math.nan  # fit.json has a contact instant when it succeeded
