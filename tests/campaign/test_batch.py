@@ -305,3 +305,16 @@ def test_collapse_reads_only_inside_its_output_folder(pool_run, tmp_path):
     reasons = dict(curve["left_out"]) if isinstance(curve["left_out"][0], list) else {
         item["label"]: item["reason"] for item in curve["left_out"]}  # fmt: skip
     assert "outside" in reasons["mu120"]
+
+
+def test_published_folders_honour_the_umask(pool_run):
+    # Issue 17, finding 11: each recording's folder was made private (0700) by the
+    # temporary-folder call and kept that mode when published; colleagues in the group
+    # could not read it. The umask decides, as for any folder the user makes.
+    import os
+
+    out, _ = pool_run
+    mask = os.umask(0o022)
+    os.umask(mask)
+    for label in GOOD:
+        assert (out / label).stat().st_mode & 0o777 == 0o777 & ~mask

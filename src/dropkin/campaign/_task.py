@@ -88,6 +88,14 @@ def _measured_sha256(folder: Path) -> str | None:
         return None
 
 
+def _folder_mode() -> int:
+    """The mode a new folder gets under the process's umask (read without changing it
+    for long: os.umask only sets and returns)."""
+    mask = os.umask(0o022)
+    os.umask(mask)
+    return 0o777 & ~mask
+
+
 def run_task(task: Task, out_dir) -> dict:
     """Analyse one recording of a campaign into ``OUT/<label>``; its catalogue row.
 
@@ -106,6 +114,7 @@ def run_task(task: Task, out_dir) -> dict:
         "started_utc": start,
     }
     work = Path(tempfile.mkdtemp(prefix=f"{WORK_PREFIX}{task.label}-", dir=out_dir))
+    work.chmod(_folder_mode())  # mkdtemp makes it private (0700); the umask decides
     try:
         row["input_stat"] = input_fingerprint(task.source)
         exp, _ = open_source(
