@@ -46,41 +46,26 @@ def _measure_chunk(bounds):
 
 def _chunk_result(frames, prep, options, cache, hint=None):
     """The NeckResult or ContactLineResult of a chunk of (cropped) frames."""
+    common = {
+        "illumination": prep.illumination,
+        "dark": prep.dark,
+        "noise": prep.noise,
+        "level": options.level,
+        "gap_blurs": options.gap_blurs,
+        "levels": options.other_levels,
+    }
     if prep.sessile is not None:
-        return vision.measure_bridges(
-            frames,
-            prep.sessile,
-            illumination=prep.illumination,
-            dark=prep.dark,
-            noise=prep.noise,
-            level=options.level,
-            gap_blurs=options.gap_blurs,
-            levels=options.other_levels,
-        )
+        return vision.measure_bridges(frames, prep.sessile, **common)
     if prep.spreading is not None:
-        return vision.measure_contact_lines(
-            frames,
-            prep.spreading,
-            illumination=prep.illumination,
-            dark=prep.dark,
-            noise=prep.noise,
-            level=options.level,
-            gap_blurs=options.gap_blurs,
-            levels=options.other_levels,
-        )
+        return vision.measure_contact_lines(frames, prep.spreading, **common)
     return vision.measure_necks(
         frames,
         prep.pair,
-        illumination=prep.illumination,
-        dark=prep.dark,
-        noise=prep.noise,
         blur=prep.blur,
-        level=options.level,
-        gap_blurs=options.gap_blurs,
         cache=cache,
         hint=hint,
-        levels=options.other_levels,
         shift_correction=prep.shift_correction,
+        **common,
     )
 
 
