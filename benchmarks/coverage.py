@@ -206,9 +206,12 @@ def limits(case: Case, s: SyntheticSeries, j: int) -> dict:
     theta = [v for side in case.sides for v in (math.log(side.C * side.group), side.n)]
     tau = s.time[np.array(s.status) == "ok"] - s.t0
     args = (theta, tau, s.sigma, s.bracket[1] - s.bracket[0])
-    fixed_n = [i % 2 == 0 for i in range(len(theta))]
-    return {"n_limit": information_ratio(*args, index=2 * j + 1),
-            "C_limit": information_ratio(*args, index=2 * j, free=fixed_n)}  # fmt: skip
+    # As the fit frees them: this side's prefactor and exponent (the other law kept,
+    # as the verdict refits a side); for C the exponent held at the law's.
+    side = [i // 2 == j for i in range(len(theta))]
+    prefactor_only = [i == 2 * j for i in range(len(theta))]
+    return {"n_limit": information_ratio(*args, index=2 * j + 1, free=side),
+            "C_limit": information_ratio(*args, index=2 * j, free=prefactor_only)}  # fmt: skip
 
 
 # -- fitting through the public API, and the rows --------------------------------------
