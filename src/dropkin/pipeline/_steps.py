@@ -19,7 +19,14 @@ from dataclasses import dataclass, replace
 from pathlib import Path
 
 from ..errors import MeasurementError
-from ._fit import Measurement, check_sample, fit_measurement, load_measurement, sample_of
+from ._fit import (
+    Measurement,
+    check_sample,
+    fit_measurement,
+    load_measurement,
+    sample_given,
+    sample_of,
+)
 from ._outputs import write_fit
 
 __all__ = [
@@ -197,6 +204,8 @@ def measure_into(
     *,
     progress: Callable[[int, int], None] | None = None,
     experiment_file=None,
+    sample=None,
+    liquids=None,
 ):
     """Measure `rec` and write ``radius.csv``, ``measure.json`` and ``overlays/``.
 
@@ -205,6 +214,12 @@ def measure_into(
     experiment_file : str or os.PathLike, optional
         The experiment file to name in the provenance (default: the one `exp`
         was read from).
+    sample : dict, optional
+        The sample values given over the experiment file (dotted keys, values
+        as given); the provenance records them as ``sample_overrides``, and
+        ``dropkin fit`` applies them again.
+    liquids : str or os.PathLike, optional
+        The user's liquid library, recorded as ``liquids_file``.
 
     Returns
     -------
@@ -238,6 +253,10 @@ def measure_into(
         "sha256": recording_sha256(rec),
         "experiment_file": None if named is None else str(Path(named).resolve()),
     }
+    if sample_given(sample):
+        provenance["sample_overrides"] = sample_given(sample)
+    if liquids is not None:
+        provenance["liquids_file"] = str(Path(liquids).resolve())
     series = replace(measured, provenance=provenance)
     out = Path(out)
     remove_temporaries(out, out / "overlays")  # left by a run that was killed
@@ -256,7 +275,7 @@ def _fit_and_write(measurement, out, **fit):
 
     verdict, numbers = fit_measurement(measurement, **fit)
     remove_temporaries(out, Path(out) / "plots")  # left by a run that was killed
-    write_fit(verdict, out, series=measurement.series)
+    write_fit(verdict, out, series=measurement.series, sample=measurement.sample_record())
     return verdict, numbers
 
 
@@ -282,6 +301,8 @@ def fit_into(
     out,
     *,
     experiment=None,
+    overrides=None,
+    liquids=None,
     t0=None,
     seed: int = 0,
     bootstrap: int = 200,
@@ -292,7 +313,11 @@ def fit_into(
     The series is read with the ``measure.json`` (and ``angles.csv``) beside
     it (see :func:`~dropkin.pipeline._fit.load_measurement`); the report
     shows the overlay frames of that folder. The outputs are those of
-    :func:`analyze_into` after its measurement.
+    :func:`analyze_into` after its measurement. The sample is the
+    experiment file and the sample values ``measure.json`` records, with
+    `overrides` (dotted keys, e.g. ``{"liquid.name": "ethanol"}``) over them;
+    `liquids` is a user's liquid library (default: the one ``measure.json``
+    names).
 
     Returns
     -------
@@ -303,7 +328,9 @@ def fit_into(
     experiment : Experiment
         The sample as used.
     """
-    measurement = load_measurement(radius_csv, experiment=experiment)
+    measurement = load_measurement(
+        radius_csv, experiment=experiment, overrides=overrides, liquids=liquids
+    )
     fit = {"t0": t0, "seed": seed, "bootstrap": bootstrap, "initial_radius": initial_radius}
     verdict, numbers = _fit_and_write(measurement, out, **fit)
     _write_report(out, measurement, verdict)
@@ -331,6 +358,7 @@ def analyze_into(
     experiment=None,
     overrides=None,
     origin: str = "command line",
+    liquids=None,
     experiment_copy: bool = False,
     published_dir=None,
     progress: Callable[[int, int], None] | None = None,
@@ -339,6 +367,13 @@ def analyze_into(
 
     Parameters
     ----------
+    overrides : dict, optional
+        Dotted experiment keys over the experiment file (see
+        :meth:`dropkin.experiment.Experiment.with_overrides`); the sample's
+        (``liquid.*``, ``medium.*``, ``drops.*``) are recorded in
+        ``measure.json`` as given.
+    liquids : str or os.PathLike, optional
+        A user's liquid library, searched before the built-in liquids.
     experiment_copy : bool
         Also write the experiment as used to ``OUT/experiment.toml`` and name
         that file in the provenance (for a campaign, whose values come from a
@@ -359,13 +394,29 @@ def analyze_into(
 
     out = Path(out)
     exp, rec = open_source(source, experiment=experiment, overrides=overrides, origin=origin)
-    sample = check_sample(exp)  # a bad sample description fails before the frames are measured
+    # a bad sample description fails before the frames are measured
+    sample = check_sample(exp, user_library=liquids)
     copy = _write_experiment_copy(out, exp, source, published_dir) if experiment_copy else None
-    series, method = measure_into(out, exp, rec, settings, progress=progress, experiment_file=copy)
+    given = sample_given(overrides)
+    series, method = measure_into(
+        out,
+        exp,
+        rec,
+        settings,
+        progress=progress,
+        experiment_file=copy,
+        sample=given,
+        liquids=liquids,
+    )
     if series.contact_time is None:
         raise MeasurementError(method, path=rec.path)
     measurement = Measurement(
-        series, sample_of(sample, series), out / "radius.csv", stated_uncertainties(exp)
+        series,
+        sample_of(sample, series),
+        out / "radius.csv",
+        stated_uncertainties(exp, user_library=liquids),
+        given=given,
+        liquids_file=None if liquids is None else str(Path(liquids).resolve()),
     )
     verdict, numbers = _fit_and_write(measurement, out, **settings.fit_settings())
     used = measurement.experiment
