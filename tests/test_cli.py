@@ -168,10 +168,30 @@ def test_missing_frame_rate_names_the_key(tmp_path):
     folder.mkdir()
     for i, frame in enumerate(_frames(n=2)):
         cv2.imwrite(str(folder / f"f_{i}.png"), frame)
-    result = _run("info", folder)
+    result = _run("measure", folder, "-o", tmp_path / "out")
     assert result.exit_code == 1
     line = _error_line(result)
     assert "recording.frame_rate" in line and str(folder) in line
+
+
+def test_info_without_a_frame_rate_describes_the_frames(tmp_path):
+    folder = tmp_path / "shot"
+    folder.mkdir()
+    frames = _frames(n=3)
+    for i, frame in enumerate(frames):
+        cv2.imwrite(str(folder / f"f_{i}.png"), frame)
+    result = _run("info", folder)
+    assert result.exit_code == 0, result.output
+    rows, cols = frames[0].shape
+    assert re.search(r"^frames\s+3$", result.output, re.M), result.output
+    assert f"{rows} rows x {cols} columns" in result.output
+    assert f"{frames[0].dtype}, {8 * frames[0].dtype.itemsize}-bit" in result.output
+    missing = [line for line in result.output.splitlines() if line.startswith("frame rate")]
+    assert len(missing) == 1 and "missing" in missing[0] and "--frame-rate" in missing[0]
+    assert "duration" not in result.output  # no time axis is made up
+    data = json.loads(_run("info", folder, "--json").output)
+    assert data["frames"] == 3 and data["frame_rate_hz"] is None
+    assert data["duration_s"] is None and "--frame-rate" in data["frame_rate_missing"]
 
 
 def test_bad_option_value_is_a_usage_error(png_folder):

@@ -112,6 +112,15 @@ class Experiment:
         -------
         Experiment
             A new, validated record; this one is unchanged.
+
+        Notes
+        -----
+        Naming another liquid (``liquid.name``, or ``medium.name``) replaces
+        the fluid: the material values and the glycerol fraction the file
+        gave for the old one, and the file's ``[uncertainty]`` of those
+        values, are dropped unless the same overrides give them again. The
+        temperature stays (it belongs to the experiment, not to the liquid).
+        The same name, whatever its case, keeps everything.
         """
         sections: dict[str, dict[str, object]] = {}
         for dotted, value in overrides.items():
@@ -127,13 +136,36 @@ class Experiment:
             else:
                 value = convert(value, kind, key=dotted, path=None)
             sections.setdefault(section, {})[key] = value
+        base = _replace_renamed_fluids(self, sections)
         changes = {
-            name: dataclasses.replace(getattr(self, name), **values)
+            name: dataclasses.replace(getattr(base, name), **values)
             for name, values in sections.items()
         }
-        new = dataclasses.replace(self, **changes)
+        new = dataclasses.replace(base, **changes)
         _check_consistency(new, path=None)
         return new
+
+
+#: The values that describe a fluid itself (dropped when another fluid is named),
+#: and the ``[uncertainty]`` keys of each section's values.
+_FLUID_VALUES = ("glycerol_mass_fraction", "surface_tension", "viscosity", "density")
+_FLUID_UNCERTAINTIES = {
+    "liquid": ("surface_tension", "viscosity", "density"),
+    "medium": ("medium_viscosity", "medium_density"),
+}
+
+
+def _replace_renamed_fluids(exp: Experiment, sections: dict) -> Experiment:
+    """`exp` without the values of a fluid that `sections` renames (see ``with_overrides``)."""
+    for section, uncertain in _FLUID_UNCERTAINTIES.items():
+        name = sections.get(section, {}).get("name")
+        fluid = getattr(exp, section)
+        if name is None or (fluid.name or "").lower() == name.lower():
+            continue
+        fluid = dataclasses.replace(fluid, **dict.fromkeys(_FLUID_VALUES))
+        uncertainty = dataclasses.replace(exp.uncertainty, **dict.fromkeys(uncertain))
+        exp = dataclasses.replace(exp, **{section: fluid}, uncertainty=uncertainty)
+    return exp
 
 
 def _check_consistency(exp: Experiment, *, path) -> None:

@@ -184,3 +184,69 @@ def test_the_initial_radius_setting_must_be_a_boolean(tmp_path):
     )
     with pytest.raises(DropkinError, match="initial_radius.*must be true or false"):
         read_manifest(bad)
+
+
+LIBRARY = """
+[liquid."bench-oil"]
+description = "invented for this test"
+surface_tension = "21 mN/m"
+viscosity = "20 mPa*s"
+density = "950 kg/m^3"
+"""
+
+
+def test_sample_short_keys_and_a_liquid_library(tree):
+    root, _ = tree
+    (root / "lib").mkdir()
+    (root / "lib" / "liquids.toml").write_text(LIBRARY, encoding="utf-8")
+    path = _write(
+        root,
+        """
+[shared]
+liquid = "water"
+temperature = "21 degC"
+liquids = "lib/liquids.toml"
+
+[[recordings]]
+path = "runs/a"
+liquid = "bench-oil"
+drop_radius = "1 mm"
+medium = "air"
+
+[[recordings]]
+path = "runs/b"
+liquid = { name = "ethanol", temperature = "25 degC" }
+""",
+    )
+    first, second = read_manifest(path).tasks
+    assert first.overrides["liquid.name"] == "bench-oil"
+    assert first.overrides["liquid.temperature"] == "21 degC"
+    assert first.overrides["drops.radius"] == "1 mm"
+    assert first.overrides["medium.name"] == "air"
+    assert second.overrides["liquid.name"] == "ethanol"
+    assert second.overrides["liquid.temperature"] == "25 degC"
+    library = str((root / "lib" / "liquids.toml").resolve())
+    assert first.liquids_file == second.liquids_file == library
+
+
+@pytest.mark.parametrize(
+    ("text", "words"),
+    [
+        ('liquids = "../elsewhere/lib.toml"', ("recordings[1].liquids", "leads out")),
+        ('liquids = "bg.png"', ("recordings[1].liquids", "is not valid TOML")),
+        ('liquids = "none.toml"', ("recordings[1].liquids", "does not exist")),
+        ('temperature = "21 C"', ("recordings[1].temperature", "degC")),
+        ('drop_radius = "-1 mm"', ("recordings[1].drop_radius", "positive")),
+        (
+            'temperature = "21 degC"\nliquid = { temperature = "20 degC" }',
+            ("recordings[1].temperature", "given twice"),
+        ),
+        ("liquid = 3", ("recordings[1].liquid", "must be a table")),
+    ],
+)
+def test_bad_sample_keys_are_refused_naming_them(tree, text, words):
+    root, outside = tree
+    (outside / "lib.toml").write_text(LIBRARY, encoding="utf-8")
+    (root / "bg.png").write_bytes(b"not toml [[")
+    message = _refused(_write(root, f'[[recordings]]\npath = "runs/a"\n{text}\n'))
+    assert all(word in message for word in words), message

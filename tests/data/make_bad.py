@@ -371,7 +371,7 @@ def experiment_cases():
         "missing_recording_section",
         GOOD_EXPERIMENT.replace('[recording]\nframe_rate = "100 kHz"\npixel_size = "10 um"\n', ""),
         words=["recording.frame_rate", "experiment file"],
-        commands=REC,
+        commands=["measure", "analyze"],  # info describes the frames and says it is missing
         file_named=False,  # the recording lacks a frame rate; the message names it
         about="no [recording] section: the PNG frames have no frame rate of their own",
     )

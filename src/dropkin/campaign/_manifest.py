@@ -18,6 +18,14 @@ A manifest is a TOML file::
 
     [[recordings]]
     glob = "water_*"                       # every matching recording, each labelled by its name
+    liquid = "my-oil"                      # short for liquid = { name = "my-oil" }
+    liquids = "liquids.toml"               # a liquid library of one's own (TOML)
+    temperature = "22 degC"                # short for liquid.temperature
+    drop_radius = "1 mm"                   # short for drops.radius
+
+The short keys are the command line's sample options (``medium`` too); a
+liquid other than the experiment file's replaces the file's liquid and its
+values (see :meth:`dropkin.experiment.Experiment.with_overrides`).
 
 Values are merged in this order, later ones winning: the recording's own
 experiment file (``experiment.toml`` in its folder, ``<stem>.toml`` beside
@@ -46,7 +54,10 @@ __all__ = ["Task", "Campaign", "read_manifest", "LABEL_PATTERN"]
 
 LABEL_PATTERN = re.compile(r"^[A-Za-z0-9][A-Za-z0-9._-]{0,99}$")
 _SECTIONS = ("recording", "setup", "liquid", "medium", "drops")
-_ENTRY_KEYS = {"path", "glob", "label", "experiment", "analysis", *_SECTIONS}
+#: Short keys (as the command line's sample options) and the experiment key each stands for.
+_SHORT_KEYS = {"temperature": ("liquid", "temperature"), "drop_radius": ("drops", "radius")}
+_SAMPLE_KEYS = (*_SHORT_KEYS, "liquids")
+_ENTRY_KEYS = {"path", "glob", "label", "experiment", "analysis", *_SECTIONS, *_SAMPLE_KEYS}
 _ANALYSIS_KEYS = ("threshold", "roi", "background", "overlays", "t0", "seed", "bootstrap")
 _ANALYSIS_KEYS += ("chunk_size", "initial_radius")
 
@@ -66,6 +77,8 @@ class Task:
     overrides : dict
         Dotted experiment keys to values as the manifest wrote them.
     settings : AnalysisSettings
+    liquids_file : str or None
+        Absolute path of the user's liquid library the entry (or ``[shared]``) names.
     where : str
         The entry in the manifest (``recordings[3]``), for messages.
     """
@@ -76,6 +89,7 @@ class Task:
     overrides: dict = field(default_factory=dict)
     settings: AnalysisSettings = AnalysisSettings()
     where: str = ""
+    liquids_file: str | None = None
 
 
 @dataclass(frozen=True)
@@ -97,27 +111,70 @@ def _table(value, path, key) -> dict:
     return value
 
 
+def _experiment_tables(table: dict, path, where: str) -> tuple[dict, dict]:
+    """An entry's experiment tables with its short keys folded in; and, for each
+    dotted key a short key gave, that short key (for messages)."""
+    document, short = {}, {}
+    for section in _SECTIONS:
+        if section in table:
+            value = table[section]
+            if section in ("liquid", "medium") and isinstance(value, str):
+                value = {"name": value}  # liquid = "water": the library name
+            document[section] = dict(_table(value, path, f"{where}.{section}"))
+    for name, (section, key) in _SHORT_KEYS.items():
+        if name in table:
+            values = document.setdefault(section, {})
+            if key in values:
+                _fail(
+                    "is given twice",
+                    path,
+                    f"{where}.{name}",
+                    expected=f"{name} or {section}.{key}",
+                )
+            values[key] = table[name]
+            short[f"{section}.{key}"] = name
+    return document, short
+
+
 def _experiment_values(table: dict, path, where: str) -> dict:
     """Flatten an entry's experiment tables to dotted keys, checking each value."""
     from ..experiment import experiment_from_mapping
 
-    flat, document = {}, {}
-    for section in _SECTIONS:
-        if section in table:
-            document[section] = _table(table[section], path, f"{where}.{section}")
-            for key, value in document[section].items():
-                flat[f"{section}.{key}"] = value
+    document, short = _experiment_tables(table, path, where)
+    flat = {
+        f"{section}.{key}": value
+        for section, values in document.items()
+        for key, value in values.items()
+    }
     try:
         experiment_from_mapping(document)  # the rules of an experiment file
     except ExperimentError as exc:
+        key = short.get(exc.key, exc.key)
         raise ExperimentError(
             exc.message,
             path=path,
-            key=f"{where}.{exc.key}" if exc.key else where,
+            key=f"{where}.{key}" if key else where,
             value=exc.value,
             expected=exc.expected,
         ) from None
     return flat
+
+
+def _liquids_file(table: dict, place, where: str) -> str | None:
+    """The liquid library a table names (``liquids``), checked now; None when it names none."""
+    from ..liquids import load_liquid_library
+
+    if "liquids" not in table:
+        return None
+    key = f"{where}.liquids"
+    full = place.resolve(table["liquids"], key, must="file")
+    try:
+        load_liquid_library(full)  # a broken library fails before anything runs
+    except ExperimentError as exc:
+        raise ExperimentError(
+            exc.message, path=place.path, key=key, value=table["liquids"], expected=exc.expected
+        ) from None
+    return str(full)
 
 
 def _int(value, path, key, lo, hi) -> int:
@@ -237,7 +294,7 @@ def _check_label(label, seen: dict, source, path, where: str) -> None:
     seen[label.lower()] = str(source)
 
 
-def _entry_tasks(entry, where: str, shared: tuple[dict, dict], place: _Place, seen) -> list[Task]:
+def _entry_tasks(entry, where: str, shared: tuple, place: _Place, seen) -> list[Task]:
     """The tasks of one ``[[recordings]]`` entry (one, or one per match of its glob)."""
     path, resolve = place.path, place.resolve
     entry = _table(entry, path, where)
@@ -248,8 +305,9 @@ def _entry_tasks(entry, where: str, shared: tuple[dict, dict], place: _Place, se
         _fail("needs either path or glob", path, where)
     if "glob" in entry and "label" in entry:
         _fail("cannot label every match of a glob", path, f"{where}.label")
-    shared_values, shared_analysis = shared
+    shared_values, shared_analysis, shared_liquids = shared
     values = {**shared_values, **_experiment_values(entry, path, where)}
+    liquids = _liquids_file(entry, place, where) or shared_liquids
     settings = AnalysisSettings(
         **_analysis(entry.get("analysis", {}), shared_analysis, path, where, resolve)
     )
@@ -264,7 +322,7 @@ def _entry_tasks(entry, where: str, shared: tuple[dict, dict], place: _Place, se
     for source in sources:
         label = entry.get("label", _label_from(source))
         _check_label(label, seen, source, path, where)
-        tasks.append(Task(label, str(source), experiment, values, settings, where))
+        tasks.append(Task(label, str(source), experiment, values, settings, where, liquids))
     return tasks
 
 
@@ -293,18 +351,20 @@ def read_manifest(path, *, allow_outside: bool = False) -> Campaign:
             _fail("unknown key", path, f"campaign.{key}", expected="name or description")
     shared = _table(document.get("shared", {}), path, "shared")
     for key in shared:
-        if key not in (*_SECTIONS, "analysis"):
-            _fail("unknown key", path, f"shared.{key}", expected="experiment tables or analysis")
+        if key not in (*_SECTIONS, *_SAMPLE_KEYS, "analysis"):
+            expected = f"experiment tables, {', '.join(_SAMPLE_KEYS)} or analysis"
+            _fail("unknown key", path, f"shared.{key}", expected=expected)
     shared_values = _experiment_values(shared, path, "shared")
     shared_analysis = _analysis(shared.get("analysis", {}), {}, path, "shared", place.resolve)
+    shared_liquids = _liquids_file(shared, place, "shared")
     entries = document.get("recordings")
     if not isinstance(entries, list) or not entries:
         _fail("lists no recordings", path, "recordings", expected="[[recordings]] entries")
     tasks: list[Task] = []
     seen: dict[str, str] = {}
     for i, entry in enumerate(entries):
-        shared_pair = (shared_values, shared_analysis)
-        tasks += _entry_tasks(entry, f"recordings[{i + 1}]", shared_pair, place, seen)
+        shared_all = (shared_values, shared_analysis, shared_liquids)
+        tasks += _entry_tasks(entry, f"recordings[{i + 1}]", shared_all, place, seen)
     name = campaign.get("name", path.stem)
     return Campaign(path=path, name=str(name), tasks=tuple(tasks))
 

@@ -120,7 +120,8 @@ def _is_unchanged(task: Task, previous: dict | None, out_dir: Path) -> bool:
         exp, rec = open_source(
             task.source, experiment=task.experiment_file, overrides=task.overrides
         )
-        if settings_sha256(exp, task.settings) != previous.get("settings_sha256"):
+        hashed = settings_sha256(exp, task.settings, task.liquids_file)
+        if hashed != previous.get("settings_sha256"):
             return False
         stat = json.loads(previous.get("input_stat") or "null")
         if stat == input_fingerprint(task.source):

@@ -47,12 +47,13 @@ def input_fingerprint(source) -> list:
     return out
 
 
-def settings_sha256(experiment, settings) -> str:
+def settings_sha256(experiment, settings, liquids=None) -> str:
     """SHA-256 of everything but the frames that decides a recording's result.
 
     That is the experiment as merged (every value, in SI) and the analysis
     settings that change outputs (not the number of jobs or the chunk size).
-    A background image enters by its content.
+    A background image and a user's liquid library (`liquids`) enter by
+    their content.
     """
     exp = dataclasses.asdict(experiment)
     exp.pop("path", None)
@@ -60,7 +61,11 @@ def settings_sha256(experiment, settings) -> str:
     if analysis["background"] is not None:
         with open(analysis["background"], "rb") as handle:
             analysis["background"] = hashlib.file_digest(handle, "sha256").hexdigest()
-    text = json.dumps({"experiment": exp, "analysis": analysis}, sort_keys=True)
+    hashed = {"experiment": exp, "analysis": analysis}
+    if liquids is not None:
+        with open(liquids, "rb") as handle:
+            hashed["liquids"] = hashlib.file_digest(handle, "sha256").hexdigest()
+    text = json.dumps(hashed, sort_keys=True)
     return hashlib.sha256(text.encode("utf-8")).hexdigest()
 
 
@@ -123,7 +128,7 @@ def run_task(task: Task, out_dir) -> dict:
             overrides=task.overrides,
             origin="campaign manifest",
         )
-        row["settings_sha256"] = settings_sha256(exp, task.settings)
+        row["settings_sha256"] = settings_sha256(exp, task.settings, task.liquids_file)
         row["settings"] = task.settings.result_settings()
         row.update(sample_columns(exp))
         result = analyze_into(
@@ -133,6 +138,7 @@ def run_task(task: Task, out_dir) -> dict:
             experiment=task.experiment_file,
             overrides=task.overrides,
             origin="campaign manifest",
+            liquids=task.liquids_file,
             experiment_copy=True,
             published_dir=out_dir / task.label,
         )

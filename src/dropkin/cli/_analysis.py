@@ -10,8 +10,11 @@ from ._options import (
     analysis_settings,
     fit_options,
     measure_options,
+    options_named,
     output_option,
     recording_overrides,
+    sample_options,
+    sample_overrides,
 )
 from ._recording import MEASURE_SETTINGS, measure_summary
 
@@ -44,11 +47,16 @@ def _report_verdict(verdict, series, radius_csv, out) -> None:
     type=click.Path(exists=True, dir_okay=False, path_type=str),
     help="Experiment file (default: the one named in measure.json).",
 )
+@sample_options
 @fit_options
 @click.pass_context
-def fit_command(ctx, radius_csv, out, experiment, t0, seed, bootstrap, initial_radius):
+def fit_command(ctx, radius_csv, out, experiment, t0, seed, bootstrap, initial_radius, **sample):
     """Fit the scaling regimes to RADIUS_CSV (from dropkin measure) and give the
-    verdict: fit.json, plots/ and a self-contained report.html, as analyze."""
+    verdict: fit.json, plots/ and a self-contained report.html, as analyze.
+
+    The sample is the experiment file measure.json names, with the sample
+    options the measurement was given; options given here override both.
+    """
     from pathlib import Path
 
     from ..pipeline._steps import fit_into
@@ -56,7 +64,16 @@ def fit_command(ctx, radius_csv, out, experiment, t0, seed, bootstrap, initial_r
 
     fit = {"t0": t0, "seed": seed, "bootstrap": bootstrap, "initial_radius": initial_radius}
     detail(ctx, "settings: " + ", ".join(f"{k} = {v!r}" for k, v in fit.items()))
-    verdict, _, used = fit_into(radius_csv, out, experiment=experiment, **fit)
+    overrides = sample_overrides(**sample)
+    with options_named(overrides):
+        verdict, _, used = fit_into(
+            radius_csv,
+            out,
+            experiment=experiment,
+            overrides=overrides,
+            liquids=sample["liquids_file"],
+            **fit,
+        )
     detail_experiment(ctx, used.path)
     _report_verdict(verdict, read_series(radius_csv), radius_csv, Path(out))
 
@@ -64,6 +81,7 @@ def fit_command(ctx, radius_csv, out, experiment, t0, seed, bootstrap, initial_r
 @click.command("analyze")
 @click.argument("source", type=click.Path(exists=True, path_type=str))
 @measure_options
+@sample_options
 @fit_options
 @click.pass_context
 def analyze_command(ctx, source, out, **options):
@@ -78,14 +96,16 @@ def analyze_command(ctx, source, out, **options):
     detail_settings(ctx, settings, MEASURE_SETTINGS + FIT_SETTINGS)
     # The frame count is known only once the recording is open; the bar then
     # counts frames (the fit and the report take a few seconds more).
-    with progress_bar(ctx, "measuring", 0) as progress:
+    overrides = {**recording_overrides(**options), **sample_overrides(**options)}
+    with progress_bar(ctx, "measuring", 0) as progress, options_named(overrides):
         try:
             result = analyze_into(
                 source,
                 out,
                 settings,
                 experiment=options["experiment"],
-                overrides=recording_overrides(**options),
+                overrides=overrides,
+                liquids=options["liquids_file"],
                 progress=progress,
             )
         except MeasurementError as exc:

@@ -4,12 +4,16 @@
 experiment file (:func:`recording_overrides` turns them into dotted keys);
 :func:`measure_options` and :func:`fit_options` are the analysis settings
 (:func:`analysis_settings` turns them into an
-:class:`~dropkin.pipeline.AnalysisSettings`).
+:class:`~dropkin.pipeline.AnalysisSettings`); :func:`sample_options` describe
+the sample (:func:`sample_overrides` turns them into dotted keys, with their
+values as given, and :func:`options_named` makes an error about one of them
+name the option).
 """
 
 from __future__ import annotations
 
 import math
+from contextlib import contextmanager
 
 import click
 
@@ -27,6 +31,11 @@ __all__ = [
     "EXPERIMENT_KEYS",
     "recording_overrides",
     "analysis_settings",
+    "GivenQuantity",
+    "sample_options",
+    "SAMPLE_OPTION_KEYS",
+    "sample_overrides",
+    "options_named",
 ]
 
 
@@ -54,6 +63,40 @@ class FiniteFloat(click.FloatRange):
 
 
 FINITE_FLOAT = FiniteFloat()
+
+
+class GivenQuantity(QuantityType):
+    """A quantity option checked as :class:`~dropkin.units.QuantityType` checks it,
+    whose value stays the text as given (``"20 degC"``), for the provenance.
+
+    The experiment converts the text again (:meth:`~dropkin.experiment.Experiment.with_overrides`),
+    the same way; a bad value is refused here, naming the option.
+    """
+
+    def convert(self, value, param, ctx):
+        super().convert(value, param, ctx)
+        return value if isinstance(value, float) else str(value).strip()
+
+
+class GivenFraction(click.ParamType):
+    """A fraction from 0 to 1 (``0.85`` or ``"85 %"``), kept as given."""
+
+    name = "fraction"
+
+    def convert(self, value, param, ctx):
+        from .._experiment_schema import convert
+        from ..errors import ExperimentError
+
+        key = "--" + param.name.replace("_", "-") if param is not None else None
+        try:
+            number = float(value)
+        except (TypeError, ValueError):
+            number = None
+        try:
+            convert(value if number is None else number, ("fraction",), key=key, path=None)
+        except ExperimentError as exc:
+            self.fail(str(exc), param, ctx)
+        return value if number is None else number
 
 
 class LazyChoice(click.Choice):
@@ -182,6 +225,86 @@ def fit_options(command):
         ),
     ]
     return _apply(command, options)
+
+
+#: The options of :func:`sample_options` (parameter names) and the experiment key each sets.
+SAMPLE_OPTION_KEYS = {
+    "liquid": "liquid.name",
+    "temperature": "liquid.temperature",
+    "glycerol_mass_fraction": "liquid.glycerol_mass_fraction",
+    "medium": "medium.name",
+    "drop_radius": "drops.radius",
+}
+
+
+def sample_options(command):
+    """Options that describe the sample (they override the experiment file) and
+    ``--liquids``, a user's liquid library."""
+    options = [
+        click.option(
+            "--liquid",
+            help="Library name of the drops' liquid (see `dropkin liquids`); replaces the "
+            "experiment file's liquid and its values.",
+        ),
+        click.option(
+            "--temperature",
+            type=GivenQuantity("K", positive=True),
+            help='Liquid temperature, e.g. "21 degC" (default 20 °C).',
+        ),
+        click.option(
+            "--glycerol-mass-fraction",
+            type=GivenFraction(),
+            help='For glycerol-water: 0 to 1, or "85 %".',
+        ),
+        click.option("--medium", help="Library name of the surrounding fluid (default air)."),
+        click.option(
+            "--drop-radius",
+            type=GivenQuantity("m", positive=True),
+            help='Drop radius, e.g. "1 mm" (default: measured from the frames).',
+        ),
+        click.option(
+            "--liquids",
+            "liquids_file",
+            type=click.Path(exists=True, dir_okay=False, path_type=str),
+            help="Your own liquid library (TOML), searched before the built-in one.",
+        ),
+    ]
+    return _apply(command, options)
+
+
+def sample_overrides(**options) -> dict:
+    """The experiment keys :func:`sample_options` set, to their values as given
+    (options not given are left out)."""
+    return {
+        key: options[name]
+        for name, key in SAMPLE_OPTION_KEYS.items()
+        if options.get(name) is not None
+    }
+
+
+@contextmanager
+def options_named(overrides: dict):
+    """Make an :class:`~dropkin.errors.ExperimentError` about a value an option
+    gave name the option (not the experiment key, nor the experiment file).
+
+    So does an error about a value of a liquid (or medium) that ``--liquid``
+    (``--medium``) named: the glycerol fraction it needs, a temperature
+    outside its range.
+    """
+    from ..errors import ExperimentError
+
+    options = {key: "--" + name.replace("_", "-") for name, key in SAMPLE_OPTION_KEYS.items()}
+    try:
+        yield
+    except ExperimentError as exc:
+        given = overrides.get(exc.key)
+        renamed = overrides.get(f"{(exc.key or '').partition('.')[0]}.name") is not None
+        if exc.key in options and (given is not None or renamed):
+            # a value of a fluid an option named is the options' business
+            raise ExperimentError(
+                exc.message, key=options[exc.key], value=given, expected=exc.expected
+            ) from None
+        raise
 
 
 #: The parameters of :func:`experiment_options`.

@@ -146,12 +146,15 @@ def _user_keys(library) -> set[str]:
 
 
 def _unknown(name, *, library, key) -> ExperimentError:
-    return ExperimentError(
-        "unknown liquid",
-        key=key,
-        value=name,
-        expected="one of " + ", ".join(liquid_names(user_library=library)),
-    )
+    """The error for a name the library does not know: the close names first, then all."""
+    import difflib
+
+    names = liquid_names(user_library=library)
+    by_lower = {n.lower(): n for n in names}
+    wanted = name.strip().lower() if isinstance(name, str) else ""
+    close = [by_lower[n] for n in difflib.get_close_matches(wanted, by_lower, n=3, cutoff=0.6)]
+    message = "unknown liquid" + (f", did you mean {' or '.join(close)}?" if close else "")
+    return ExperimentError(message, key=key, value=name, expected="one of " + ", ".join(names))
 
 
 def _lookup(name: str, library, *, key):

@@ -22,7 +22,15 @@ from ..errors import DropkinError, ExperimentError
 from ..experiment import Experiment, load_experiment, read_experiment
 from ..series import RadiusSeries, read_series
 
-__all__ = ["Measurement", "check_sample", "sample_of", "load_measurement", "fit_measurement"]
+__all__ = [
+    "Measurement",
+    "SAMPLE_SECTIONS",
+    "sample_given",
+    "check_sample",
+    "sample_of",
+    "load_measurement",
+    "fit_measurement",
+]
 
 
 @dataclass(frozen=True)
@@ -44,6 +52,12 @@ class Measurement:
         the drop radius, with where each comes from
         (:func:`dropkin.liquids.stated_uncertainties`); the fit uses its
         stated default for the others.
+    given : Mapping[str, object]
+        The sample values given over the experiment file (dotted keys such as
+        ``"liquid.name"``, values as given: options, or the ones
+        ``measure.json`` recorded).
+    liquids_file : str or None
+        The user's liquid library the liquids were looked up in.
     """
 
     series: RadiusSeries
@@ -52,15 +66,57 @@ class Measurement:
     uncertainties: Mapping[str, tuple[float, str]] = field(
         default_factory=lambda: MappingProxyType({})
     )
+    given: Mapping[str, object] = field(default_factory=lambda: MappingProxyType({}))
+    liquids_file: str | None = None
+
+    def sample_record(self) -> dict:
+        """The sample as fitted, for ``fit.json``: the values given over the
+        experiment file (as given), the liquid library used, and the liquid's
+        and medium's values and the drop radius in SI units."""
+        exp = self.experiment
+
+        def fluid(f):
+            return {
+                "name": f.name,
+                "temperature_k": f.temperature,
+                "glycerol_mass_fraction": f.glycerol_mass_fraction,
+                "surface_tension_n_per_m": f.surface_tension,
+                "viscosity_pa_s": f.viscosity,
+                "density_kg_per_m3": f.density,
+            }
+
+        return {
+            "given": dict(self.given),
+            "liquids_file": self.liquids_file,
+            "liquid": fluid(exp.liquid),
+            "medium": fluid(exp.medium),
+            "drop_radius_m": exp.drops.radius,
+        }
 
 
-def check_sample(experiment: Experiment) -> Experiment:
+#: The experiment sections that describe the sample (what ``measure.json`` records as given).
+SAMPLE_SECTIONS = ("liquid", "medium", "drops")
+
+
+def sample_given(overrides) -> dict:
+    """The sample's part of `overrides` (dotted keys of :data:`SAMPLE_SECTIONS`), None left out."""
+    return {
+        key: value
+        for key, value in (overrides or {}).items()
+        if value is not None and key.partition(".")[0] in SAMPLE_SECTIONS
+    }
+
+
+def check_sample(experiment: Experiment, *, user_library=None) -> Experiment:
     """The sample with its liquids resolved; raise now what the fit would raise later.
 
     The liquid and the medium must resolve (library names, temperatures,
     values); only the drop radius may be missing, since a measurement
     supplies it. ``dropkin analyze`` calls this before measuring, so that a
     bad sample description fails in a second rather than after the frames.
+
+    `user_library` is a user's liquid library (path or
+    :class:`~dropkin.liquids.LiquidLibrary`), searched first.
 
     Returns
     -------
@@ -75,7 +131,7 @@ def check_sample(experiment: Experiment) -> Experiment:
     from ..liquids import resolve_fluids
     from ..scaling import sample_numbers_from_experiment
 
-    full = resolve_fluids(experiment)
+    full = resolve_fluids(experiment, user_library=user_library)
     probe = full
     if probe.drops.radius is None:
         probe = replace(probe, drops=replace(probe.drops, radius=1.0))  # any size: measured later
@@ -98,7 +154,7 @@ def sample_of(experiment: Experiment, series: RadiusSeries) -> Experiment:
     return experiment
 
 
-def load_measurement(radius_csv, *, experiment=None, overrides=None) -> Measurement:
+def load_measurement(radius_csv, *, experiment=None, overrides=None, liquids=None) -> Measurement:
     """Read a radius series, its ``measure.json`` and its experiment.
 
     Parameters
@@ -107,10 +163,14 @@ def load_measurement(radius_csv, *, experiment=None, overrides=None) -> Measurem
         A ``radius.csv`` written by ``dropkin measure``.
     experiment : str, os.PathLike or Experiment, optional
         The experiment file (or an experiment already read); by default the
-        file named in ``measure.json``'s provenance.
+        file named in ``measure.json``'s provenance, with the sample values
+        given over it then (``sample_overrides``).
     overrides : dict, optional
         Values that take precedence (as for
         :meth:`dropkin.experiment.Experiment.with_overrides`).
+    liquids : str or os.PathLike, optional
+        A user's liquid library; by default the one ``measure.json`` names
+        (``liquids_file``), when it names one.
 
     Raises
     ------
@@ -121,31 +181,60 @@ def load_measurement(radius_csv, *, experiment=None, overrides=None) -> Measurem
 
     path = Path(radius_csv)
     series = read_series(path)
+    recorded = series.provenance
+    given: dict = {}
     if experiment is None:
-        named = series.provenance.get("experiment_file")
-        if named and Path(named).is_file():
-            exp = read_experiment(named)
-        else:
-            exp = load_experiment(path.parent)
-            if exp.path is None:
-                raise ExperimentError(
-                    "no experiment file describes the sample",
-                    path=path,
-                    expected="--experiment FILE, or the experiment file named in measure.json",
-                )
+        exp = _measured_experiment(series, path)
+        given = dict(recorded.get("sample_overrides") or {})
+        if liquids is None:
+            liquids = _recorded_library(recorded.get("liquids_file"), path)
     elif isinstance(experiment, Experiment):
         exp = experiment
     else:
         exp = read_experiment(experiment)
-    if overrides:
-        exp = exp.with_overrides(overrides)
+    given.update(sample_given(overrides))
+    merged = {**given, **(overrides or {})}
+    if merged:
+        exp = exp.with_overrides(merged)
     exp = sample_of(exp, series)
     return Measurement(
         series=series,
-        experiment=resolve_fluids(exp),
+        experiment=resolve_fluids(exp, user_library=liquids),
         path=path,
-        uncertainties=MappingProxyType(stated_uncertainties(exp)),
+        uncertainties=MappingProxyType(stated_uncertainties(exp, user_library=liquids)),
+        given=MappingProxyType(given),
+        liquids_file=None if liquids is None else str(Path(liquids).resolve()),
     )
+
+
+def _measured_experiment(series: RadiusSeries, path: Path) -> Experiment:
+    """The experiment file ``measure.json`` names, else the one in the series' folder."""
+    named = series.provenance.get("experiment_file")
+    if named and Path(named).is_file():
+        return read_experiment(named)
+    exp = load_experiment(path.parent)
+    if exp.path is None:
+        raise ExperimentError(
+            "no experiment file describes the sample",
+            path=path,
+            expected="--experiment FILE, or the experiment file named in measure.json",
+        )
+    return exp
+
+
+def _recorded_library(named, path: Path):
+    """The liquid library ``measure.json`` names (``liquids_file``), which must still exist."""
+    if not named:
+        return None
+    if not Path(named).is_file():
+        raise ExperimentError(
+            "names a liquid library that is not there",
+            path=path.parent / "measure.json",
+            key="provenance.liquids_file",
+            value=named,
+            expected="the file, or --liquids FILE",
+        )
+    return named
 
 
 def fit_measurement(

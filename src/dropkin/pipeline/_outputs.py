@@ -24,13 +24,15 @@ if TYPE_CHECKING:
 __all__ = ["write_fit", "read_fit", "write_analysis_outputs"]
 
 
-def write_fit(verdict: RegimeVerdict, out_dir, *, series=None) -> Path:
+def write_fit(verdict: RegimeVerdict, out_dir, *, series=None, sample=None) -> Path:
     """Write ``fit.json`` into `out_dir` atomically; return its path.
 
     With the `series` the verdict was fitted to, the file also holds
     ``time_origin``: the origin its times count from (the fitted t0) and the
     measured contact instant ``radius.csv``'s ``since_contact_s`` counts from
-    (see :mod:`dropkin.report._origin`).
+    (see :mod:`dropkin.report._origin`). With `sample` (see
+    :meth:`~dropkin.pipeline._fit.Measurement.sample_record`), it holds the
+    sample as fitted under ``settings.sample``.
     """
     from ..scaling import verdict_to_dict  # scipy: imported when needed
 
@@ -41,6 +43,8 @@ def write_fit(verdict: RegimeVerdict, out_dir, *, series=None) -> Path:
         from ..report import origin_dict, time_origin
 
         data["time_origin"] = origin_dict(time_origin(series, verdict))
+    if sample is not None:
+        data.setdefault("settings", {})["sample"] = sample
     text = json.dumps(data, indent=2, allow_nan=False) + "\n"
     return write_text_atomic(out_dir / "fit.json", text)
 

@@ -19,8 +19,18 @@ from dataclasses import dataclass, replace
 from pathlib import Path
 
 from ..errors import MeasurementError
-from ._fit import Measurement, check_sample, fit_measurement, load_measurement, sample_of
+from ._fit import (
+    Measurement,
+    check_sample,
+    fit_measurement,
+    load_measurement,
+    sample_given,
+    sample_of,
+)
 from ._outputs import write_fit
+from ._settings import AnalysisSettings, parse_roi
+
+_DEFAULTS = AnalysisSettings()  # frozen: one shared default
 
 __all__ = [
     "parse_roi",
@@ -31,66 +41,6 @@ __all__ = [
     "fit_into",
     "analyze_into",
 ]
-
-
-@dataclass(frozen=True)
-class AnalysisSettings:
-    """Everything but the sample that decides an analysis' result.
-
-    Attributes
-    ----------
-    roi : tuple of int or None
-        Region of interest (row_start, row_stop, col_start, col_stop), pixels.
-    threshold : float
-        Edge level (see :class:`dropkin.measure.MeasureOptions`, ``level``).
-    background : str or None
-        Path of an image of the empty field of view.
-    jobs, chunk_size : int
-        Worker processes and frames per chunk of the measurement (they do not
-        change the result).
-    overlays : int
-        Annotated frames to write.
-    t0 : float or None
-        Contact instant fixed by hand (s from the first frame).
-    seed, bootstrap : int
-        Bootstrap seed and resamples of the fit's intervals.
-    initial_radius : bool
-        Also try a finite initial radius r0 in the fits (kept when the AIC
-        prefers it).
-    """
-
-    roi: tuple[int, int, int, int] | None = None
-    threshold: float = 0.5
-    background: str | None = None
-    jobs: int = 1
-    chunk_size: int = 64
-    overlays: int = 6
-    t0: float | None = None
-    seed: int = 0
-    bootstrap: int = 200
-    initial_radius: bool = False
-
-    def fit_settings(self) -> dict:
-        """The keywords of the fit (:func:`~dropkin.pipeline._fit.fit_measurement`)."""
-        return {
-            "t0": self.t0,
-            "seed": self.seed,
-            "bootstrap": self.bootstrap,
-            "initial_radius": self.initial_radius,
-        }
-
-    def result_settings(self) -> dict:
-        """The settings that can change the outputs (for a settings hash)."""
-        return {
-            "roi": None if self.roi is None else list(self.roi),
-            "threshold": self.threshold,
-            "background": self.background,
-            "overlays": self.overlays,
-            "t0": self.t0,
-            "seed": self.seed,
-            "bootstrap": self.bootstrap,
-            "initial_radius": self.initial_radius,
-        }
 
 
 @dataclass(frozen=True)
@@ -117,39 +67,6 @@ class Analysis:
     numbers: object | None
     experiment: object
     report: Path | None
-
-
-def parse_roi(text, *, key: str = "--roi", path=None):
-    """``'ROW0:ROW1,COL0:COL1'`` -> (row0, row1, col0, col1); None stays None.
-
-    Raises
-    ------
-    ExperimentError
-        Naming `key` (and `path`) when the text is not four whole numbers in
-        that form. Whether the region fits the frame is checked on measuring.
-
-    Examples
-    --------
-    >>> parse_roi("100:300,50:450")
-    (100, 300, 50, 450)
-    """
-    from ..errors import ExperimentError
-
-    if text is None:
-        return None
-    try:
-        rows, cols = text.split(",")
-        r0, r1 = (int(v) for v in rows.split(":"))
-        c0, c1 = (int(v) for v in cols.split(":"))
-    except (ValueError, AttributeError):
-        raise ExperimentError(
-            "is not a region",
-            key=key,
-            value=text,
-            path=path,
-            expected="ROW0:ROW1,COL0:COL1 in pixels, e.g. 100:300,50:450",
-        ) from None
-    return (r0, r1, c0, c1)
 
 
 def open_source(source, *, experiment=None, overrides=None, origin: str = "command line"):
@@ -193,10 +110,12 @@ def measure_into(
     out,
     exp,
     rec,
-    settings: AnalysisSettings = AnalysisSettings(),
+    settings: AnalysisSettings = _DEFAULTS,
     *,
     progress: Callable[[int, int], None] | None = None,
     experiment_file=None,
+    sample=None,
+    liquids=None,
 ):
     """Measure `rec` and write ``radius.csv``, ``measure.json`` and ``overlays/``.
 
@@ -205,6 +124,12 @@ def measure_into(
     experiment_file : str or os.PathLike, optional
         The experiment file to name in the provenance (default: the one `exp`
         was read from).
+    sample : dict, optional
+        The sample values given over the experiment file (dotted keys, values
+        as given); the provenance records them as ``sample_overrides``, and
+        ``dropkin fit`` applies them again.
+    liquids : str or os.PathLike, optional
+        The user's liquid library, recorded as ``liquids_file``.
 
     Returns
     -------
@@ -238,6 +163,10 @@ def measure_into(
         "sha256": recording_sha256(rec),
         "experiment_file": None if named is None else str(Path(named).resolve()),
     }
+    if sample_given(sample):
+        provenance["sample_overrides"] = sample_given(sample)
+    if liquids is not None:
+        provenance["liquids_file"] = str(Path(liquids).resolve())
     series = replace(measured, provenance=provenance)
     out = Path(out)
     remove_temporaries(out, out / "overlays")  # left by a run that was killed
@@ -256,7 +185,7 @@ def _fit_and_write(measurement, out, **fit):
 
     verdict, numbers = fit_measurement(measurement, **fit)
     remove_temporaries(out, Path(out) / "plots")  # left by a run that was killed
-    write_fit(verdict, out, series=measurement.series)
+    write_fit(verdict, out, series=measurement.series, sample=measurement.sample_record())
     return verdict, numbers
 
 
@@ -282,6 +211,8 @@ def fit_into(
     out,
     *,
     experiment=None,
+    overrides=None,
+    liquids=None,
     t0=None,
     seed: int = 0,
     bootstrap: int = 200,
@@ -292,7 +223,11 @@ def fit_into(
     The series is read with the ``measure.json`` (and ``angles.csv``) beside
     it (see :func:`~dropkin.pipeline._fit.load_measurement`); the report
     shows the overlay frames of that folder. The outputs are those of
-    :func:`analyze_into` after its measurement.
+    :func:`analyze_into` after its measurement. The sample is the
+    experiment file and the sample values ``measure.json`` records, with
+    `overrides` (dotted keys, e.g. ``{"liquid.name": "ethanol"}``) over them;
+    `liquids` is a user's liquid library (default: the one ``measure.json``
+    names).
 
     Returns
     -------
@@ -303,7 +238,9 @@ def fit_into(
     experiment : Experiment
         The sample as used.
     """
-    measurement = load_measurement(radius_csv, experiment=experiment)
+    measurement = load_measurement(
+        radius_csv, experiment=experiment, overrides=overrides, liquids=liquids
+    )
     fit = {"t0": t0, "seed": seed, "bootstrap": bootstrap, "initial_radius": initial_radius}
     verdict, numbers = _fit_and_write(measurement, out, **fit)
     _write_report(out, measurement, verdict)
@@ -326,11 +263,12 @@ def _write_experiment_copy(out: Path, exp, source, published_dir) -> Path:
 def analyze_into(
     source,
     out,
-    settings: AnalysisSettings = AnalysisSettings(),
+    settings: AnalysisSettings = _DEFAULTS,
     *,
     experiment=None,
     overrides=None,
     origin: str = "command line",
+    liquids=None,
     experiment_copy: bool = False,
     published_dir=None,
     progress: Callable[[int, int], None] | None = None,
@@ -339,6 +277,13 @@ def analyze_into(
 
     Parameters
     ----------
+    overrides : dict, optional
+        Dotted experiment keys over the experiment file (see
+        :meth:`dropkin.experiment.Experiment.with_overrides`); the sample's
+        (``liquid.*``, ``medium.*``, ``drops.*``) are recorded in
+        ``measure.json`` as given.
+    liquids : str or os.PathLike, optional
+        A user's liquid library, searched before the built-in liquids.
     experiment_copy : bool
         Also write the experiment as used to ``OUT/experiment.toml`` and name
         that file in the provenance (for a campaign, whose values come from a
@@ -359,13 +304,29 @@ def analyze_into(
 
     out = Path(out)
     exp, rec = open_source(source, experiment=experiment, overrides=overrides, origin=origin)
-    sample = check_sample(exp)  # a bad sample description fails before the frames are measured
+    # a bad sample description fails before the frames are measured
+    sample = check_sample(exp, user_library=liquids)
     copy = _write_experiment_copy(out, exp, source, published_dir) if experiment_copy else None
-    series, method = measure_into(out, exp, rec, settings, progress=progress, experiment_file=copy)
+    given = sample_given(overrides)
+    series, method = measure_into(
+        out,
+        exp,
+        rec,
+        settings,
+        progress=progress,
+        experiment_file=copy,
+        sample=given,
+        liquids=liquids,
+    )
     if series.contact_time is None:
         raise MeasurementError(method, path=rec.path)
     measurement = Measurement(
-        series, sample_of(sample, series), out / "radius.csv", stated_uncertainties(exp)
+        series,
+        sample_of(sample, series),
+        out / "radius.csv",
+        stated_uncertainties(exp, user_library=liquids),
+        given=given,
+        liquids_file=None if liquids is None else str(Path(liquids).resolve()),
     )
     verdict, numbers = _fit_and_write(measurement, out, **settings.fit_settings())
     used = measurement.experiment

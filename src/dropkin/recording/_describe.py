@@ -47,7 +47,9 @@ def describe(recording, experiment) -> dict:
         ``experiment_file``, ``notes``, and for a camera file whose header
         records them ``trigger_frame``, ``trigger_time_s`` (on the axis of the
         frame times) and ``camera_header`` (what the header says: record
-        rate, save step, saved-frame rate, bit depths, time stamps).
+        rate, save step, saved-frame rate, bit depths, time stamps). A
+        caller that found no frame rate adds ``frame_rate_missing`` (why,
+        and how to give one), which :func:`format_description` prints.
     """
     rows, cols = recording.shape
     times = recording.times
@@ -166,7 +168,9 @@ def format_description(description: dict) -> str:
         f"frame size      {d['rows']} rows x {d['cols']} columns",
         f"pixel data      {d['dtype']}, {d['bit_depth']}-bit",
     ]
-    if d["frame_rate_hz"] is not None:
+    if d.get("frame_rate_missing"):
+        lines.append(f"frame rate      missing: {d['frame_rate_missing']}")
+    elif d["frame_rate_hz"] is not None:
         lines.append(
             f"frame rate      {d['frame_rate_hz']:.6g} fps (from {d['frame_rate_origin']})"
         )
