@@ -20,6 +20,7 @@ from types import MappingProxyType
 from ..contact import frames_bracket
 from ..errors import DropkinError, ExperimentError
 from ..experiment import Experiment, load_experiment, read_experiment
+from .._provenance import resolve_named
 from ..series import RadiusSeries, read_series
 
 __all__ = ["Measurement", "check_sample", "sample_of", "load_measurement", "fit_measurement"]
@@ -123,8 +124,8 @@ def load_measurement(radius_csv, *, experiment=None, overrides=None) -> Measurem
     series = read_series(path)
     if experiment is None:
         named = series.provenance.get("experiment_file")
-        if named and Path(named).is_file():
-            exp = read_experiment(named)
+        if named and resolve_named(named, path.parent).is_file():
+            exp = read_experiment(resolve_named(named, path.parent))
         else:
             exp = load_experiment(path.parent)
             if exp.path is None:

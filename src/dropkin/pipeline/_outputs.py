@@ -15,6 +15,7 @@ from pathlib import Path
 from typing import TYPE_CHECKING
 
 from .._atomic import write_text_atomic
+from .._provenance import resolve_named
 from ..errors import DropkinError, with_path
 from ..series import read_series
 
@@ -24,13 +25,15 @@ if TYPE_CHECKING:
 __all__ = ["write_fit", "read_fit", "write_analysis_outputs"]
 
 
-def write_fit(verdict: RegimeVerdict, out_dir, *, series=None) -> Path:
+def write_fit(verdict: RegimeVerdict, out_dir, *, series=None, provenance=None) -> Path:
     """Write ``fit.json`` into `out_dir` atomically; return its path.
 
     With the `series` the verdict was fitted to, the file also holds
     ``time_origin``: the origin its times count from (the fitted t0) and the
     measured contact instant ``radius.csv``'s ``since_contact_s`` counts from
-    (see :mod:`dropkin.report._origin`).
+    (see :mod:`dropkin.report._origin`). A `provenance` dict (see
+    :func:`~dropkin.pipeline._record.fit_provenance`) is written last, as
+    ``provenance``; reading the verdict back ignores it.
     """
     from ..scaling import verdict_to_dict  # scipy: imported when needed
 
@@ -41,6 +44,8 @@ def write_fit(verdict: RegimeVerdict, out_dir, *, series=None) -> Path:
         from ..report import origin_dict, time_origin
 
         data["time_origin"] = origin_dict(time_origin(series, verdict))
+    if provenance is not None:
+        data["provenance"] = provenance
     text = json.dumps(data, indent=2, allow_nan=False) + "\n"
     return write_text_atomic(out_dir / "fit.json", text)
 
@@ -71,15 +76,16 @@ def read_fit(path) -> RegimeVerdict:
         raise DropkinError(f"is not a verdict ({type(exc).__name__}: {exc})", path=path) from None
 
 
-def _named_experiment(series):
-    """The experiment file named in the series' provenance, when it can still be read."""
+def _named_experiment(series, folder):
+    """The experiment file named in the series' provenance (relative to `folder`,
+    where ``measure.json`` lies), when it can still be read."""
     from ..experiment import read_experiment
 
-    path = series.provenance.get("experiment_file")
-    if not path:
+    named = series.provenance.get("experiment_file")
+    if not named:
         return None
     try:
-        return read_experiment(path)
+        return read_experiment(resolve_named(named, folder))
     except (DropkinError, OSError, ValueError):
         return None
 
@@ -100,5 +106,5 @@ def write_analysis_outputs(out_dir, *, experiment=None) -> Path:
     series = read_series(out_dir / "radius.csv")
     verdict = read_fit(out_dir / "fit.json")
     if experiment is None:
-        experiment = _named_experiment(series)
+        experiment = _named_experiment(series, out_dir)
     return write_analysis_report(out_dir, series=series, verdict=verdict, experiment=experiment)

@@ -7,7 +7,9 @@ are outputs only. :func:`open_source` reads the experiment and opens the
 recording it describes; :func:`measure_into` measures it and writes
 ``radius.csv``, ``measure.json`` and ``overlays/``; :func:`fit_into` fits a
 ``radius.csv`` read from disk and writes ``fit.json``, ``plots/`` and
-``report.html`` as ``analyze`` does (``dropkin fit``).
+``report.html`` as ``analyze`` does (``dropkin fit``). Every step that writes
+leaves a ``datapackage.json`` describing the folder's files
+(:mod:`dropkin.pipeline._package`); the provenance is :mod:`dropkin.pipeline._record`.
 Nothing here prints: the command line and the batch runner report progress
 their own way.
 """
@@ -21,6 +23,8 @@ from pathlib import Path
 from ..errors import MeasurementError
 from ._fit import Measurement, check_sample, fit_measurement, load_measurement, sample_of
 from ._outputs import write_fit
+from ._package import write_datapackage
+from ._record import fit_provenance, measure_provenance
 
 __all__ = [
     "parse_roi",
@@ -197,14 +201,19 @@ def measure_into(
     *,
     progress: Callable[[int, int], None] | None = None,
     experiment_file=None,
+    published_dir=None,
 ):
-    """Measure `rec` and write ``radius.csv``, ``measure.json`` and ``overlays/``.
+    """Measure `rec` and write ``radius.csv``, ``measure.json``, ``overlays/`` and
+    ``datapackage.json``.
 
     Parameters
     ----------
     experiment_file : str or os.PathLike, optional
         The experiment file to name in the provenance (default: the one `exp`
         was read from).
+    published_dir : str or os.PathLike, optional
+        Where `out` will be moved once complete: the provenance's paths are
+        relative to it (default: `out`).
 
     Returns
     -------
@@ -232,31 +241,36 @@ def measure_into(
         background=background,
     )
     measured, extras = measure(rec, exp, options=options, progress=progress, keep_edges=True)
-    named = experiment_file if experiment_file is not None else exp.path
-    provenance = {
-        **measured.provenance,
-        "sha256": recording_sha256(rec),
-        "experiment_file": None if named is None else str(Path(named).resolve()),
-    }
+    provenance = measure_provenance(
+        measured.provenance,
+        rec,
+        sha256=recording_sha256(rec),
+        experiment_file=experiment_file if experiment_file is not None else exp.path,
+        settings=settings,
+        folder=published_dir if published_dir is not None else out,
+    )
     series = replace(measured, provenance=provenance)
     out = Path(out)
     remove_temporaries(out, out / "overlays")  # left by a run that was killed
     write_series(series, out)
     if settings.overlays:
         write_overlays(rec, series, extras, out / "overlays", count=settings.overlays)
+    write_datapackage(out)
     return series, extras["contact"].method
 
 
-def _fit_and_write(measurement, out, **fit):
+def _fit_and_write(measurement, out, published_dir=None, **fit):
     """The verdict of a measurement, written to ``OUT/fit.json``; the verdict and the numbers.
 
-    `fit` holds the keywords of :func:`~dropkin.pipeline._fit.fit_measurement`.
+    `fit` holds the keywords of :func:`~dropkin.pipeline._fit.fit_measurement`;
+    the provenance's paths are relative to `published_dir` (default: `out`).
     """
     from .._atomic import remove_temporaries
 
     verdict, numbers = fit_measurement(measurement, **fit)
     remove_temporaries(out, Path(out) / "plots")  # left by a run that was killed
-    write_fit(verdict, out, series=measurement.series)
+    provenance = fit_provenance(measurement, published_dir or out, fit)
+    write_fit(verdict, out, series=measurement.series, provenance=provenance)
     return verdict, numbers
 
 
@@ -264,17 +278,20 @@ def _write_report(out, measurement, verdict) -> Path:
     """``OUT/plots/`` and ``OUT/report.html`` for a verdict, whether it succeeded or not.
 
     A failed or undecided fit still gets the radius plot and a report that
-    says why. The overlay frames are those beside the ``radius.csv``.
+    says why. The overlay frames are those beside the ``radius.csv``. The
+    folder's ``datapackage.json`` then describes all its files.
     """
     from ..report import write_analysis_report
 
-    return write_analysis_report(
+    report = write_analysis_report(
         out,
         series=measurement.series,
         verdict=verdict,
         experiment=measurement.experiment,
         overlays_dir=Path(measurement.path).parent / "overlays",
     )
+    write_datapackage(out)
+    return report
 
 
 def fit_into(
@@ -361,13 +378,23 @@ def analyze_into(
     exp, rec = open_source(source, experiment=experiment, overrides=overrides, origin=origin)
     sample = check_sample(exp)  # a bad sample description fails before the frames are measured
     copy = _write_experiment_copy(out, exp, source, published_dir) if experiment_copy else None
-    series, method = measure_into(out, exp, rec, settings, progress=progress, experiment_file=copy)
+    series, method = measure_into(
+        out,
+        exp,
+        rec,
+        settings,
+        progress=progress,
+        experiment_file=copy,
+        published_dir=published_dir,
+    )
     if series.contact_time is None:
         raise MeasurementError(method, path=rec.path)
     measurement = Measurement(
         series, sample_of(sample, series), out / "radius.csv", stated_uncertainties(exp)
     )
-    verdict, numbers = _fit_and_write(measurement, out, **settings.fit_settings())
+    verdict, numbers = _fit_and_write(
+        measurement, out, published_dir=published_dir, **settings.fit_settings()
+    )
     used = measurement.experiment
     report = _write_report(out, measurement, verdict)  # also when the fit failed
     return Analysis(
