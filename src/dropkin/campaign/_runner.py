@@ -21,12 +21,12 @@ from collections.abc import Callable, Iterable
 from dataclasses import dataclass
 from pathlib import Path
 
+from .._provenance import current_invocation
 from ..errors import DropkinError
 from ..measure import recording_sha256
 from ..pipeline import open_source
 from ._catalogue import open_catalogue, read_rows, write_row
 from ._manifest import Task, read_manifest
-from .._provenance import current_invocation
 from ._task import OLD_PREFIX, WORK_PREFIX, input_fingerprint, run_task, settings_sha256
 
 __all__ = ["BatchSummary", "run_batch"]

@@ -17,10 +17,10 @@ from dataclasses import dataclass, field, replace
 from pathlib import Path
 from types import MappingProxyType
 
+from .._provenance import resolve_named
 from ..contact import frames_bracket
 from ..errors import DropkinError, ExperimentError
 from ..experiment import Experiment, load_experiment, read_experiment
-from .._provenance import resolve_named
 from ..series import RadiusSeries, read_series
 
 __all__ = ["Measurement", "check_sample", "sample_of", "load_measurement", "fit_measurement"]

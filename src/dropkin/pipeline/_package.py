@@ -41,15 +41,19 @@ _FILES = {
         "measure",
         "json",
         "application/json",
-        "The measurement: contact instant, drop radius, frame rate, pixel size, edge levels "
-        "and the provenance (input, options as given and as resolved, versions, platform).",
+        (
+            "The measurement: contact instant, drop radius, frame rate, pixel size, edge levels "
+            "and the provenance (input, options as given and as resolved, versions, platform)."
+        ),
     ),
     "fit.json": (
         "fit",
         "json",
         "application/json",
-        "The regime verdict: candidate laws with exponents and prefactors and their 95 % "
-        "intervals, the time origin, the fit's settings and its provenance.",
+        (
+            "The regime verdict: candidate laws with exponents and prefactors and their 95 % "
+            "intervals, the time origin, the fit's settings and its provenance."
+        ),
     ),
     "experiment.toml": (
         "experiment",

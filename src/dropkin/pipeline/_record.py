@@ -21,7 +21,12 @@ from pathlib import Path
 
 from .._provenance import relative_path, run_record
 
-__all__ = ["measure_provenance", "fit_provenance", "resolved_settings"]
+__all__ = [
+    "measure_provenance",
+    "fit_provenance",
+    "resolved_settings",
+    "write_experiment_copy",
+]
 
 
 def resolved_settings(settings, folder) -> dict:
@@ -54,16 +59,21 @@ def measure_provenance(measured: dict, rec, *, sha256, experiment_file, settings
     }
 
 
-def fit_provenance(measurement, folder, fit_settings: dict) -> dict:
-    """``fit.json``'s provenance: the ``radius.csv`` and experiment file fitted
-    (relative to `folder`), the fit's settings as given, and the run."""
+def fit_provenance(measurement, out, published_dir, experiment_file, fit_settings) -> dict:
+    """``fit.json``'s provenance: the ``radius.csv`` fitted (where it is published,
+    when it lies in `out`) and the experiment file (`experiment_file`, else the
+    measurement's), relative to the folder, the fit's settings as given, and the run."""
     from .._version import __version__
 
-    named = measurement.experiment.path
+    folder = published_dir if published_dir is not None else out
+    radius_csv = Path(measurement.path)
+    if published_dir is not None and radius_csv.parent == Path(out):  # moved with `out`
+        radius_csv = Path(published_dir) / radius_csv.name
+    named = experiment_file if experiment_file is not None else measurement.experiment.path
     return {
         "tool": "dropkin",
         "version": __version__,
-        "radius_csv": relative_path(measurement.path, folder),
+        "radius_csv": relative_path(radius_csv, folder),
         "experiment_file": None if named is None else relative_path(named, folder),
         "settings": dict(fit_settings),
         "run": _run(folder),
@@ -74,3 +84,16 @@ def _run(folder) -> dict:
     """The run record, with the working directory (relative to `folder`) the
     command line's relative paths count from."""
     return {**run_record(), "working_directory": relative_path(os.getcwd(), folder)}
+
+
+def write_experiment_copy(out: Path, exp, source, published_dir) -> Path:
+    """``OUT/experiment.toml``, the experiment as used; the path the provenance names."""
+    from .._atomic import write_text_atomic
+    from ..experiment import experiment_to_toml
+
+    out.mkdir(parents=True, exist_ok=True)
+    write_text_atomic(
+        out / "experiment.toml",
+        experiment_to_toml(exp, header=f"The experiment as analysed, for {source}"),
+    )
+    return Path(published_dir if published_dir is not None else out) / "experiment.toml"

@@ -24,7 +24,7 @@ from ..errors import MeasurementError
 from ._fit import Measurement, check_sample, fit_measurement, load_measurement, sample_of
 from ._outputs import write_fit
 from ._package import write_datapackage
-from ._record import fit_provenance, measure_provenance
+from ._record import fit_provenance, measure_provenance, write_experiment_copy
 
 __all__ = [
     "parse_roi",
@@ -259,17 +259,18 @@ def measure_into(
     return series, extras["contact"].method
 
 
-def _fit_and_write(measurement, out, published_dir=None, **fit):
+def _fit_and_write(measurement, out, published_dir=None, experiment_file=None, **fit):
     """The verdict of a measurement, written to ``OUT/fit.json``; the verdict and the numbers.
 
     `fit` holds the keywords of :func:`~dropkin.pipeline._fit.fit_measurement`;
-    the provenance's paths are relative to `published_dir` (default: `out`).
+    the provenance's paths are relative to `published_dir` (default: `out`)
+    and name `experiment_file` (default: the measurement's experiment file).
     """
     from .._atomic import remove_temporaries
 
     verdict, numbers = fit_measurement(measurement, **fit)
     remove_temporaries(out, Path(out) / "plots")  # left by a run that was killed
-    provenance = fit_provenance(measurement, published_dir or out, fit)
+    provenance = fit_provenance(measurement, out, published_dir, experiment_file, fit)
     write_fit(verdict, out, series=measurement.series, provenance=provenance)
     return verdict, numbers
 
@@ -327,19 +328,6 @@ def fit_into(
     return verdict, numbers, measurement.experiment
 
 
-def _write_experiment_copy(out: Path, exp, source, published_dir) -> Path:
-    """``OUT/experiment.toml``, the experiment as used; the path the provenance names."""
-    from .._atomic import write_text_atomic
-    from ..experiment import experiment_to_toml
-
-    out.mkdir(parents=True, exist_ok=True)
-    write_text_atomic(
-        out / "experiment.toml",
-        experiment_to_toml(exp, header=f"The experiment as analysed, for {source}"),
-    )
-    return Path(published_dir if published_dir is not None else out) / "experiment.toml"
-
-
 def analyze_into(
     source,
     out,
@@ -377,7 +365,7 @@ def analyze_into(
     out = Path(out)
     exp, rec = open_source(source, experiment=experiment, overrides=overrides, origin=origin)
     sample = check_sample(exp)  # a bad sample description fails before the frames are measured
-    copy = _write_experiment_copy(out, exp, source, published_dir) if experiment_copy else None
+    copy = write_experiment_copy(out, exp, source, published_dir) if experiment_copy else None
     series, method = measure_into(
         out,
         exp,
@@ -393,7 +381,11 @@ def analyze_into(
         series, sample_of(sample, series), out / "radius.csv", stated_uncertainties(exp)
     )
     verdict, numbers = _fit_and_write(
-        measurement, out, published_dir=published_dir, **settings.fit_settings()
+        measurement,
+        out,
+        published_dir=published_dir,
+        experiment_file=copy,
+        **settings.fit_settings(),
     )
     used = measurement.experiment
     report = _write_report(out, measurement, verdict)  # also when the fit failed

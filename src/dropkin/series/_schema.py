@@ -30,8 +30,10 @@ _FIELDS = {
     "frame": (
         "integer",
         None,
-        "Frame index in the recording file, counted from its first frame (0), also when "
-        "first_frame leaves some out; one row per frame.",
+        (
+            "Frame index in the recording file, counted from its first frame (0), also when "
+            "first_frame leaves some out; one row per frame."
+        ),
         {"required": True, "unique": True, "minimum": 0},
     ),
     "time_s": (
@@ -43,15 +45,19 @@ _FIELDS = {
     "since_contact_s": (
         "number",
         "s",
-        "Time since the measured contact instant (measure.json contact_time_s), in seconds; "
-        "empty before contact and where no contact was seen.",
+        (
+            "Time since the measured contact instant (measure.json contact_time_s), in seconds; "
+            "empty before contact and where no contact was seen."
+        ),
         {},
     ),
     "radius_m": (
         "number",
         "m",
-        "Neck radius (two drops) or contact radius (spreading drop), in metres, with the "
-        "outline at measure.json's edge_level; empty where the frame has no measurement.",
+        (
+            "Neck radius (two drops) or contact radius (spreading drop), in metres, with the "
+            "outline at measure.json's edge_level; empty where the frame has no measurement."
+        ),
         {"minimum": 0},
     ),
     "radius_err_m": (
@@ -64,22 +70,28 @@ _FIELDS = {
     TRIGGER_COLUMN: (
         "number",
         "s",
-        "Time of the frame from the camera's trigger (from the camera file's header), in "
-        "seconds; negative before the trigger.",
+        (
+            "Time of the frame from the camera's trigger (from the camera file's header), in "
+            "seconds; negative before the trigger."
+        ),
         {},
     ),
     "angle_left_deg": (
         "number",
         "deg",
-        "Apparent contact angle at the left contact point, in degrees, inside the liquid; "
-        "empty where none was measured.",
+        (
+            "Apparent contact angle at the left contact point, in degrees, inside the liquid; "
+            "empty where none was measured."
+        ),
         {"minimum": 0, "maximum": 180},
     ),
     "angle_right_deg": (
         "number",
         "deg",
-        "Apparent contact angle at the right contact point, in degrees, inside the liquid; "
-        "empty where none was measured.",
+        (
+            "Apparent contact angle at the right contact point, in degrees, inside the liquid; "
+            "empty where none was measured."
+        ),
         {"minimum": 0, "maximum": 180},
     ),
 }
@@ -89,9 +101,11 @@ def _level_field(level: float) -> tuple:
     return (
         "number",
         "m",
-        f"The radius of radius_m with the outline at edge level {level:g} (the fraction of "
-        "the way from the drops' dark rim to the background), in metres; empty where not "
-        "measured. The spread over the levels is the fit's systematic interval.",
+        (
+            f"The radius of radius_m with the outline at edge level {level:g} (the fraction of "
+            "the way from the drops' dark rim to the background), in metres; empty where not "
+            "measured. The spread over the levels is the fit's systematic interval."
+        ),
         {"minimum": 0},
     )
 
