@@ -18,6 +18,7 @@ from .._atomic import write_text_atomic
 from .._provenance import resolve_named
 from ..errors import DropkinError, with_path
 from ..series import read_series
+from ._package import write_datapackage
 
 if TYPE_CHECKING:
     from ..scaling import RegimeVerdict
@@ -91,7 +92,8 @@ def _named_experiment(series, folder):
 
 
 def write_analysis_outputs(out_dir, *, experiment=None) -> Path:
-    """Read an analysis folder's three files; write its plots and its report.
+    """Read an analysis folder's three files; write its plots, its report and its
+    ``datapackage.json``.
 
     The files are ``radius.csv``, ``measure.json`` and ``fit.json`` (and
     ``angles.csv`` when there is one). A failed fit gets its plots and a
@@ -107,4 +109,6 @@ def write_analysis_outputs(out_dir, *, experiment=None) -> Path:
     verdict = read_fit(out_dir / "fit.json")
     if experiment is None:
         experiment = _named_experiment(series, out_dir)
-    return write_analysis_report(out_dir, series=series, verdict=verdict, experiment=experiment)
+    report = write_analysis_report(out_dir, series=series, verdict=verdict, experiment=experiment)
+    write_datapackage(out_dir)  # the folder's files, the plots made again included
+    return report

@@ -39,17 +39,19 @@ def resolved_settings(settings, folder) -> dict:
     return resolved
 
 
-def measure_provenance(measured: dict, rec, *, sha256, experiment_file, settings, folder) -> dict:
+def measure_provenance(measured: dict, rec, experiment_file, settings, folder) -> dict:
     """``measure.json``'s provenance: `measured` (the measurement's own: tool,
     version, options) with the paths made relative to `folder`, the
     recording's SHA-256, where its frame rate came from, the settings as
     resolved and the run."""
+    from ..measure import recording_sha256
+
     source = Path(rec.path)
     return {
         **measured,
         "input": relative_path(source, folder),
         "input_absolute": str(source.absolute()),
-        "sha256": sha256,
+        "sha256": recording_sha256(rec),
         "experiment_file": None
         if experiment_file is None
         else relative_path(experiment_file, folder),

@@ -202,9 +202,10 @@ def measure_into(
     progress: Callable[[int, int], None] | None = None,
     experiment_file=None,
     published_dir=None,
+    package: bool = True,
 ):
     """Measure `rec` and write ``radius.csv``, ``measure.json``, ``overlays/`` and
-    ``datapackage.json``.
+    (unless `package` is false: a step follows) ``datapackage.json``.
 
     Parameters
     ----------
@@ -224,7 +225,7 @@ def measure_into(
     contact_method : str
     """
     from .._atomic import remove_temporaries
-    from ..measure import MeasureOptions, measure, recording_sha256
+    from ..measure import MeasureOptions, measure
     from ..report._overlays import write_overlays
     from ..series import write_series
 
@@ -241,13 +242,9 @@ def measure_into(
         background=background,
     )
     measured, extras = measure(rec, exp, options=options, progress=progress, keep_edges=True)
+    named = experiment_file if experiment_file is not None else exp.path
     provenance = measure_provenance(
-        measured.provenance,
-        rec,
-        sha256=recording_sha256(rec),
-        experiment_file=experiment_file if experiment_file is not None else exp.path,
-        settings=settings,
-        folder=published_dir if published_dir is not None else out,
+        measured.provenance, rec, named, settings, published_dir or out
     )
     series = replace(measured, provenance=provenance)
     out = Path(out)
@@ -255,7 +252,8 @@ def measure_into(
     write_series(series, out)
     if settings.overlays:
         write_overlays(rec, series, extras, out / "overlays", count=settings.overlays)
-    write_datapackage(out)
+    if package:
+        write_datapackage(out)
     return series, extras["contact"].method
 
 
@@ -374,8 +372,10 @@ def analyze_into(
         progress=progress,
         experiment_file=copy,
         published_dir=published_dir,
+        package=False,
     )
     if series.contact_time is None:
+        write_datapackage(out)  # of the series measured: the run ends here
         raise MeasurementError(method, path=rec.path)
     measurement = Measurement(
         series, sample_of(sample, series), out / "radius.csv", stated_uncertainties(exp)
