@@ -5,7 +5,8 @@ worktree made for the run) and with this working tree, on the three shipped
 samples and on the 2,000-frame stack of ``benchmarks/measure_speed.py``, and
 compares ``radius.csv``, ``measure.json`` and ``fit.json`` byte for byte after
 setting aside what must differ between two runs: the tool version, the
-absolute paths of inputs and outputs, timestamps and run times.
+paths of inputs and outputs, timestamps and run times, and the provenance's
+record of the run (command line, versions, platform, time).
 
 A refactoring that changes no behaviour must print ``same`` for every file.
 ``radius.csv`` is compared on the columns the base has (``same``), and columns
@@ -39,7 +40,10 @@ COMPARED = ("radius.csv", "measure.json", "fit.json")
 VOLATILE = {
     "version",
     "input",
+    "input_absolute",
     "experiment_file",
+    "radius_csv",
+    "run",
     "output",
     "created",
     "created_utc",

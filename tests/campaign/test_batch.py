@@ -4,6 +4,7 @@ from __future__ import annotations
 
 import hashlib
 import json
+import shlex
 import shutil
 import signal
 import sqlite3
@@ -161,6 +162,25 @@ def test_on_the_wrong_regimes_scales_the_series_do_not_collapse(pool_run, tmp_pa
     c = {m["label"]: m["prefactor"] for m in curve["members"]}
     assert c["mu050"] / c["mu250"] == pytest.approx((0.25 / 0.05) ** 0.5, rel=0.05)
     assert len(curve["flagged"]) >= 2
+
+
+def test_each_recording_names_the_batch_command_and_its_copied_experiment(pool_run):
+    """Issue 16, point 4: the worker processes record the command line of the batch;
+    the paths count from the recording's published folder (not the work folder)."""
+    out, _ = pool_run
+    for label in GOOD:
+        folder = out / label
+        prov = json.loads((folder / "measure.json").read_text(encoding="utf-8"))["provenance"]
+        words = shlex.split(prov["run"]["command_line"])
+        assert words[:2] == ["dropkin", "batch"] and words[-2:] == ["--jobs", "2"]
+        assert prov["run"]["options_given"]["--jobs"] == "2"
+        assert prov["experiment_file"] == "experiment.toml"
+        assert (folder / prov["input"]).resolve() == Path(prov["input_absolute"]).resolve()
+        fit = json.loads((folder / "fit.json").read_text(encoding="utf-8"))["provenance"]
+        assert fit["radius_csv"] == "radius.csv" and fit["run"]["command_line"]
+        package = json.loads((folder / "datapackage.json").read_text(encoding="utf-8"))
+        names = {r["name"] for r in package["resources"]}
+        assert {"radius", "measure", "fit", "experiment", "report"} <= names
 
 
 def test_dask_local_cluster_gives_the_same_rows_as_the_pool(

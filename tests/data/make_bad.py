@@ -395,7 +395,7 @@ def experiment_cases():
         words=["no frame shows the drops in contact", "radius series written"],
         commands=["measure", "analyze"],
         file_named=False,  # the recording is at fault: its kept frames show no contact
-        keeps=["radius.csv", "measure.json", "overlays/*.png"],
+        keeps=["radius.csv", "measure.json", "overlays/*.png", "datapackage.json"],
         about="the first two frames only, both before contact: the series is kept, exit 1",
     )
 
@@ -1022,7 +1022,13 @@ def option_cases():
         ["--t0", "1 s"],
         ["fit"],
         words=["radius.csv", "before contact"],
-        keeps=["fit.json", "report.html", "plots/radius.png", "plots/radius.svg"],
+        keeps=[
+            "fit.json",
+            "report.html",
+            "plots/radius.png",
+            "plots/radius.svg",
+            "datapackage.json",
+        ],
         about="a contact instant after the last frame: fit.json records the failed verdict, "
         "the report says why",
     )

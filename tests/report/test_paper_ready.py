@@ -155,7 +155,17 @@ def test_fit_writes_the_plots_and_report_analyze_writes(runs, tmp_path):
     pair = runs["pair"]
     result = _run("fit", pair / "radius.csv", "-o", tmp_path, "--bootstrap", "20")
     assert result.exit_code == 0, result.output
-    assert (tmp_path / "fit.json").read_bytes() == (pair / "fit.json").read_bytes()
+    # the same verdict, byte for byte, before the provenance (written last): that
+    # names another run, and the radius.csv from another folder
+    fitted, analysed = (
+        (folder / "fit.json").read_text(encoding="utf-8") for folder in (tmp_path, pair)
+    )
+    cut = '\n  "provenance": {'
+    assert fitted.index(cut) == analysed.index(cut) > 0
+    assert fitted[: fitted.index(cut)] == analysed[: analysed.index(cut)]
+    provenance = json.loads(fitted)["provenance"]
+    assert provenance["run"]["command_line"].startswith("dropkin fit ")
+    assert (tmp_path / provenance["radius_csv"]).resolve() == (pair / "radius.csv").resolve()
     names = sorted(p.name for p in (pair / "plots").iterdir())
     assert sorted(p.name for p in (tmp_path / "plots").iterdir()) == names
     for name in names:  # same records, same figures, byte for byte

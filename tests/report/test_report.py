@@ -78,6 +78,8 @@ def test_records_read_back_give_their_files_again(analysed):
     # fit.json is the verdict's dict plus the time origin of the run's outputs
     fit = dict(files["fit"])
     origin = fit.pop("time_origin")
+    provenance = fit.pop("provenance")  # of the run, not of the verdict (issue 16, point 4)
+    assert provenance["radius_csv"] == "radius.csv" and provenance["run"]["versions"]
     assert verdict_to_dict(inputs["verdict"]) == fit
     assert origin == origin_dict(time_origin(inputs["series"], inputs["verdict"]))
 

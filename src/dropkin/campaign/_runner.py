@@ -21,6 +21,7 @@ from collections.abc import Callable, Iterable
 from dataclasses import dataclass
 from pathlib import Path
 
+from .._provenance import current_invocation
 from ..errors import DropkinError
 from ..measure import recording_sha256
 from ..pipeline import open_source
@@ -63,7 +64,9 @@ def _pool_rows(tasks, out_dir, jobs) -> Iterable[dict]:
 
     pool = multiprocessing.get_context().Pool(jobs, initializer=_ignore_sigint)
     try:
-        yield from pool.imap_unordered(_run_pair, [(t, str(out_dir)) for t in tasks])
+        invocation = current_invocation()  # for the provenance, in the worker processes
+        pairs = [(t, str(out_dir), invocation) for t in tasks]
+        yield from pool.imap_unordered(_run_pair, pairs)
         pool.close()
     finally:
         pool.terminate()
@@ -71,7 +74,8 @@ def _pool_rows(tasks, out_dir, jobs) -> Iterable[dict]:
 
 
 def _run_pair(pair):
-    return run_task(*pair)
+    task, out_dir, invocation = pair
+    return run_task(task, out_dir, invocation=invocation)
 
 
 def _dask_rows(tasks, out_dir, scheduler) -> Iterable[dict]:
@@ -92,7 +96,14 @@ def _dask_rows(tasks, out_dir, scheduler) -> Iterable[dict]:
     futures = []
     try:
         futures = [
-            client.submit(run_task, t, str(out_dir), pure=False, key=f"dropkin-{t.label}-{i}")
+            client.submit(
+                run_task,
+                t,
+                str(out_dir),
+                invocation=current_invocation(),
+                pure=False,
+                key=f"dropkin-{t.label}-{i}",
+            )
             for i, t in enumerate(tasks)
         ]
         for future in as_completed(futures):

@@ -20,6 +20,7 @@ import time
 from datetime import UTC, datetime
 from pathlib import Path
 
+from .._provenance import invoked
 from .._version import __version__
 from ..errors import DropkinError
 from ..pipeline import analyze_into, open_source
@@ -101,8 +102,27 @@ def _folder_mode() -> int:
     return 0o777 & ~mask
 
 
-def run_task(task: Task, out_dir) -> dict:
+def _analyze(task: Task, work: Path, out_dir: Path):
+    """The analysis of `task` into the work folder `work`, published as ``OUT/<label>``."""
+    return analyze_into(
+        task.source,
+        work,
+        task.settings,
+        experiment=task.experiment_file,
+        overrides=task.overrides,
+        origin="campaign manifest",
+        liquids=task.liquids_file,
+        experiment_copy=True,
+        published_dir=out_dir / task.label,
+    )
+
+
+def run_task(task: Task, out_dir, invocation: dict | None = None) -> dict:
     """Analyse one recording of a campaign into ``OUT/<label>``; its catalogue row.
+
+    `invocation` is the command line's record for the provenance
+    (:func:`dropkin._provenance.current_invocation`), handed over to a worker
+    process that does not have it.
 
     Never raises for the recording's own faults: a :class:`DropkinError` (and,
     so that one bad recording cannot stop a campaign, any other exception)
@@ -131,17 +151,8 @@ def run_task(task: Task, out_dir) -> dict:
         row["settings_sha256"] = settings_sha256(exp, task.settings, task.liquids_file)
         row["settings"] = task.settings.result_settings()
         row.update(sample_columns(exp))
-        result = analyze_into(
-            task.source,
-            work,
-            task.settings,
-            experiment=task.experiment_file,
-            overrides=task.overrides,
-            origin="campaign manifest",
-            liquids=task.liquids_file,
-            experiment_copy=True,
-            published_dir=out_dir / task.label,
-        )
+        with invoked(invocation):
+            result = _analyze(task, work, out_dir)
         row.update(sample_columns(result.experiment))
         row.update(series_columns(result.series))
         row.update(verdict_columns(result.verdict))

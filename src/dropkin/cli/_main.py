@@ -23,9 +23,26 @@ EXIT_BATCH_PARTIAL = 3
 #: ``dropkin batch`` was interrupted (run it again to finish).
 EXIT_INTERRUPTED = 130
 
+#: Where the group keeps its arguments as given, for the provenance.
+_ARGS = "dropkin.args"
+
 
 class _Group(click.Group):
-    """A click group that turns dropkin's errors into one line and exit code 1."""
+    """A click group that turns dropkin's errors into one line and exit code 1, and
+    hands the command line as given to the outputs' provenance while a command runs."""
+
+    def parse_args(self, ctx, args):
+        ctx.meta[_ARGS] = list(args)
+        return super().parse_args(ctx, args)
+
+    def resolve_command(self, ctx, args):
+        name, command, rest = super().resolve_command(ctx, args)
+        if command is not None:
+            from .._provenance import set_invocation
+            from ._invocation import invocation
+
+            set_invocation(invocation(ctx.meta.get(_ARGS, []), command, name, ctx, rest))
+        return name, command, rest
 
     def invoke(self, ctx):
         try:
@@ -37,6 +54,10 @@ class _Group(click.Group):
             where = f"{exc.filename}: " if getattr(exc, "filename", None) else ""
             click.echo(f"dropkin: error: {where}{exc.strerror or exc}", err=True)
             ctx.exit(EXIT_INPUT_ERROR)
+        finally:  # a later call from Python in this process is not this command
+            from .._provenance import set_invocation
+
+            set_invocation(None)
 
 
 @click.group(cls=_Group, context_settings={"help_option_names": ["-h", "--help"]})

@@ -17,6 +17,7 @@ from dataclasses import dataclass, field, replace
 from pathlib import Path
 from types import MappingProxyType
 
+from .._provenance import resolve_named
 from ..contact import frames_bracket
 from ..errors import DropkinError, ExperimentError
 from ..experiment import Experiment, load_experiment, read_experiment
@@ -210,8 +211,8 @@ def load_measurement(radius_csv, *, experiment=None, overrides=None, liquids=Non
 def _measured_experiment(series: RadiusSeries, path: Path) -> Experiment:
     """The experiment file ``measure.json`` names, else the one in the series' folder."""
     named = series.provenance.get("experiment_file")
-    if named and Path(named).is_file():
-        return read_experiment(named)
+    if named and resolve_named(named, path.parent).is_file():
+        return read_experiment(resolve_named(named, path.parent))
     exp = load_experiment(path.parent)
     if exp.path is None:
         raise ExperimentError(
@@ -226,7 +227,8 @@ def _recorded_library(named, path: Path):
     """The liquid library ``measure.json`` names (``liquids_file``), which must still exist."""
     if not named:
         return None
-    if not Path(named).is_file():
+    named = resolve_named(named, path.parent)
+    if not named.is_file():
         raise ExperimentError(
             "names a liquid library that is not there",
             path=path.parent / "measure.json",

@@ -15,8 +15,10 @@ from pathlib import Path
 from typing import TYPE_CHECKING
 
 from .._atomic import write_text_atomic
+from .._provenance import resolve_named
 from ..errors import DropkinError, with_path
 from ..series import read_series
+from ._package import write_datapackage
 
 if TYPE_CHECKING:
     from ..scaling import RegimeVerdict
@@ -24,7 +26,9 @@ if TYPE_CHECKING:
 __all__ = ["write_fit", "read_fit", "write_analysis_outputs"]
 
 
-def write_fit(verdict: RegimeVerdict, out_dir, *, series=None, sample=None) -> Path:
+def write_fit(
+    verdict: RegimeVerdict, out_dir, *, series=None, sample=None, provenance=None
+) -> Path:
     """Write ``fit.json`` into `out_dir` atomically; return its path.
 
     With the `series` the verdict was fitted to, the file also holds
@@ -32,7 +36,9 @@ def write_fit(verdict: RegimeVerdict, out_dir, *, series=None, sample=None) -> P
     measured contact instant ``radius.csv``'s ``since_contact_s`` counts from
     (see :mod:`dropkin.report._origin`). With `sample` (see
     :meth:`~dropkin.pipeline._fit.Measurement.sample_record`), it holds the
-    sample as fitted under ``settings.sample``.
+    sample as fitted under ``settings.sample``. A `provenance` dict (see
+    :func:`~dropkin.pipeline._record.fit_provenance`) is written last, as
+    ``provenance``; reading the verdict back ignores it.
     """
     from ..scaling import verdict_to_dict  # scipy: imported when needed
 
@@ -45,6 +51,8 @@ def write_fit(verdict: RegimeVerdict, out_dir, *, series=None, sample=None) -> P
         data["time_origin"] = origin_dict(time_origin(series, verdict))
     if sample is not None:
         data.setdefault("settings", {})["sample"] = sample
+    if provenance is not None:
+        data["provenance"] = provenance
     text = json.dumps(data, indent=2, allow_nan=False) + "\n"
     return write_text_atomic(out_dir / "fit.json", text)
 
@@ -75,21 +83,23 @@ def read_fit(path) -> RegimeVerdict:
         raise DropkinError(f"is not a verdict ({type(exc).__name__}: {exc})", path=path) from None
 
 
-def _named_experiment(series):
-    """The experiment file named in the series' provenance, when it can still be read."""
+def _named_experiment(series, folder):
+    """The experiment file named in the series' provenance (relative to `folder`,
+    where ``measure.json`` lies), when it can still be read."""
     from ..experiment import read_experiment
 
-    path = series.provenance.get("experiment_file")
-    if not path:
+    named = series.provenance.get("experiment_file")
+    if not named:
         return None
     try:
-        return read_experiment(path)
+        return read_experiment(resolve_named(named, folder))
     except (DropkinError, OSError, ValueError):
         return None
 
 
 def write_analysis_outputs(out_dir, *, experiment=None) -> Path:
-    """Read an analysis folder's three files; write its plots and its report.
+    """Read an analysis folder's three files; write its plots, its report and its
+    ``datapackage.json``.
 
     The files are ``radius.csv``, ``measure.json`` and ``fit.json`` (and
     ``angles.csv`` when there is one). A failed fit gets its plots and a
@@ -104,5 +114,7 @@ def write_analysis_outputs(out_dir, *, experiment=None) -> Path:
     series = read_series(out_dir / "radius.csv")
     verdict = read_fit(out_dir / "fit.json")
     if experiment is None:
-        experiment = _named_experiment(series)
-    return write_analysis_report(out_dir, series=series, verdict=verdict, experiment=experiment)
+        experiment = _named_experiment(series, out_dir)
+    report = write_analysis_report(out_dir, series=series, verdict=verdict, experiment=experiment)
+    write_datapackage(out_dir)  # the folder's files, the plots made again included
+    return report

@@ -7,7 +7,9 @@ are outputs only. :func:`open_source` reads the experiment and opens the
 recording it describes; :func:`measure_into` measures it and writes
 ``radius.csv``, ``measure.json`` and ``overlays/``; :func:`fit_into` fits a
 ``radius.csv`` read from disk and writes ``fit.json``, ``plots/`` and
-``report.html`` as ``analyze`` does (``dropkin fit``).
+``report.html`` as ``analyze`` does (``dropkin fit``). Every step that writes
+leaves a ``datapackage.json`` describing the folder's files
+(:mod:`dropkin.pipeline._package`); the provenance is :mod:`dropkin.pipeline._record`.
 Nothing here prints: the command line and the batch runner report progress
 their own way.
 """
@@ -18,6 +20,7 @@ from collections.abc import Callable
 from dataclasses import dataclass, replace
 from pathlib import Path
 
+from .._provenance import relative_path
 from ..errors import MeasurementError
 from ._fit import (
     Measurement,
@@ -28,6 +31,8 @@ from ._fit import (
     sample_of,
 )
 from ._outputs import write_fit
+from ._package import write_datapackage
+from ._record import fit_provenance, measure_provenance, write_experiment_copy
 from ._settings import AnalysisSettings, parse_roi
 
 _DEFAULTS = AnalysisSettings()  # frozen: one shared default
@@ -116,8 +121,11 @@ def measure_into(
     experiment_file=None,
     sample=None,
     liquids=None,
+    published_dir=None,
+    package: bool = True,
 ):
-    """Measure `rec` and write ``radius.csv``, ``measure.json`` and ``overlays/``.
+    """Measure `rec` and write ``radius.csv``, ``measure.json``, ``overlays/`` and
+    (unless `package` is false: a step follows) ``datapackage.json``.
 
     Parameters
     ----------
@@ -130,6 +138,9 @@ def measure_into(
         ``dropkin fit`` applies them again.
     liquids : str or os.PathLike, optional
         The user's liquid library, recorded as ``liquids_file``.
+    published_dir : str or os.PathLike, optional
+        Where `out` will be moved once complete: the provenance's paths are
+        relative to it (default: `out`).
 
     Returns
     -------
@@ -140,7 +151,7 @@ def measure_into(
     contact_method : str
     """
     from .._atomic import remove_temporaries
-    from ..measure import MeasureOptions, measure, recording_sha256
+    from ..measure import MeasureOptions, measure
     from ..report._overlays import write_overlays
     from ..series import write_series
 
@@ -158,34 +169,38 @@ def measure_into(
     )
     measured, extras = measure(rec, exp, options=options, progress=progress, keep_edges=True)
     named = experiment_file if experiment_file is not None else exp.path
-    provenance = {
-        **measured.provenance,
-        "sha256": recording_sha256(rec),
-        "experiment_file": None if named is None else str(Path(named).resolve()),
-    }
+    provenance = measure_provenance(
+        measured.provenance, rec, named, settings, published_dir or out
+    )
     if sample_given(sample):
         provenance["sample_overrides"] = sample_given(sample)
     if liquids is not None:
-        provenance["liquids_file"] = str(Path(liquids).resolve())
+        provenance["liquids_file"] = relative_path(liquids, published_dir or out)
     series = replace(measured, provenance=provenance)
     out = Path(out)
     remove_temporaries(out, out / "overlays")  # left by a run that was killed
     write_series(series, out)
     if settings.overlays:
         write_overlays(rec, series, extras, out / "overlays", count=settings.overlays)
+    if package:
+        write_datapackage(out)
     return series, extras["contact"].method
 
 
-def _fit_and_write(measurement, out, **fit):
+def _fit_and_write(measurement, out, published_dir=None, experiment_file=None, **fit):
     """The verdict of a measurement, written to ``OUT/fit.json``; the verdict and the numbers.
 
-    `fit` holds the keywords of :func:`~dropkin.pipeline._fit.fit_measurement`.
+    `fit` holds the keywords of :func:`~dropkin.pipeline._fit.fit_measurement`;
+    the provenance's paths are relative to `published_dir` (default: `out`)
+    and name `experiment_file` (default: the measurement's experiment file).
     """
     from .._atomic import remove_temporaries
 
     verdict, numbers = fit_measurement(measurement, **fit)
     remove_temporaries(out, Path(out) / "plots")  # left by a run that was killed
-    write_fit(verdict, out, series=measurement.series, sample=measurement.sample_record())
+    provenance = fit_provenance(measurement, out, published_dir, experiment_file, fit)
+    sample = measurement.sample_record()
+    write_fit(verdict, out, series=measurement.series, sample=sample, provenance=provenance)
     return verdict, numbers
 
 
@@ -193,17 +208,20 @@ def _write_report(out, measurement, verdict) -> Path:
     """``OUT/plots/`` and ``OUT/report.html`` for a verdict, whether it succeeded or not.
 
     A failed or undecided fit still gets the radius plot and a report that
-    says why. The overlay frames are those beside the ``radius.csv``.
+    says why. The overlay frames are those beside the ``radius.csv``. The
+    folder's ``datapackage.json`` then describes all its files.
     """
     from ..report import write_analysis_report
 
-    return write_analysis_report(
+    report = write_analysis_report(
         out,
         series=measurement.series,
         verdict=verdict,
         experiment=measurement.experiment,
         overlays_dir=Path(measurement.path).parent / "overlays",
     )
+    write_datapackage(out)
+    return report
 
 
 def fit_into(
@@ -245,19 +263,6 @@ def fit_into(
     verdict, numbers = _fit_and_write(measurement, out, **fit)
     _write_report(out, measurement, verdict)
     return verdict, numbers, measurement.experiment
-
-
-def _write_experiment_copy(out: Path, exp, source, published_dir) -> Path:
-    """``OUT/experiment.toml``, the experiment as used; the path the provenance names."""
-    from .._atomic import write_text_atomic
-    from ..experiment import experiment_to_toml
-
-    out.mkdir(parents=True, exist_ok=True)
-    write_text_atomic(
-        out / "experiment.toml",
-        experiment_to_toml(exp, header=f"The experiment as analysed, for {source}"),
-    )
-    return Path(published_dir if published_dir is not None else out) / "experiment.toml"
 
 
 def analyze_into(
@@ -306,7 +311,7 @@ def analyze_into(
     exp, rec = open_source(source, experiment=experiment, overrides=overrides, origin=origin)
     # a bad sample description fails before the frames are measured
     sample = check_sample(exp, user_library=liquids)
-    copy = _write_experiment_copy(out, exp, source, published_dir) if experiment_copy else None
+    copy = write_experiment_copy(out, exp, source, published_dir) if experiment_copy else None
     given = sample_given(overrides)
     series, method = measure_into(
         out,
@@ -317,8 +322,11 @@ def analyze_into(
         experiment_file=copy,
         sample=given,
         liquids=liquids,
+        published_dir=published_dir,
+        package=False,
     )
     if series.contact_time is None:
+        write_datapackage(out)  # of the series measured: the run ends here
         raise MeasurementError(method, path=rec.path)
     measurement = Measurement(
         series,
@@ -328,7 +336,13 @@ def analyze_into(
         given=given,
         liquids_file=None if liquids is None else str(Path(liquids).resolve()),
     )
-    verdict, numbers = _fit_and_write(measurement, out, **settings.fit_settings())
+    verdict, numbers = _fit_and_write(
+        measurement,
+        out,
+        published_dir=published_dir,
+        experiment_file=copy,
+        **settings.fit_settings(),
+    )
     used = measurement.experiment
     report = _write_report(out, measurement, verdict)  # also when the fit failed
     return Analysis(

@@ -254,6 +254,20 @@ def _provenance_rows(series, verdict) -> list[tuple[str, str]]:
         ("experiment file", str(prov.get("experiment_file") or "—")),
         ("measure options", json.dumps(prov.get("options") or {}, ensure_ascii=False)),
         ("fit options", json.dumps(options, ensure_ascii=False)),
+        *_run_rows(prov.get("run")),
+    ]
+
+
+def _run_rows(run) -> list[tuple[str, str]]:
+    """The measuring run of ``measure.json`` (absent from files of older versions)."""
+    if not isinstance(run, dict):
+        return []
+    versions = run.get("versions") or {}
+    return [
+        ("command line", str(run.get("command_line") or "— (called from Python)")),
+        ("measured (UTC)", str(run.get("created_utc", "—"))),
+        ("python, platform", f"{run.get('python', '?')}, {run.get('platform', '?')}"),
+        ("versions", ", ".join(f"{k} {v}" for k, v in versions.items() if v)),
     ]
 
 
