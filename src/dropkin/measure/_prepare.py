@@ -101,9 +101,10 @@ def _lighting(frame, options, contrast: str):
     """(contrast, its origin, illumination, dark) of one frame, or a reason
     (str) why the frame shows no contrast."""
     if contrast == "auto":
-        contrast, sides, share = vision.frame_contrast(frame)
+        contrast, vote, share = vision.frame_contrast(frame)
         origin = (
-            f"told from the frame: {sides} of its 4 sides and {share:.0%} of its pixels bright"
+            f"told from the frame: outline vote {vote:+.2f} (+1: curving round the dark"
+            f" side), {share:.0%} of its pixels bright"
         )
     else:
         origin = "experiment file"

@@ -13,8 +13,9 @@ bright drops on a dark field. The same affine map then has a *negative* span
 (the field's level below the drops' level), and it still sends the field to 1
 and the drops to 0: every later step sees dark drops on a bright field, and
 the half-way crossing (invariant under any affine map of the grey levels)
-lies where it lay in the raw frame. :func:`frame_contrast` tells which way a
-frame is lit; :func:`light_span` is the signed span every normalisation uses.
+lies where it lay in the raw frame. :func:`light_span` is the signed span
+every normalisation uses; :mod:`dropkin.vision._contrast` tells which way a
+frame is lit.
 """
 
 from __future__ import annotations
@@ -23,9 +24,7 @@ import numpy as np
 
 __all__ = [
     "CONTRASTS",
-    "frame_contrast",
     "light_span",
-    "rim_level",
     "holes_filled",
     "label_regions",
     "dilate",
@@ -274,74 +273,6 @@ def dark_level(frame, *, percentile: float = 0.5, contrast: str = "dark-drops") 
     frame = _check_frame(frame)
     q = 100.0 - percentile if _check_contrast(contrast) else percentile
     return float(np.percentile(frame, q))
-
-
-def rim_level(frame, trans, *, level: float = 0.5, depth=(4.0, 8.0)):
-    """Grey level of the drops just inside their outline, or None.
-
-    The median raw grey level over the pixels of the silhouette
-    (:func:`silhouette_mask` of `trans` at `level`) that lie between
-    ``depth[0]`` and ``depth[1]`` px from its border: beyond the blur of the
-    edge, short of the drop's inside. Bright drops (front light,
-    fluorescence) are not evenly bright, a glow or a highlight inside and a
-    dimmer rim; their outline lies half-way between the field and this
-    level, not the brightest pixel's. None if fewer than 50 pixels qualify.
-
-    Examples
-    --------
-    >>> f = np.full((40, 40), 10.0); f[5:35, 5:35] = 100.0; f[15:25, 15:25] = 180.0
-    >>> t = transmission(f, np.full(f.shape, 10.0), 180.0)
-    >>> rim_level(f, t)
-    100.0
-    """
-    import cv2
-
-    frame = _check_frame(frame)
-    mask = silhouette_mask(trans, level=level).astype(np.uint8)
-    dist = cv2.distanceTransform(mask, cv2.DIST_L2, 5)
-    ring = (dist > depth[0]) & (dist <= depth[1])
-    if np.count_nonzero(ring) < 50:
-        return None
-    return float(np.median(frame[ring]))
-
-
-def frame_contrast(frame) -> tuple[str, int, float]:
-    """Which way a frame is lit: ``(contrast, bright_sides, bright_share)``.
-
-    The frame's grey levels are split at Otsu's threshold
-    (:func:`threshold_midpoint`). The field of view is told by the frame's
-    four sides: each votes for the side of the split its median lies on (a
-    side view's plate darkens one side only, a needle or a drop crossing a
-    side not its median). Three or four bright sides are dark drops on a
-    backlight, three or four dark sides bright drops on a dark field (front
-    light, fluorescence); two against two are settled by the whole frame, a
-    bright minority on a dark majority being bright drops. `bright_sides`
-    counts the bright sides, `bright_share` is the fraction of the pixels
-    above the threshold. A frame whose drops cover most of its sides is read
-    the wrong way round: say the contrast for such a recording.
-
-    Returns
-    -------
-    contrast : {"dark-drops", "bright-drops"}
-    bright_sides : int
-    bright_share : float
-
-    Examples
-    --------
-    >>> f = np.full((20, 20), 200, np.uint8); f[5:10, 5:10] = 20
-    >>> frame_contrast(f)[0], frame_contrast(255 - f)[0]
-    ('dark-drops', 'bright-drops')
-    """
-    frame = _check_frame(frame)
-    threshold = threshold_midpoint(frame)
-    share = float(np.count_nonzero(frame > threshold)) / frame.size
-    sides = (frame[0], frame[-1], frame[:, 0], frame[:, -1])
-    bright_sides = sum(int(np.median(side) > threshold) for side in sides)
-    if bright_sides == 2:
-        bright_drops = share < 0.5
-    else:
-        bright_drops = bright_sides < 2
-    return ("bright-drops" if bright_drops else "dark-drops"), bright_sides, share
 
 
 def light_span(illumination, dark: float):
