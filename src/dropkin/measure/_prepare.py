@@ -174,6 +174,8 @@ def prepare(
             reason = exc.message
             continue
         return dataclasses.replace(prep, **lit)
+    if contrast != "auto":
+        reason += f"; looked for as {contrast} (recording.contrast), not told from the frames"
     raise MeasurementError(
         f"the drops were not found in the first frames ({reason})", path=recording.path
     )
