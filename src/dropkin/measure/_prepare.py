@@ -5,10 +5,11 @@ drops' geometry.
 *Contrast*: dark drops on a backlight, or bright drops on a dark field (front
 light, fluorescence). The experiment file may say which
 (``[recording] contrast``); by default each frame looked at is read by
-:func:`dropkin.vision.frame_contrast` (a bright minority on a dark majority
-is bright drops). For bright drops the "illumination" is the dark field's
-level and the "dark level" the drops' bright level: the transmission's span
-is negative, and the frames reach every later step as dark drops on a bright
+:func:`dropkin.vision.frame_contrast` (drops are convex: the side the
+outlines curve round). For bright drops the "illumination" is the dark
+field's level and the "dark level" the drops' level just inside their
+outline (:func:`dropkin.vision.rim_level`): the transmission's span is
+negative, and the frames reach every later step as dark drops on a bright
 field (:mod:`dropkin.vision._silhouette`).
 """
 
