@@ -40,6 +40,9 @@ __all__ = [
 
 GEOMETRIES = ("coalescence", "sessile-coalescence", "spreading")
 VIEWS = ("side", "bottom")
+#: Dark drops on a backlight, bright drops on a dark field (front light,
+#: fluorescence), or told from the first frames.
+CONTRASTS = ("auto", "dark-drops", "bright-drops")
 
 
 @dataclass(frozen=True)
@@ -56,12 +59,16 @@ class RecordingSettings:
         Index of the first frame kept (frames before it are skipped).
     last_frame : int or None
         Index of the last frame kept (inclusive); None keeps all to the end.
+    contrast : str
+        ``"dark-drops"`` (backlight), ``"bright-drops"`` (front light,
+        fluorescence) or ``"auto"``: told from the first frames.
     """
 
     frame_rate: float | None = None
     pixel_size: float | None = None
     first_frame: int = 0
     last_frame: int | None = None
+    contrast: str = "auto"
 
 
 @dataclass(frozen=True)
@@ -176,6 +183,7 @@ SCHEMA: dict[str, tuple[type, dict[str, tuple]]] = {
             "pixel_size": ("quantity", "m"),
             "first_frame": ("index",),
             "last_frame": ("index",),
+            "contrast": ("choice", *CONTRASTS),
         },
     ),
     "setup": (

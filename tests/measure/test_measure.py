@@ -328,6 +328,9 @@ SPREAD_CASES = {
     "side-opaque-8bit": dict(view="side", reflectivity=0.0, bits=8),
     "side-mirror-12bit": dict(view="side", reflectivity=0.5, bits=12),
     "bottom-8bit": dict(view="bottom", reflectivity=0.0, bits=8),
+    # Front-lit or fluorescent: bright drops on a dark field, told from the frames.
+    "side-bright-glow-8bit": dict(view="side", reflectivity=0.0, bits=8, glow=0.6),
+    "bottom-bright-12bit": dict(view="bottom", reflectivity=0.0, bits=12, glow=0.0),
 }
 
 
@@ -343,7 +346,11 @@ def test_spreading_contact_radius_against_synthetic_truth(tmp_path, name):
         camera=synth.Camera(rate, pixel, (224, 320)),
         frames=60,
         contact_frame=5.3,
-        optics=synth.Optics(blur_px=1.0),
+        optics=synth.Optics(
+            blur_px=1.0,
+            contrast="bright-drops" if "glow" in case else "dark-drops",
+            glow=case.get("glow", 0.0),
+        ),
         sensor=synth.Sensor(bit_depth=case["bits"]),
         seed=11,
     )
@@ -365,6 +372,7 @@ def test_spreading_contact_radius_against_synthetic_truth(tmp_path, name):
     assert not ok[rec.truth.time_since_contact < 0].any()
     assert abs(info["contact_time_s"] - rec.truth.contact_time) < 1.0 / rate
     assert (out / "angles.csv").exists() == (case["view"] == "side")
+    assert info["contrast"] == ("bright-drops" if "glow" in case else "dark-drops")
 
 
 def test_memory_mapped_and_streamed_reading_agree_and_report_progress(tmp_path):

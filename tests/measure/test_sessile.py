@@ -31,7 +31,7 @@ VISCOUS = synth.Liquid(name=None, surface_tension=0.063, viscosity=1.0, density=
                        temperature=None)  # fmt: skip
 
 
-def _write(tmp_path, theta, kind, view, frames=50):
+def _write(tmp_path, theta, kind, view, frames=50, optics=None):
     setup = synth.SessileCoalescence(view=view, drop_radius=FOOTPRINT, contact_angle_deg=theta)
     liquid = WATER if kind == "inertial" else VISCOUS
     law = synth.sessile_law(
@@ -51,7 +51,14 @@ def _write(tmp_path, theta, kind, view, frames=50):
     end = (h_end / law.parameters["prefactor"]) ** (1.0 / exponent)
     camera = synth.Camera((frames - 6) / end, PIXEL, shape)
     rec = synth.synthesize(
-        setup, law, camera=camera, frames=frames, contact_frame=4.5, liquid=liquid, seed=7
+        setup,
+        law,
+        camera=camera,
+        frames=frames,
+        contact_frame=4.5,
+        liquid=liquid,
+        seed=7,
+        optics=optics or synth.Optics(),
     )
     out = tmp_path / f"sessile_{view}_{int(theta)}.tif"
     synth.write_recording(rec, out)
@@ -97,3 +104,32 @@ def test_sessile_recording_analysed_end_to_end(tmp_path, view, theta, kind, regi
     assert abs(n_fit - exponent) <= 0.03
     assert dominant["regime"] == regime
     assert fit["success"] and fit["decidable"]
+
+
+@pytest.mark.parametrize(
+    ("view", "theta", "kind", "regime", "glow"),
+    [
+        ("side", 40.0, "inertial", "inertial-sessile", 0.0),
+        ("side", 40.0, "inertial", "inertial-sessile", 0.6),
+        ("bottom", 40.0, "viscous", "viscous-sessile-width", 0.0),
+    ],
+)
+def test_bright_sessile_drops_analysed_end_to_end(tmp_path, view, theta, kind, regime, glow):
+    # The same recordings as above, front-lit or fluorescent (bright drops on
+    # a dark field, plain or glowing; the plate rendered bright, as the
+    # backlit picture turned inside out): the contrast told from the frames,
+    # the same bounds.
+    optics = synth.Optics(contrast="bright-drops", glow=glow)
+    recording, exponent = _write(tmp_path, theta, kind, view, optics=optics)
+    out = tmp_path / "out"
+    result = CliRunner().invoke(
+        main, ["analyze", str(recording), "-o", str(out), "--overlays", "0"]
+    )
+    assert result.exit_code == 0, result.output
+    assert json.loads((out / "measure.json").read_text())["contrast"] == "bright-drops"
+    rms, n_ok = _rms_px(out, recording.with_name(recording.stem + ".truth.json"))
+    dominant = json.loads((out / "fit.json").read_text())["dominant"]
+    assert n_ok >= 30
+    assert rms <= 0.5
+    assert abs(dominant["exponent_fit"] - exponent) <= 0.03
+    assert dominant["regime"] == regime

@@ -152,6 +152,12 @@ def experiment_options(command):
             help="What was filmed.",
         ),
         click.option("--view", type=click.Choice(["side", "bottom"]), help="Camera view."),
+        click.option(
+            "--contrast",
+            type=click.Choice(["auto", "dark-drops", "bright-drops"]),
+            help="Dark drops on a backlight or bright drops on a dark field "
+            "(default: the experiment file's, else told from the first frames).",
+        ),
     ]
     return _apply(command, options)
 
@@ -308,14 +314,15 @@ def options_named(overrides: dict):
 
 
 #: The parameters of :func:`experiment_options`.
-EXPERIMENT_KEYS = ("experiment", "frame_rate", "pixel_size", "geometry", "view")
+EXPERIMENT_KEYS = ("experiment", "frame_rate", "pixel_size", "geometry", "view", "contrast")
 
 
-def recording_overrides(*, frame_rate, pixel_size, geometry, view, **_) -> dict:
+def recording_overrides(*, frame_rate, pixel_size, geometry, view, contrast=None, **_) -> dict:
     """The experiment keys that :func:`experiment_options` override (None: not given)."""
     return {
         "recording.frame_rate": frame_rate,
         "recording.pixel_size": pixel_size,
+        "recording.contrast": contrast,
         "setup.geometry": geometry,
         "setup.view": view,
     }

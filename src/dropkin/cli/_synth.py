@@ -111,6 +111,20 @@ def _size(ctx, param, value):
     show_default=True,
     help="Sigma of the Gaussian blur, pixels.",
 )
+@click.option(
+    "--contrast",
+    type=click.Choice(["dark-drops", "bright-drops"]),
+    default="dark-drops",
+    show_default=True,
+    help="Dark drops on a backlight, or bright drops on a dark field (front light, fluorescence).",
+)
+@click.option(
+    "--glow",
+    type=FiniteFloat(min=0),
+    default=0.0,
+    show_default=True,
+    help="Bright drops: how much brighter their glow's peak is than their rim (0: even).",
+)
 @click.option("--bit-depth", type=click.Choice(["8", "12"]), default="8", show_default=True)
 @click.option(
     "--format",
@@ -232,7 +246,9 @@ def _synth(ctx, out, o):
         camera=synth.Camera(o["frame_rate"], o["pixel_size"], o["size"]),
         frames=o["frames"],
         contact_frame=o["contact_frame"],
-        optics=synth.Optics(blur_px=o["blur"], dust_count=o["dust"]),
+        optics=synth.Optics(
+            blur_px=o["blur"], dust_count=o["dust"], contrast=o["contrast"], glow=o["glow"]
+        ),
         sensor=noise_sensor(o["noise"], bit_depth=int(o["bit_depth"])),
         liquid=synth.Liquid(
             name=o["liquid_name"] or None,

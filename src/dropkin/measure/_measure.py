@@ -97,7 +97,13 @@ def measure(
     """
     geometry, pixel = _geometry_and_pixel(recording, experiment)
     options = checked_options(options, recording.shape)
-    prep = prepare(recording, geometry=geometry, view=experiment.setup.view, options=options)
+    prep = prepare(
+        recording,
+        geometry=geometry,
+        view=experiment.setup.view,
+        options=options,
+        contrast=experiment.recording.contrast,
+    )
     px = _collect(recording, prep, options, progress)
     # In pixels: gaps below a tenth of a pixel count as closed.
     contact = estimate_contact(
@@ -235,6 +241,8 @@ def _details(recording, experiment, prep, options, contact, pixel: float) -> dic
         "drop_radius_origin": "experiment file" if experiment.drops.radius else "circle fit",
         "contact_bracket_s": own["contact_bracket_s"],
         "contact_method": own["contact_method"],
+        "contrast": prep.contrast,
+        "contrast_origin": prep.contrast_origin,
         "edge_level": options.level,
         "edge_levels": sorted([options.level, *options.other_levels]),
         "noise_transmission": prep.noise,

@@ -7,6 +7,7 @@ from pathlib import Path
 import numpy as np
 
 from .._atomic import atomic_path
+from ..vision import light_span
 
 __all__ = ["choose_overlay_frames", "write_overlays"]
 
@@ -22,7 +23,7 @@ def _transmission(frame, prep, roi):
     frame = np.asarray(frame, dtype=np.float64)
     if roi is not None:
         frame = frame[roi[0] : roi[1], roi[2] : roi[3]]
-    span = np.maximum(prep.illumination - prep.dark, 1e-6)
+    span = light_span(prep.illumination, prep.dark)
     return (frame - prep.dark) / span
 
 

@@ -5,6 +5,19 @@ The light model, per pixel, as a fraction of the sensor's full scale:
     light = blur(backlight * dust * (1 - opacity * (1 - drop_transmission)
                                       + spot_brightness * spot))
 
+With ``contrast="bright-drops"`` (front light or fluorescence) the drops glow
+on a dark field, the backlit picture turned inside out: where the backlight
+had a dark rim the drop is bright, its centre spot darker, and the lamp's
+unevenness still shapes both levels:
+
+    emitted = clip(opacity * (1 - drop_transmission) - spot_brightness * spot, 0)
+    light = blur(backlight * dust * (field + emission * emitted * (1 + glow * g)))
+
+``g`` is a smooth bump (the opacity blurred over `glow_px` and shifted by half
+of it towards the top left): each drop brightest off its centre, where the
+front light strikes, and dimmer towards its rim, as a real glowing drop is;
+``glow = 0`` gives the plain inversion.
+
 `blur` is a Gaussian point-spread function; then the sensor counts electrons
 (Poisson shot noise), adds Gaussian read noise and quantises to 8 bits
 (0..255 in uint8) or 12 bits (0..4095 in uint16, never rescaled).
@@ -21,7 +34,18 @@ from scipy import ndimage
 from ..errors import ExperimentError
 from ._coverage import disc_coverage
 
-__all__ = ["Optics", "Sensor", "backlight", "dust_transmission", "apply_optics", "expose"]
+#: How a scene is lit: dark drops on a backlight, or bright drops on a dark field.
+CONTRASTS = ("dark-drops", "bright-drops")
+
+__all__ = [
+    "CONTRASTS",
+    "Optics",
+    "Sensor",
+    "backlight",
+    "dust_transmission",
+    "apply_optics",
+    "expose",
+]
 
 
 @dataclass(frozen=True)
@@ -52,6 +76,19 @@ class Optics:
         Smallest and largest speck radius.
     dust_depth : float
         Light a speck takes away at its centre (0..1).
+    contrast : str
+        ``"dark-drops"`` (backlight) or ``"bright-drops"`` (front light,
+        fluorescence: the light model above).
+    field : float
+        Bright drops: the dark field's level, as a fraction of `background`.
+    emission : float
+        Bright drops: the rim's brightness above the field, as a fraction of
+        `background`.
+    glow : float
+        Bright drops: how much brighter the glow's peak is than the rim
+        (0: evenly bright drops).
+    glow_px : float
+        Bright drops: the width (sigma, px) of the glow.
     """
 
     blur_px: float = 1.0
@@ -64,8 +101,20 @@ class Optics:
     dust_count: int = 0
     dust_radius_px: tuple[float, float] = (0.8, 3.0)
     dust_depth: float = 0.35
+    contrast: str = "dark-drops"
+    field: float = 0.08
+    emission: float = 0.7
+    glow: float = 0.0
+    glow_px: float = 20.0
 
     def __post_init__(self):
+        if self.contrast not in CONTRASTS:
+            raise ExperimentError(
+                "is not a known contrast",
+                key="Optics.contrast",
+                value=self.contrast,
+                expected=" or ".join(CONTRASTS),
+            )
         checks = {
             "blur_px": self.blur_px >= 0,
             "background": self.background > 0,
@@ -75,6 +124,10 @@ class Optics:
             "spot_brightness": self.spot_brightness >= 0,
             "dust_count": self.dust_count >= 0,
             "dust_depth": 0 <= self.dust_depth <= 1,
+            "field": 0 <= self.field < 1,
+            "emission": self.emission > 0,
+            "glow": self.glow >= 0,
+            "glow_px": self.glow_px > 0,
         }
         for key, ok in checks.items():
             if not ok:
@@ -195,14 +248,35 @@ def apply_optics(opacity, spot, *, optics: Optics, light=None, dust=None):
     opacity = np.asarray(opacity, dtype=float)
     if light is None:
         light = backlight(opacity.shape, optics)
-    transmitted = 1.0 - opacity * (1.0 - optics.drop_transmission)
-    transmitted = transmitted + optics.spot_brightness * np.asarray(spot, dtype=float)
-    image = light * transmitted
+    if optics.contrast == "bright-drops":
+        image = light * _emitted(opacity, spot, optics)
+    else:
+        transmitted = 1.0 - opacity * (1.0 - optics.drop_transmission)
+        transmitted = transmitted + optics.spot_brightness * np.asarray(spot, dtype=float)
+        image = light * transmitted
     if dust is not None:
         image = image * dust
     if optics.blur_px > 0:
         image = ndimage.gaussian_filter(image, optics.blur_px, mode="nearest", truncate=4.0)
     return image
+
+
+def _emitted(opacity, spot, optics: Optics):
+    """Bright drops on a dark field, before the lamp's shape (see the module)."""
+    emitted = opacity * (1.0 - optics.drop_transmission)
+    emitted = np.clip(emitted - optics.spot_brightness * np.asarray(spot, dtype=float), 0.0, None)
+    if optics.glow > 0:
+        # The bump on a four-times coarser grid (smooth: nothing is lost),
+        # shifted towards the top left, then back to full size.
+        small = opacity[::4, ::4]
+        bump = ndimage.gaussian_filter(small, optics.glow_px / 4.0, mode="constant")
+        shift = optics.glow_px / 8.0
+        bump = ndimage.shift(bump, (-shift, -shift), order=1, mode="constant")
+        zoom = (opacity.shape[0] / small.shape[0], opacity.shape[1] / small.shape[1])
+        bump = ndimage.zoom(bump, zoom, order=1, grid_mode=True, mode="nearest")
+        bump = bump[: opacity.shape[0], : opacity.shape[1]]
+        emitted = emitted * (1.0 + optics.glow * bump / max(float(bump.max()), 1e-12))
+    return optics.field + optics.emission * emitted
 
 
 def expose(light, *, sensor: Sensor, rng: np.random.Generator | None = None):

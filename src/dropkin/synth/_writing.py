@@ -162,6 +162,8 @@ def truth_record(recording: SyntheticRecording) -> dict:
         "pixel_size_m": px,
         "shape": list(camera.shape),
         "bit_depth": recording.sensor.bit_depth,
+        "contrast": recording.optics.contrast,
+        "glow": recording.optics.glow if recording.optics.contrast == "bright-drops" else None,
         "seed": recording.seed,
         "contact_time_s": truth.contact_time,
         "contact_frame": truth.contact_frame,

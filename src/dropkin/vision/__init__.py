@@ -21,6 +21,9 @@ from ._bridge import sessile_background_mask as sessile_background_mask
 from ._bridge_chunk import measure_bridges as measure_bridges
 from ._circle import CircleFit as CircleFit
 from ._circle import fit_circle as fit_circle
+from ._contrast import frame_contrast as frame_contrast
+from ._contrast import outline_vote as outline_vote
+from ._contrast import rim_level as rim_level
 from ._neck import NeckResult as NeckResult
 from ._neck import neck_from_band as neck_from_band
 from ._neck_chunk import measure_necks as measure_necks
@@ -28,9 +31,11 @@ from ._pair import DropPair as DropPair
 from ._pair import edge_blur as edge_blur
 from ._pair import find_drop_pair as find_drop_pair
 from ._pair import substrate_rows as substrate_rows
+from ._silhouette import CONTRASTS as CONTRASTS
 from ._silhouette import background_from_frames as background_from_frames
 from ._silhouette import dark_level as dark_level
 from ._silhouette import fit_illumination as fit_illumination
+from ._silhouette import light_span as light_span
 from ._silhouette import silhouette_mask as silhouette_mask
 from ._silhouette import threshold_midpoint as threshold_midpoint
 from ._silhouette import transmission as transmission
@@ -61,7 +66,12 @@ __all__ = [
     "DropPair",
     "NeckResult",
     "background_from_frames",
+    "CONTRASTS",
     "dark_level",
+    "frame_contrast",
+    "outline_vote",
+    "light_span",
+    "rim_level",
     "edge_blur",
     "find_drop_pair",
     "fit_circle",

@@ -12,6 +12,7 @@ import numpy as np
 from ..status import BEFORE_CONTACT, NOT_FOUND, OK, UNRESOLVED
 from ._bridge import SessilePair
 from ._neck import NeckResult, _vertex
+from ._silhouette import light_span
 
 __all__ = ["measure_bridges"]
 
@@ -24,7 +25,7 @@ def _block(frames, pair: SessilePair, illumination, dark: float):
     plate = pair.line.rows(cols)
     r0 = pair.top_row
     r1 = min(int(np.ceil(plate.max())) + 2, frames.shape[1])
-    span = np.maximum(illumination[r0:r1, lo : hi + 1] - dark, 1e-6)
+    span = light_span(illumination[r0:r1, lo : hi + 1], dark)
     block = (np.asarray(frames[:, r0:r1, lo : hi + 1], dtype=np.float32) - dark) / span
     # The lowest pixel row mostly above the plate (i + 0.25 <= plate): its
     # centre lies 0.25 to 1.25 px above the plate line.

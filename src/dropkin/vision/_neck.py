@@ -201,7 +201,8 @@ def gap_on_axis(on_axis, valid, s_step: float):
     Parameters
     ----------
     on_axis : (K, S) ndarray
-        Transmission sampled along the line of centres.
+        Transmission sampled along the line of centres, the contact point
+        half-way.
     valid : (S,) ndarray of bool
         Samples inside the frame.
     s_step : float
@@ -210,18 +211,28 @@ def gap_on_axis(on_axis, valid, s_step: float):
     Returns
     -------
     gap : (K,) ndarray
-        The summed transmission above the drops' own level (the median of
-        the outer quarters of the samples, inside the drops) times the
-        spacing: blur and pixel averaging conserve it, so gaps narrower than
-        a pixel still show. NaN without valid samples.
+        The transmission above the drops' own level summed over the middle
+        half of the samples, times the spacing: blur and pixel averaging
+        conserve it, so gaps narrower than a pixel still show. The drops'
+        level is a straight line through the medians of the outer quarters
+        (inside the drops): a drop lit unevenly (a bright drop's glow,
+        brighter on one side) leaves no trend in the sum, and the middle half
+        alone keeps the level's remaining wanderings out of it. NaN without
+        valid samples.
     """
     values = on_axis[:, valid]
-    if not values.shape[1]:
+    n = values.shape[1]
+    if not n:
         return np.full(on_axis.shape[0], np.nan)
-    quarter = max(values.shape[1] // 4, 1)
-    ends = np.concatenate([values[:, :quarter], values[:, -quarter:]], axis=1)
-    ref = np.median(ends, axis=1, keepdims=True)
-    return np.minimum(values - ref, 1.0).sum(axis=1) * s_step
+    quarter = max(n // 4, 1)
+    left = np.median(values[:, :quarter], axis=1, keepdims=True)
+    right = np.median(values[:, -quarter:], axis=1, keepdims=True)
+    # The line through the two medians, each at the middle of its quarter.
+    x_left, x_right = (quarter - 1) / 2.0, n - 1 - (quarter - 1) / 2.0
+    along = (np.arange(n)[None, :] - x_left) / max(x_right - x_left, 1e-9)
+    above = np.minimum(values - (left + (right - left) * along), 1.0)
+    middle = slice(quarter, n - quarter) if n > 2 * quarter else slice(0, n)
+    return above[:, middle].sum(axis=1) * s_step
 
 
 def _widths(up: _Edges, down: _Edges, on_axis_dark, reach: float):

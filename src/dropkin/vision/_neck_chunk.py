@@ -14,6 +14,7 @@ import numpy as np
 
 from ._band import BAND_LIMIT, _band_transmission, _sample_block, make_band, redone
 from ._neck import NeckResult, gap_on_axis, neck_from_band
+from ._silhouette import light_span
 
 __all__ = ["measure_necks"]
 
@@ -69,7 +70,7 @@ class _Bands:
                 s_step=step,
                 u_values=np.unique(u_values),
             )
-            span = np.maximum(_sample_block(self.illum, band) - np.float32(self.dark), 1e-6)
+            span = light_span(_sample_block(self.illum, band), self.dark)
             self.cache[key] = (band, 1.0 / span)
         return self.cache[key]
 

@@ -12,6 +12,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
+from ._silhouette import light_span
 from ._substrate import SubstrateLine
 
 __all__ = ["AxisProfile", "axis_profile", "axis_contact"]
@@ -66,7 +67,7 @@ def axis_profile(frames, illumination, dark, line: SubstrateLine, axis_col, up, 
     rows = np.arange(r0, r1)
     block = frames[:, r0:r1, cols[0] : cols[-1] + 1].astype(np.float32)
     ill = np.asarray(illumination[r0:r1, cols[0] : cols[-1] + 1], dtype=np.float32)
-    trans = (block - np.float32(dark)) / np.maximum(ill - np.float32(dark), 1e-6)
+    trans = (block - np.float32(dark)) / light_span(ill, dark)
     trans = trans.mean(axis=2)
     above = line_row - rows >= 0.25
     ordered = trans[:, above][:, ::-1]  # from the line upward

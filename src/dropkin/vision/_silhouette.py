@@ -1,4 +1,4 @@
-"""Backlit frames to silhouettes: illumination, normalisation, masks.
+"""Frames to silhouettes: contrast, illumination, normalisation, masks.
 
 Under backlighting a drop is a dark shape on a bright background. The light is
 rarely even, so a fixed grey-level threshold would move the outline. Here a
@@ -7,6 +7,15 @@ frame is first divided by a smooth model of the illumination, giving the
 drop, whatever the bit depth or the lamp's gradient. The outline is where the
 transmission crosses one half, the midpoint between the two levels, which is
 also where a blurred step edge has its true position.
+
+Under front light or in fluorescence the contrast is the other way round:
+bright drops on a dark field. The same affine map then has a *negative* span
+(the field's level below the drops' level), and it still sends the field to 1
+and the drops to 0: every later step sees dark drops on a bright field, and
+the half-way crossing (invariant under any affine map of the grey levels)
+lies where it lay in the raw frame. :func:`light_span` is the signed span
+every normalisation uses; :mod:`dropkin.vision._contrast` tells which way a
+frame is lit.
 """
 
 from __future__ import annotations
@@ -14,6 +23,8 @@ from __future__ import annotations
 import numpy as np
 
 __all__ = [
+    "CONTRASTS",
+    "light_span",
     "holes_filled",
     "label_regions",
     "dilate",
@@ -24,6 +35,18 @@ __all__ = [
     "silhouette_mask",
     "threshold_midpoint",
 ]
+
+
+#: The two ways a recording can be lit: dark drops on a bright field
+#: (backlight) or bright drops on a dark field (front light, fluorescence).
+CONTRASTS = ("dark-drops", "bright-drops")
+
+
+def _check_contrast(contrast: str) -> bool:
+    """True for bright drops; ValueError for an unknown contrast."""
+    if contrast not in CONTRASTS:
+        raise ValueError(f"contrast must be one of {CONTRASTS}, got {contrast!r}")
+    return contrast == "bright-drops"
 
 
 def _check_frame(frame, name="frame"):
@@ -156,22 +179,28 @@ def threshold_midpoint(frame, *, nbins: int = 256) -> float:
     return float(centres[int(np.argmax(between[:-1]))])
 
 
-def fit_illumination(frame, *, background=None, degree: int = 2, step: int = 4):
+def fit_illumination(
+    frame, *, background=None, degree: int = 2, step: int = 4, contrast: str = "dark-drops"
+):
     """Smooth model of the backlight, fitted to the background pixels of a frame.
 
     Parameters
     ----------
     frame : (M, N) ndarray
-        A backlit frame: bright background, dark drops.
+        A backlit frame (bright background, dark drops) or, with `contrast`
+        ``"bright-drops"``, bright drops on a dark field.
     background : (M, N) ndarray of bool, optional
-        Pixels known to be background. By default, pixels brighter than the
-        Otsu threshold, shrunk by a few pixels so that blurred edges and the
-        bright centre spot of a drop (which lies inside a dark rim) are not
-        taken as background.
+        Pixels known to be background. By default, the pixels on the field's
+        side of the Otsu threshold (brighter under backlight, darker with
+        bright drops), shrunk by a few pixels so that blurred edges and the
+        centre spot of a drop (which lies inside its rim) are not taken as
+        background.
     degree : int, optional
         Degree of the 2-D polynomial (2 models a vignette or a gradient).
     step : int, optional
         Use every `step`-th row and column for the fit (speed).
+    contrast : {"dark-drops", "bright-drops"}, optional
+        Which way the frame is lit (see :func:`frame_contrast`).
 
     Returns
     -------
@@ -191,12 +220,14 @@ def fit_illumination(frame, *, background=None, degree: int = 2, step: int = 4):
     frame = _check_frame(frame)  # any dtype: only the pixels fitted are made float
     if degree < 0:
         raise ValueError(f"degree must be >= 0, got {degree}")
+    bright_drops = _check_contrast(contrast)
     if background is None:
         bright = frame > threshold_midpoint(frame)
-        dark = holes_filled(~bright)
-        background = ~dilate(dark, 3)
+        field = ~bright if bright_drops else bright
+        drops = holes_filled(~field)
+        background = ~dilate(drops, 3)
         if background.sum() < (degree + 1) * (degree + 2):
-            background = bright
+            background = field
     else:
         background = np.asarray(background, dtype=bool)
         if background.shape != frame.shape:
@@ -231,14 +262,36 @@ def fit_illumination(frame, *, background=None, degree: int = 2, step: int = 4):
     return np.einsum("ri,ic->rc", np.power.outer(r_axis, np.arange(degree + 1)), in_col)
 
 
-def dark_level(frame, *, percentile: float = 0.5) -> float:
-    """Grey level of the darkest part of the drops (their rim under backlight).
+def dark_level(frame, *, percentile: float = 0.5, contrast: str = "dark-drops") -> float:
+    """Grey level of the drops' own extreme: their dark rim under backlight,
+    their brightest part with `contrast` ``"bright-drops"``.
 
-    A low percentile of the frame's grey levels, so that one dead pixel does
-    not set it; in the frame's own units.
+    A low percentile of the frame's grey levels (a high one, ``100 -
+    percentile``, for bright drops), so that one dead or hot pixel does not
+    set it; in the frame's own units.
     """
     frame = _check_frame(frame)
-    return float(np.percentile(frame, percentile))
+    q = 100.0 - percentile if _check_contrast(contrast) else percentile
+    return float(np.percentile(frame, q))
+
+
+def light_span(illumination, dark: float):
+    """The signed span ``illumination - dark`` (float32) that the transmission
+    divides by, kept away from zero: at least 1e-6 where the field is brighter
+    than the drops (backlight), at most -1e-6 where it is darker (bright
+    drops), the side chosen by the span's mean over the array.
+
+    Examples
+    --------
+    >>> light_span(np.array([100.0, 3.0]), 3.0).tolist()
+    [97.0, 9.999999974752427e-07]
+    >>> light_span(np.array([5.0, 90.0]), 90.0).tolist()
+    [-85.0, -9.999999974752427e-07]
+    """
+    span = np.subtract(illumination, np.float32(dark), dtype=np.float32)
+    if float(np.mean(span)) < 0.0:
+        return np.minimum(span, np.float32(-1e-6), out=span)
+    return np.maximum(span, np.float32(1e-6), out=span)
 
 
 def transmission(frame, illumination, dark: float, *, out=None):
@@ -251,7 +304,9 @@ def transmission(frame, illumination, dark: float, *, out=None):
     illumination : (M, N) ndarray
         Brightness of the empty field (see :func:`fit_illumination`).
     dark : float
-        Grey level of a fully dark drop (see :func:`dark_level`).
+        Grey level of a fully dark drop (see :func:`dark_level`); for bright
+        drops on a dark field, their bright level (above `illumination`: the
+        span is negative, see :func:`light_span`).
     out : (M, N) ndarray of float32, optional
         Array to write the result into.
 
@@ -260,7 +315,7 @@ def transmission(frame, illumination, dark: float, *, out=None):
     transmission : (M, N) ndarray of float32
     """
     frame = np.asarray(frame)
-    span = np.maximum(np.asarray(illumination, dtype=np.float32) - np.float32(dark), 1e-6)
+    span = light_span(illumination, dark)
     result = np.subtract(frame, np.float32(dark), out=out, dtype=np.float32)
     return np.divide(result, span, out=result)
 

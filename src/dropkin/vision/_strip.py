@@ -15,6 +15,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
+from ._silhouette import light_span
 from ._substrate import SubstrateLine
 
 __all__ = [
@@ -101,7 +102,7 @@ def cut_strip(frames, illumination, dark: float, line: SubstrateLine, blur: floa
     trans = frames[:, r0:r1, c0:c1].astype(np.float32)
     ill = np.asarray(illumination[r0:r1, c0:c1], dtype=np.float32)
     d32 = np.float32(dark)
-    trans = (trans - d32) / np.maximum(ill - d32, 1e-6)
+    trans = (trans - d32) / light_span(ill, dark)
     heights = line_rows[None, :] - rows[:, None]  # (H, W)
     return Strip(trans, rows, cols, r0, c0, line_rows, heights, low, high)
 

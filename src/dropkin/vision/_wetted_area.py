@@ -16,6 +16,7 @@ import numpy as np
 from scipy import special
 
 from ..status import AT_EDGE, BEFORE_CONTACT, NOT_FOUND, OK
+from ._silhouette import light_span
 from ._spreading_records import ContactLineResult
 from ._wetted import BIN, crossing_inward, crossing_outward
 
@@ -215,7 +216,7 @@ def _profiles(frames, ill, dark, centre, idx, bins) -> _Profiles:
     )
     owner %= len(idx)
     d32 = np.float32(dark)
-    span = np.maximum(ill[pix] - d32, 1e-6)
+    span = light_span(ill[pix], dark)
     values = frames.reshape(-1)[idx[owner] * (m * n) + pix[pos]]
     trans = (values.astype(np.float32) - d32) / span[pos]
 
@@ -325,7 +326,7 @@ def _levels(prof: _Profiles, setup, level, wet, hi):
 def _trans_at(frames_flat, illumination_flat, dark, index):
     """Transmission (K, P) of the frames (K, M * N) at flat pixel indices (P,)."""
     d32 = np.float32(dark)
-    span = np.maximum(illumination_flat[index] - d32, 1e-6)
+    span = light_span(illumination_flat[index], dark)
     return (frames_flat[:, index].astype(np.float32) - d32) / span
 
 
