@@ -148,3 +148,19 @@ def test_a_power_tower_is_refused_at_once_not_computed():
     )
     done = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True, timeout=60)
     assert done.stdout.startswith("QuantityError") and "e-notation" in done.stdout
+
+
+def test_a_relative_uncertainty_never_computes_a_power_tower():
+    # Issue 17, finding 7, for the [uncertainty] section: the text is read without pint
+    # evaluating its numbers, so "10**10**10 %" is refused at once (child process: a hang
+    # fails the test), and "2 %" is 0.02 (the percent is 1/100, SI Brochure 9th ed.).
+    from dropkin.units import parse_relative
+
+    assert parse_relative("2 %", key="uncertainty.viscosity") == pytest.approx(0.02)
+    code = (
+        "from dropkin.units import parse_relative\n"
+        "try:\n    parse_relative('10**10**10 %', key='uncertainty.viscosity')\n"
+        "except Exception as exc:\n    print(type(exc).__name__, exc)\n"
+    )
+    done = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True, timeout=60)
+    assert done.stdout.startswith("QuantityError") and "uncertainty.viscosity" in done.stdout

@@ -303,37 +303,33 @@ def parse_relative(value, *, key: str | None = None, path=None) -> float:
     >>> parse_relative("2 %"), parse_relative(0.015)
     (0.02, 0.015)
     """
-    if isinstance(value, Real) and not isinstance(value, bool):
-        number = float(value)
-    elif isinstance(value, str):
-        try:
-            quantity = registry().Quantity(value.strip())
-            number = float(quantity.to("dimensionless").magnitude)
-        except Exception:  # pint raises many kinds (undefined unit, dimensionality, ...)
-            raise QuantityError(
-                "is not a relative uncertainty",
-                key=_where(key),
-                value=value,
-                expected=_RELATIVE,
-                path=path,
-            ) from None
-    else:
-        raise QuantityError(
-            "is not a relative uncertainty",
-            key=_where(key),
-            value=value,
-            expected=_RELATIVE,
-            path=path,
-        )
+    where = {"key": key, "path": path, "expected": _RELATIVE}
+    number = _relative_number(value, where)
     if not (math.isfinite(number) and 0.0 <= number < 1.0):
-        raise QuantityError(
-            "must lie from 0 to below 1",
-            key=_where(key),
-            value=value,
-            expected=_RELATIVE,
-            path=path,
-        )
+        raise _refuse("must lie from 0 to below 1", value, **where)
     return number
+
+
+def _relative_number(value, where) -> float:
+    """The fraction a plain number or a text such as ``"2 %"`` stands for.
+
+    As for quantities, Python reads the number and pint only the unit, so that
+    no power is ever computed.
+    """
+    if isinstance(value, Real) and not isinstance(value, bool):
+        return float(value)
+    match = _NUMBER.match(value) if isinstance(value, str) else None
+    bad = match is None or _STACKED_POWERS.search(value) or _BAD_EXPONENT.search(value)
+    if bad:
+        raise _refuse("is not a relative uncertainty", value, **where)
+    number, unit_text = float(match.group(1)), match.group(2)
+    if not unit_text:
+        return number
+    try:
+        factor = registry().Quantity(1.0, unit_text).to("dimensionless").magnitude
+    except Exception:  # pint raises many kinds (undefined unit, dimensionality, ...)
+        raise _refuse("is not a relative uncertainty", value, **where) from None
+    return number * float(factor)
 
 
 class QuantityType(click.ParamType):
