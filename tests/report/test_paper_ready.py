@@ -453,3 +453,12 @@ def test_counted_words_take_their_number():
                  SRC / "report" / "_collapse.py"]:  # fmt: skip
         text = path.read_text(encoding="utf-8")
         assert not re.search(r"\}\s+recordings\b", text), path
+
+
+def test_log_ticks_reach_the_end_of_the_floats_without_overflow():
+    # Found by the fit property test (a series from 1e-10 s to 1e290 s): the axis view
+    # reached past 1e308, where 10.0**k raises OverflowError (IEEE 754 double's range).
+    from dropkin.report._style import _log_ticks
+
+    ticks = _log_ticks(1e-10, 1.7e308)
+    assert ticks and all(math.isfinite(v) and 1e-10 <= v <= 1.7e308 for v in ticks)

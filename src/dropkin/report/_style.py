@@ -94,7 +94,8 @@ def _log_ticks(lo: float, hi: float) -> list[float]:
     if not (_finite(lo) and _finite(hi) and 0 < lo < hi):
         return []
     for subs in _LOG_SUBS:
-        decades = range(math.floor(math.log10(lo)) - 1, math.ceil(math.log10(hi)) + 1)
+        # 10.0**k exists as a float for k up to 308 (Python raises beyond it)
+        decades = range(math.floor(math.log10(lo)) - 1, min(math.ceil(math.log10(hi)) + 1, 309))
         ticks = sorted(
             v
             for k in decades
