@@ -60,13 +60,12 @@ def fit_command(ctx, radius_csv, out, experiment, t0, seed, bootstrap, initial_r
     from pathlib import Path
 
     from ..pipeline._steps import fit_into
-    from ..series import read_series
 
     fit = {"t0": t0, "seed": seed, "bootstrap": bootstrap, "initial_radius": initial_radius}
     detail(ctx, "settings: " + ", ".join(f"{k} = {v!r}" for k, v in fit.items()))
     overrides = sample_overrides(**sample)
     with options_named(overrides):
-        verdict, _, used = fit_into(
+        verdict, _, measurement = fit_into(
             radius_csv,
             out,
             experiment=experiment,
@@ -74,8 +73,8 @@ def fit_command(ctx, radius_csv, out, experiment, t0, seed, bootstrap, initial_r
             liquids=sample["liquids_file"],
             **fit,
         )
-    detail_experiment(ctx, used.path)
-    _report_verdict(verdict, read_series(radius_csv), radius_csv, Path(out))
+    detail_experiment(ctx, measurement.experiment.path)
+    _report_verdict(verdict, measurement.series, radius_csv, Path(out))
 
 
 @click.command("analyze")

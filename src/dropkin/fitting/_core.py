@@ -253,6 +253,33 @@ def data_problem(series: Series, lo: float, hi: float, *, reference=None) -> str
 # ------------------------------------------------------------------ robust solver
 
 
+def solve_log_radius(log_radius, data: Series, x0, bounds, *, loss, f_scale, max_nfev=None):
+    """scipy's least_squares on the normalised residuals of ``ln r``, for laws not
+    linear at a given origin (the law with r0, blends).
+
+    ``log_radius(theta, time)`` gives the model's ln r; non-finite residuals
+    count as 1e6. Times over hundreds of decades can overflow the Jacobian's
+    scale, or put a trial origin on a point (log 0); the result is then not
+    finite, and the callers return a falsy record.
+    """
+    from scipy.optimize import least_squares  # here: keeps the command line quick
+
+    def residuals(theta):
+        z = (data.y - log_radius(theta, data.time)) / data.s
+        return np.where(np.isfinite(z), z, 1e6)
+
+    with np.errstate(over="ignore", invalid="ignore", divide="ignore"):
+        return least_squares(
+            residuals,
+            x0,
+            bounds=bounds,
+            loss=loss,
+            f_scale=f_scale,
+            x_scale="jac",
+            max_nfev=max_nfev,
+        )
+
+
 def rho(z, f, loss):
     """The loss of each normalised residual (soft_l1 or squares)."""
     if loss == "linear":

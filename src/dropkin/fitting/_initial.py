@@ -21,7 +21,7 @@ import math
 import numpy as np
 
 from ._bootstrap import outside, percentile_interval, resampled_residuals
-from ._core import Series, bracket_ci, information, normal_ci, safe_exp
+from ._core import Series, bracket_ci, information, normal_ci, safe_exp, solve_log_radius
 from ._records import LawFit
 
 __all__ = [
@@ -47,23 +47,16 @@ def _log_radius(theta, time, t0_fixed):
 
 
 def _solve(data: Series, x0, bounds, t0_fixed, *, loss, f_scale, max_nfev=None):
-    from scipy.optimize import least_squares  # here: keeps the command line quick
-
-    def residuals(theta):
-        z = (data.y - _log_radius(theta, data.time, t0_fixed)) / data.s
-        return np.where(np.isfinite(z), z, 1e6)
-
     x0 = np.clip(x0, bounds[0], bounds[1])
-    with np.errstate(over="ignore", invalid="ignore", divide="ignore"):
-        return least_squares(
-            residuals,
-            x0,
-            bounds=bounds,
-            loss=loss,
-            f_scale=f_scale,
-            x_scale="jac",
-            max_nfev=max_nfev,
-        )
+    return solve_log_radius(
+        lambda theta, time: _log_radius(theta, time, t0_fixed),
+        data,
+        x0,
+        bounds,
+        loss=loss,
+        f_scale=f_scale,
+        max_nfev=max_nfev,
+    )
 
 
 def _bounds(data: Series, lo, hi):

@@ -23,6 +23,7 @@ from ._core import (
     information,
     normal_ci,
     safe_exp,
+    solve_log_radius,
 )
 from ._records import BlendFit
 
@@ -202,26 +203,12 @@ def build_model(
 
 
 def least_squares_fit(model, data, x0, bounds, *, loss, f_scale, max_nfev=None):
-    """Run scipy's least_squares on the normalised residuals of ``ln r``."""
-    from scipy.optimize import least_squares
-
-    def residuals(theta):
-        z = (data.y - model.log_radius(theta, data.time)) / data.s
-        return np.where(np.isfinite(z), z, 1e6)
-
-    # Times over hundreds of decades can overflow the Jacobian's scale, or put
-    # a trial origin on a point (log 0); the result is then not finite, and
-    # blend_fit returns a falsy record.
-    with np.errstate(over="ignore", invalid="ignore", divide="ignore"):
-        return least_squares(
-            residuals,
-            x0,
-            bounds=bounds,
-            loss=loss,
-            f_scale=f_scale,
-            x_scale="jac",
-            max_nfev=max_nfev or 100 * (len(x0) + 1),
-        )
+    """Run scipy's least_squares on the normalised residuals of ``ln r`` (blend_fit
+    returns a falsy record when the result is not finite)."""
+    nfev = max_nfev or 100 * (len(x0) + 1)
+    return solve_log_radius(
+        model.log_radius, data, x0, bounds, loss=loss, f_scale=f_scale, max_nfev=nfev
+    )
 
 
 def blend_fit(

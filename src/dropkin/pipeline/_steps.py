@@ -253,8 +253,8 @@ def fit_into(
         Falsy (with its reason) when the data cannot support a fit; the
         files are written in both cases, the report saying why.
     numbers : SampleNumbers
-    experiment : Experiment
-        The sample as used.
+    measurement : Measurement
+        The series as read and the sample as used.
     """
     measurement = load_measurement(
         radius_csv, experiment=experiment, overrides=overrides, liquids=liquids
@@ -262,7 +262,7 @@ def fit_into(
     fit = {"t0": t0, "seed": seed, "bootstrap": bootstrap, "initial_radius": initial_radius}
     verdict, numbers = _fit_and_write(measurement, out, **fit)
     _write_report(out, measurement, verdict)
-    return verdict, numbers, measurement.experiment
+    return verdict, numbers, measurement
 
 
 def analyze_into(

@@ -149,9 +149,7 @@ def _shape_evidence(
         fixed = bootstrap_linear(
             on, LinearModel(shape), fixed, f_scale=f_scale, n=bootstrap, seed=seed
         )
-    if fixed and view is not data:
-        r0_ci = search.initial.initial_radius_ci
-        fixed = widened_for_initial_radius(fixed, data, on.time, shape, r0_ci, lo, hi, fit_kw)
+    fixed = widened_for_initial_radius(fixed, data, on, shape, search.initial, (lo, hi), fit_kw)
     expected = _expected_exponent(shape, on, free.t0 if free else t0, f_scale)
     n_sys = a_sys = _NAN2
     if levels:

@@ -81,21 +81,26 @@ def initial_radius_fields(fit) -> dict:
     }
 
 
-def widened_for_initial_radius(fixed, data, times, shape, r0_ci, lo, hi, fit_kw):
+def widened_for_initial_radius(fixed, data, on, shape, initial, bracket, fit_kw):
     """A law fit on ``r - r0`` with r0's uncertainty added to its prefactor interval.
 
-    The prefactor is refitted on ``r - r0`` at both ends of r0's interval; on each
-    side the larger move is added in quadrature to the statistical half-width
-    (first-order propagation of r0 as an independent nuisance parameter).
-    `times` are the instants of the window the law was fitted on.
+    `fixed` was fitted on the points `on` (a window of ``r - r0``) of the
+    series `data`; `initial` is the fit that kept r0 (None: no r0, `fixed`
+    is returned as it is). The prefactor is refitted on ``r - r0`` at both
+    ends of r0's interval; on each side the larger move is added in
+    quadrature to the statistical half-width (first-order propagation of r0
+    as an independent nuisance parameter).
     """
+    if not fixed or initial is None:
+        return fixed
     moves = []
-    for r0 in r0_ci:
+    for r0 in initial.initial_radius_ci:
         if not math.isfinite(r0):
             continue
         view = shifted_series(data, r0)
-        pts = view.subset(np.isin(view.time, times))
-        fit = linear_fit(pts, LinearModel(shape), lo, hi, **fit_kw) if len(pts.time) >= 3 else None
+        pts = view.subset(np.isin(view.time, on.time))
+        enough = len(pts.time) >= 3
+        fit = linear_fit(pts, LinearModel(shape), *bracket, **fit_kw) if enough else None
         if fit:
             moves.append(fit.prefactor - fixed.prefactor)
     if not moves:
