@@ -2,9 +2,11 @@
 
 :func:`analyze_into` is open → check → measure → fit → report, each step
 handing its records (the experiment, the :class:`~dropkin.series.RadiusSeries`,
-the :class:`~dropkin.scaling.RegimeVerdict`) to the next in memory; the files
-are outputs only. :func:`open_source` reads the experiment and opens the
-recording it describes; :func:`measure_into` measures it and writes
+the :class:`~dropkin.scaling.RegimeVerdict`) to the next in memory
+(:func:`~dropkin.pipeline._result.analyze_in_memory`), then writing the files
+(:func:`~dropkin.pipeline._result.write_result`); the files are outputs only.
+:func:`open_source` reads the experiment and opens the recording it describes;
+:func:`measure_into` measures it and writes
 ``radius.csv``, ``measure.json`` and ``overlays/``; :func:`fit_into` fits a
 ``radius.csv`` read from disk and writes ``fit.json``, ``plots/`` and
 ``report.html`` as ``analyze`` does (``dropkin fit``). Every step that writes
@@ -17,22 +19,21 @@ their own way.
 from __future__ import annotations
 
 from collections.abc import Callable
-from dataclasses import dataclass, replace
+from dataclasses import dataclass
 from pathlib import Path
 
-from .._provenance import relative_path
 from ..errors import MeasurementError
-from ._fit import (
-    Measurement,
-    check_sample,
-    fit_measurement,
-    load_measurement,
-    sample_given,
-    sample_of,
-)
+from ._fit import fit_measurement, load_measurement
 from ._outputs import write_fit
 from ._package import write_datapackage
-from ._record import fit_provenance, measure_provenance, write_experiment_copy
+from ._record import fit_provenance
+from ._result import (
+    analyze_in_memory,
+    measure_series,
+    open_source,
+    write_measured,
+    write_result,
+)
 from ._settings import AnalysisSettings, parse_roi
 
 _DEFAULTS = AnalysisSettings()  # frozen: one shared default
@@ -74,43 +75,6 @@ class Analysis:
     report: Path | None
 
 
-def open_source(source, *, experiment=None, overrides=None, origin: str = "command line"):
-    """The experiment (file + overrides) and the recording it describes.
-
-    Parameters
-    ----------
-    source : str or os.PathLike
-        A recording: folder of frames, multi-page TIFF or video.
-    experiment : str or os.PathLike, optional
-        Experiment file named explicitly.
-    overrides : dict, optional
-        Dotted keys and values that take precedence (see
-        :meth:`dropkin.experiment.Experiment.with_overrides`).
-    origin : str
-        Where an overriding frame rate came from, for the recording's record.
-    """
-    from ..experiment import load_experiment
-    from ..recording import open_recording
-
-    overrides = dict(overrides or {})
-    exp = load_experiment(source, experiment=experiment, overrides=overrides)
-    if overrides.get("recording.frame_rate") is not None:
-        rate_origin = origin
-    elif exp.recording.frame_rate is not None:
-        rate_origin = "experiment file"
-    else:
-        rate_origin = "given"
-    rec = open_recording(
-        source,
-        frame_rate=exp.recording.frame_rate,
-        frame_rate_origin=rate_origin,
-        pixel_size=exp.recording.pixel_size,
-        first_frame=exp.recording.first_frame,
-        last_frame=exp.recording.last_frame,
-    )
-    return exp, rec
-
-
 def measure_into(
     out,
     exp,
@@ -150,38 +114,18 @@ def measure_into(
         and the experiment file.
     contact_method : str
     """
-    from .._atomic import remove_temporaries
-    from ..measure import MeasureOptions, measure
-    from ..report._overlays import write_overlays
-    from ..series import write_series
-
-    background = None
-    if settings.background is not None:
-        from ..recording import read_image
-
-        background = read_image(settings.background)
-    options = MeasureOptions(
-        roi=settings.roi,
-        level=settings.threshold,
-        chunk_size=settings.chunk_size,
-        jobs=settings.jobs,
-        background=background,
+    measured, extras = measure_series(exp, rec, settings, progress=progress)
+    series = write_measured(
+        out,
+        measured,
+        extras,
+        rec,
+        settings,
+        experiment_file=experiment_file if experiment_file is not None else exp.path,
+        sample=sample,
+        liquids=liquids,
+        published_dir=published_dir,
     )
-    measured, extras = measure(rec, exp, options=options, progress=progress, keep_edges=True)
-    named = experiment_file if experiment_file is not None else exp.path
-    provenance = measure_provenance(
-        measured.provenance, rec, named, settings, published_dir or out
-    )
-    if sample_given(sample):
-        provenance["sample_overrides"] = sample_given(sample)
-    if liquids is not None:
-        provenance["liquids_file"] = relative_path(liquids, published_dir or out)
-    series = replace(measured, provenance=provenance)
-    out = Path(out)
-    remove_temporaries(out, out / "overlays")  # left by a run that was killed
-    write_series(series, out)
-    if settings.overlays:
-        write_overlays(rec, series, extras, out / "overlays", count=settings.overlays)
     if package:
         write_datapackage(out)
     return series, extras["contact"].method
@@ -305,51 +249,26 @@ def analyze_into(
     DropkinError
         For any other input that cannot be read or measured.
     """
-    from ..liquids import stated_uncertainties
-
     out = Path(out)
-    exp, rec = open_source(source, experiment=experiment, overrides=overrides, origin=origin)
-    # a bad sample description fails before the frames are measured
-    sample = check_sample(exp, user_library=liquids)
-    copy = write_experiment_copy(out, exp, source, published_dir) if experiment_copy else None
-    given = sample_given(overrides)
-    series, method = measure_into(
-        out,
-        exp,
-        rec,
+    result = analyze_in_memory(
+        source,
         settings,
-        progress=progress,
-        experiment_file=copy,
-        sample=given,
+        experiment=experiment,
+        overrides=overrides,
+        origin=origin,
         liquids=liquids,
-        published_dir=published_dir,
-        package=False,
+        progress=progress,
     )
-    if series.contact_time is None:
-        write_datapackage(out)  # of the series measured: the run ends here
-        raise MeasurementError(method, path=rec.path)
-    measurement = Measurement(
-        series,
-        sample_of(sample, series),
-        out / "radius.csv",
-        stated_uncertainties(exp, user_library=liquids),
-        given=given,
-        liquids_file=None if liquids is None else str(Path(liquids).resolve()),
+    result = write_result(
+        result, out, experiment_copy=experiment_copy, published_dir=published_dir
     )
-    verdict, numbers = _fit_and_write(
-        measurement,
-        out,
-        published_dir=published_dir,
-        experiment_file=copy,
-        **settings.fit_settings(),
-    )
-    used = measurement.experiment
-    report = _write_report(out, measurement, verdict)  # also when the fit failed
+    if result.verdict is None:  # the series measured is written: the run ends here
+        raise MeasurementError(result.contact.method, path=result.recording.path)
     return Analysis(
-        series=series,
-        contact_method=method,
-        verdict=verdict,
-        numbers=numbers,
-        experiment=used,
-        report=report,
+        series=result.series,
+        contact_method=result.contact.method,
+        verdict=result.verdict,
+        numbers=result.numbers,
+        experiment=result.experiment,
+        report=out / "report.html",
     )
