@@ -212,6 +212,6 @@ def test_a_large_but_plausible_frame_is_not_refused_by_the_bound(tmp_path):
     path = tmp_path / "large.tif"
     path.write_bytes(tiff_page(8192, 8192, data=zlib.compress(b"\0" * 64), compression=8))
     with open_recording(path, frame_rate=1.0) as rec:
-        assert rec.shape == (8192, 8192)
+        assert rec.frame_shape == (8192, 8192)
         with pytest.raises(RecordingError, match=r"large\.tif: frame 0: "):
             rec[0]

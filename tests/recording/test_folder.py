@@ -34,7 +34,7 @@ def test_png_and_tiff_folders_give_back_the_written_frames(tmp_path, frames, suf
     with open_recording(tmp_path / "run", frame_rate=1000.0) as rec:
         assert rec.kind == "image folder"
         assert len(rec) == len(frames)
-        assert rec.shape == frames.shape[1:]
+        assert rec.frame_shape == frames.shape[1:]
         assert rec.dtype == frames.dtype
         assert rec.bit_depth == 8 * frames.dtype.itemsize
         assert rec.files == tuple(paths)
@@ -56,7 +56,7 @@ def test_bmp_folder_gives_back_the_written_frames(tmp_path, frames8):
 def test_jpeg_folder_is_close_to_the_written_frames(tmp_path, smooth8, nearest):
     write_frames(tmp_path, smooth8, ".jpg")
     rec = open_recording(tmp_path, frame_rate=1000.0)
-    assert (len(rec), rec.shape, rec.dtype) == (10, (48, 64), np.uint8)
+    assert (len(rec), rec.frame_shape, rec.dtype) == (10, (48, 64), np.uint8)
     for k, frame in enumerate(smooth8):
         got = rec[k].astype(int)
         # JPEG is lossy: OpenCV's default quality 95 quantises each 8 x 8 block's

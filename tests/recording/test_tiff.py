@@ -18,7 +18,7 @@ def test_a_stack_gives_back_the_written_frames(tmp_path, frames):
     tifffile.imwrite(path, frames, photometric="minisblack")
     with open_recording(path, frame_rate=2000.0) as rec:
         assert rec.kind == "multi-page TIFF"
-        assert (len(rec), rec.shape, rec.dtype) == (7, (24, 32), frames.dtype)
+        assert (len(rec), rec.frame_shape, rec.dtype) == (7, (24, 32), frames.dtype)
         assert rec.bit_depth == 8 * frames.dtype.itemsize
         assert rec.path == path and rec.files is None
         # Expected: the array tifffile wrote, bit for bit.

@@ -34,7 +34,12 @@ LOSSY_MEAN = 2.0
 def test_a_gray_mjpg_avi_is_close_to_the_written_frames(tmp_path, smooth8, nearest):
     path = write_video(tmp_path / "clip.avi", smooth8, "MJPG")
     with open_recording(path, frame_rate=20000.0) as rec:
-        assert (rec.kind, len(rec), rec.shape, rec.dtype) == ("video", 10, (48, 64), np.uint8)
+        assert (rec.kind, len(rec), rec.frame_shape, rec.dtype) == (
+            "video",
+            10,
+            (48, 64),
+            np.uint8,
+        )
         assert rec.bit_depth == 8
         assert "container frame rate 30 fps is a playback rate and was not used" in rec.notes
         assert rec.frame_rate == 20000.0

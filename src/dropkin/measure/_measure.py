@@ -96,7 +96,7 @@ def measure(
         If the drops are never found.
     """
     geometry, pixel = _geometry_and_pixel(recording, experiment)
-    options = checked_options(options, recording.shape)
+    options = checked_options(options, recording.frame_shape)
     prep = prepare(
         recording,
         geometry=geometry,

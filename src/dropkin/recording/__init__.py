@@ -13,7 +13,7 @@ Examples
 ...     path = pathlib.Path(folder) / "stack.tif"
 ...     tifffile.imwrite(path, np.zeros((4, 8, 6), np.uint16), photometric="minisblack")
 ...     with open_recording(path, frame_rate=20000.0) as rec:
-...         print(len(rec), rec.shape, rec.dtype, rec.times[1], rec.kind)
+...         print(len(rec), rec.frame_shape, rec.dtype, rec.times[1], rec.kind)
 4 (8, 6) uint16 5e-05 multi-page TIFF
 """
 

@@ -21,6 +21,7 @@ from typing import Protocol
 import numpy as np
 
 from ..errors import RecordingError
+from ._array import ArrayAccess
 
 __all__ = ["Recording", "FrameSource", "FileTiming"]
 
@@ -75,7 +76,7 @@ def _read_only(array: np.ndarray) -> np.ndarray:
     return array
 
 
-class Recording:
+class Recording(ArrayAccess):
     """A lazy sequence of 2-D grayscale frames, with their times and calibration.
 
     Made by :func:`dropkin.recording.open_recording`; nothing is decoded until a
@@ -120,6 +121,10 @@ class Recording:
     dtype : numpy.dtype
         Of every frame, as stored (8- and 16-bit data are never rescaled).
     shape : tuple of int
+        (K, M, N): frames, rows and columns, as for the array of all frames
+        (see :class:`~dropkin.recording._array.ArrayAccess` for ``ndim``,
+        ``np.asarray(rec)``, ``rec[k, rows, cols]`` and ``to_dask()``).
+    frame_shape : tuple of int
         (M, N), rows and columns of one frame.
     path : pathlib.Path
         The folder or file the frames come from.
@@ -186,8 +191,12 @@ class Recording:
         return self._source.dtype
 
     @property
-    def shape(self) -> tuple[int, int]:
-        return self._source.shape
+    def frame_shape(self) -> tuple[int, int]:
+        return tuple(self._source.shape)
+
+    @property
+    def shape(self) -> tuple[int, int, int]:
+        return (len(self._indices), *self.frame_shape)
 
     @property
     def path(self) -> Path:
@@ -231,7 +240,7 @@ class Recording:
 
     def __repr__(self) -> str:
         rate = "no frame rate" if self.frame_rate is None else f"{self.frame_rate:g} Hz"
-        rows, cols = self.shape
+        rows, cols = self.frame_shape
         return (
             f"<Recording {self.kind} '{self.path}': {len(self)} frames of "
             f"{rows} x {cols} {self.dtype}, {rate} ({self.frame_rate_origin})>"
@@ -240,6 +249,8 @@ class Recording:
     # -- frames --------------------------------------------------------------
 
     def __getitem__(self, key):
+        if isinstance(key, tuple):
+            return self._getitem_tuple(key)
         if isinstance(key, slice):
             step = 1 if key.step is None else key.step
             return Recording(
@@ -256,7 +267,7 @@ class Recording:
             index = operator.index(key)
         except TypeError:
             raise TypeError(
-                f"frames are indexed by int or slice, not {type(key).__name__}"
+                f"frames are indexed by int, slice or a tuple, not {type(key).__name__}"
             ) from None
         n = len(self._indices)
         if not -n <= index < n:
@@ -295,7 +306,7 @@ class Recording:
                 block = read_range(part.start, part.stop)
                 self._check(block.shape[1:], block.dtype, part.start)
             else:
-                block = np.empty((len(part), *self.shape), dtype=self.dtype)
+                block = np.empty((len(part), *self.frame_shape), dtype=self.dtype)
                 for k, j in enumerate(part):
                     block[k] = self._read_source(j)
             yield start, block
@@ -325,8 +336,8 @@ class Recording:
         return frame
 
     def _check(self, shape, dtype, j: int) -> None:
-        if tuple(shape) != tuple(self.shape) or dtype != self.dtype:
-            rows, cols = self.shape
+        if tuple(shape) != tuple(self.frame_shape) or dtype != self.dtype:
+            rows, cols = self.frame_shape
             got = " x ".join(str(s) for s in shape)
             files = self._source.files
             raise RecordingError(

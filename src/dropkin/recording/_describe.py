@@ -51,7 +51,7 @@ def describe(recording, experiment) -> dict:
         caller that found no frame rate adds ``frame_rate_missing`` (why,
         and how to give one), which :func:`format_description` prints.
     """
-    rows, cols = recording.shape
+    rows, cols = recording.frame_shape
     times = recording.times
     frames = len(recording)
     if recording.frame_rate is not None:
