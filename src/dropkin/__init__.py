@@ -2,6 +2,10 @@
 
 The public API, chosen on purpose (everything else is internal):
 
+- for notebooks (:mod:`dropkin.api`, loaded when first used):
+  :func:`open` (a recording, its experiment file honoured, array-like),
+  :func:`analyze` (measure and fit in memory; ``.write(out)`` for the files),
+  :func:`read_results` and :func:`read_catalogue` (pandas DataFrames);
 - recordings: :func:`open_recording`, :class:`Recording`;
 - the experiment: :func:`load_experiment`, :class:`Experiment`;
 - measuring: :func:`measure`, :class:`MeasureOptions`, :class:`RadiusSeries`,
@@ -61,3 +65,21 @@ __all__ = [
     "parse_si",
     "registry",
 ]
+
+#: The Python API's calls (:mod:`dropkin.api`), imported on first use so that
+#: ``import dropkin`` stays light. ``open`` is left out of ``__all__``:
+#: ``from dropkin import *`` must not hide the built-in ``open``.
+_API = ("open", "analyze", "read_results", "read_catalogue")
+__all__ += ["analyze", "read_results", "read_catalogue"]
+
+
+def __getattr__(name: str):
+    if name in _API:
+        from . import api
+
+        return getattr(api, name)
+    raise AttributeError(f"module 'dropkin' has no attribute {name!r}")
+
+
+def __dir__() -> list[str]:
+    return sorted({*globals(), *_API})

@@ -17,6 +17,7 @@ from contextlib import contextmanager
 
 import click
 
+from .._option_keys import RECORDING_OPTION_KEYS, SAMPLE_OPTION_KEYS
 from ..units import QuantityType
 
 __all__ = [
@@ -233,16 +234,6 @@ def fit_options(command):
     return _apply(command, options)
 
 
-#: The options of :func:`sample_options` (parameter names) and the experiment key each sets.
-SAMPLE_OPTION_KEYS = {
-    "liquid": "liquid.name",
-    "temperature": "liquid.temperature",
-    "glycerol_mass_fraction": "liquid.glycerol_mass_fraction",
-    "medium": "medium.name",
-    "drop_radius": "drops.radius",
-}
-
-
 def sample_options(command):
     """Options that describe the sample (they override the experiment file) and
     ``--liquids``, a user's liquid library."""
@@ -317,15 +308,9 @@ def options_named(overrides: dict):
 EXPERIMENT_KEYS = ("experiment", "frame_rate", "pixel_size", "geometry", "view", "contrast")
 
 
-def recording_overrides(*, frame_rate, pixel_size, geometry, view, contrast=None, **_) -> dict:
+def recording_overrides(**options) -> dict:
     """The experiment keys that :func:`experiment_options` override (None: not given)."""
-    return {
-        "recording.frame_rate": frame_rate,
-        "recording.pixel_size": pixel_size,
-        "recording.contrast": contrast,
-        "setup.geometry": geometry,
-        "setup.view": view,
-    }
+    return {key: options.get(name) for name, key in RECORDING_OPTION_KEYS.items()}
 
 
 def analysis_settings(*, background, roi, threshold, jobs, chunk_size, overlay_count, **others):

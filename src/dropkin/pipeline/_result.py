@@ -72,6 +72,10 @@ class AnalysisResult:
         The user's liquid library.
     extras : dict
         What the measurement kept for the overlay frames.
+    invocation : dict or None
+        The call as given (``command_line``, ``options_given``), for the
+        provenance of the files :meth:`write` writes (see
+        :func:`dropkin._provenance.invoked`); None: the one in force then.
     """
 
     series: object
@@ -87,6 +91,47 @@ class AnalysisResult:
     given: dict
     liquids: str | None
     extras: dict
+    invocation: dict | None = None
+
+    def __repr__(self) -> str:
+        name = Path(self.recording.path).name
+        head = f"<AnalysisResult {name}: {len(self.series)} frames"
+        if self.verdict is None:
+            return head + ", no contact seen>"
+        dom = self.verdict.dominant if self.verdict else None
+        said = dom.key if dom else (self.verdict.reason or "no dominant regime")
+        return head + f", {said}>"
+
+    def to_pandas(self):
+        """The radius series as a pandas DataFrame (the columns of ``radius.csv``)."""
+        return self.series.to_pandas()
+
+    def summary(self) -> str:
+        """The verdict as ``dropkin analyze`` prints it."""
+        from ..scaling import format_verdict
+
+        if self.verdict is None:
+            return self.warnings[0]
+        return format_verdict(self.verdict)
+
+    def figures(self) -> dict:
+        """The figures of ``plots/`` (all but the overlay montage) as matplotlib
+        Figures, by name: ``radius``, and ``local_exponent``, ``residuals``,
+        ``contact_angle`` where they apply; {} when nothing was fitted."""
+        from ..report import analysis_figures
+
+        if self.verdict is None:
+            return {}
+        return analysis_figures(self.series, self.verdict)
+
+    def write(self, out) -> Path:
+        """Write the files ``dropkin analyze`` writes into the folder `out`; return it
+        (see :func:`write_result`)."""
+        from .._provenance import invoked
+
+        with invoked(self.invocation):
+            write_result(self, out)
+        return Path(out)
 
 
 def open_source(source, *, experiment=None, overrides=None, origin: str = "command line"):

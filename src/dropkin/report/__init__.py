@@ -2,6 +2,7 @@
 master-curve figures."""
 
 from ._collapse import write_master_curve as write_master_curve
+from ._figures import analysis_figures as analysis_figures
 from ._html import write_analysis_report as write_analysis_report
 from ._html import write_report as write_report
 from ._origin import origin_dict as origin_dict
@@ -10,6 +11,7 @@ from ._origin import time_origin as time_origin
 from ._plots import write_plots as write_plots
 
 __all__ = [
+    "analysis_figures",
     "write_plots",
     "write_report",
     "write_analysis_report",

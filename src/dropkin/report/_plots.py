@@ -32,7 +32,7 @@ from ._style import (
     _save,
 )
 
-__all__ = ["write_plots", "PLOT_NAMES", "dominant_curve", "fit_times"]
+__all__ = ["write_plots", "figure_makers", "PLOT_NAMES", "dominant_curve", "fit_times"]
 
 #: The fit window's fill: light, but a swatch a reader can see in the legend.
 _WINDOW_FILL = "#DCDCDC"
@@ -306,6 +306,22 @@ def _plot_overlays(files):
     return fig
 
 
+def figure_makers(series, verdict, overlay_files=()) -> dict:
+    """The figures that apply to an analysis, by stem, each as a function that draws it
+    (see :func:`write_plots`); ``overlays`` only with `overlay_files`."""
+    label = time_origin(series, verdict).axis_label
+    figures = {"radius": lambda: _plot_radius(series, verdict)}
+    if verdict and verdict.local:
+        figures["local_exponent"] = lambda: plot_local_exponent(verdict, series, label)
+    if _dominant(verdict):
+        figures["residuals"] = lambda: _plot_residuals(series, verdict)
+    if series.angles is not None and np.isfinite(np.asarray(series.angles, float)).any():
+        figures["contact_angle"] = lambda: plot_contact_angles(series, verdict)
+    if overlay_files:
+        figures["overlays"] = lambda: _plot_overlays(overlay_files)
+    return figures
+
+
 def write_plots(out_dir, *, series, verdict, overlays_dir=None) -> list[Path]:
     """Write the analysis figures into ``out_dir/plots/`` as PNG and SVG.
 
@@ -353,17 +369,8 @@ def write_plots(out_dir, *, series, verdict, overlays_dir=None) -> list[Path]:
     out_dir = Path(out_dir)
     plots_dir = out_dir / "plots"
     plots_dir.mkdir(parents=True, exist_ok=True)
-    label = time_origin(series, verdict).axis_label
-    figures = {"radius": lambda: _plot_radius(series, verdict)}
-    if verdict and verdict.local:
-        figures["local_exponent"] = lambda: plot_local_exponent(verdict, series, label)
-    if _dominant(verdict):
-        figures["residuals"] = lambda: _plot_residuals(series, verdict)
-    if series.angles is not None and np.isfinite(np.asarray(series.angles, float)).any():
-        figures["contact_angle"] = lambda: plot_contact_angles(series, verdict)
     files = completed_files(Path(overlays_dir or out_dir / "overlays"), "*.png")
-    if files:
-        figures["overlays"] = lambda: _plot_overlays(files)
+    figures = figure_makers(series, verdict, files)
     written: list[Path] = []
     with matplotlib.rc_context(_RC), warnings.catch_warnings(), np.errstate(all="ignore"):
         # data spanning hundreds of decades overflow matplotlib's transforms or

@@ -37,6 +37,7 @@ from ._csv import (
     read_angles,
     read_columns,
 )
+from ._frame import series_frame
 
 __all__ = [
     "STATUSES",
@@ -144,6 +145,11 @@ class RadiusSeries:
             return np.full(len(self), np.nan)
         since = np.asarray(self.time, dtype=np.float64) - self.contact_time
         return np.where(since >= 0, since, np.nan)
+
+    def to_pandas(self):
+        """The series as a pandas DataFrame: the columns of ``radius.csv`` (then
+        ``angles.csv``'s angles), NaN where the file leaves a cell empty."""
+        return series_frame(self)
 
     @property
     def ok(self) -> np.ndarray:
