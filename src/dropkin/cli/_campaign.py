@@ -46,14 +46,29 @@ def _batch_line(done, total, label, row) -> str:
     is_flag=True,
     help="Let the manifest name recordings outside its own folder.",
 )
+@click.option(
+    "--job-script",
+    type=click.Choice(["slurm"]),
+    help="Print a batch script that runs this command on one cluster node with --jobs "
+    "cores (submit it with sbatch), instead of running it; see docs/cluster.md.",
+)
 @click.pass_context
-def batch_command(ctx, manifest, out, jobs, scheduler, redo, allow_outside_paths):
+def batch_command(ctx, manifest, out, jobs, scheduler, redo, allow_outside_paths, job_script):
     """Analyse every recording a campaign MANIFEST lists; catalogue the results.
 
     Exits 3 when some recordings failed (the others are complete; the
     failures are listed), 130 when interrupted (run it again to finish).
     """
     from pathlib import Path
+
+    if job_script is not None:
+        from ..campaign._jobscript import slurm_script
+
+        if scheduler is not None:
+            raise click.UsageError("--job-script writes a one-node job: leave out --scheduler")
+        text = slurm_script(manifest, out, jobs=jobs, redo=redo, allow_outside=allow_outside_paths)
+        click.echo(text, nl=False)
+        return
 
     from ..campaign._catalogue import CATALOGUE_NAME
     from ..campaign._runner import run_batch
