@@ -31,7 +31,8 @@ from dropkin.series import read_series
 ROOT = Path(__file__).resolve().parents[2]
 SAMPLE = ROOT / "sample_frames" / "fast_pair.tif"
 EXAMPLE = ROOT / "examples" / "notebook_walkthrough.py"
-# The walk-through's options, as keywords and as the command line types them.
+# The walk-through's options (those of the api_result fixture), as keywords and
+# as the command line types them.
 OPTIONS = {
     "frame_rate": "60 kHz",
     "pixel_size": "20 µm/px",
@@ -49,9 +50,9 @@ def cli_out(tmp_path_factory):
     return out
 
 
-@pytest.fixture(scope="module")
-def result():
-    return dropkin.analyze(SAMPLE, **OPTIONS)
+@pytest.fixture
+def result(api_result):
+    return api_result
 
 
 def _without(data: dict, *keys) -> dict:
