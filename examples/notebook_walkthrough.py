@@ -25,7 +25,9 @@ import dropkin
 
 HERE = Path(__file__).resolve().parent if "__file__" in globals() else Path.cwd() / "examples"
 SAMPLE = HERE.parent / "sample_frames" / "fast_pair.tif"
-OUT = Path(sys.argv[1]) if len(sys.argv) > 1 and __name__ == "__main__" else Path("out/walkthrough")
+# As a script, OUT comes from the command line; a notebook's argv is its kernel's.
+ARGS = [] if "ipykernel" in sys.modules else sys.argv[1:]
+OUT = Path(ARGS[0]) if ARGS else Path("out/walkthrough")
 OPTIONS = {
     "frame_rate": "60 kHz",
     "pixel_size": "20 µm/px",

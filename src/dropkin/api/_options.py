@@ -105,11 +105,8 @@ def parse_options(options: dict, *, allowed=ANALYZE_KEYWORDS, call: str = "dropk
     """
     unknown = sorted(set(options) - set(allowed))
     if unknown:
-        where = (
-            ""
-            if call == "dropkin.analyze" or unknown[0] not in ANALYZE_KEYWORDS
-            else (" (an option of dropkin.analyze)")
-        )
+        elsewhere = unknown[0] in ANALYZE_KEYWORDS  # e.g. liquid= given to dropkin.open
+        where = " (an option of dropkin.analyze)" if elsewhere else ""
         raise ExperimentError(
             f"is not an option of {call}{where}",
             key=unknown[0],

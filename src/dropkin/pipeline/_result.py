@@ -72,6 +72,8 @@ class AnalysisResult:
         The user's liquid library.
     extras : dict
         What the measurement kept for the overlay frames.
+    source : str
+        The recording as named by the caller (for the experiment copy's header).
     invocation : dict or None
         The call as given (``command_line``, ``options_given``), for the
         provenance of the files :meth:`write` writes (see
@@ -91,6 +93,7 @@ class AnalysisResult:
     given: dict
     liquids: str | None
     extras: dict
+    source: str = ""
     invocation: dict | None = None
 
     def __repr__(self) -> str:
@@ -265,6 +268,7 @@ def analyze_in_memory(
         "given": given,
         "liquids": None if liquids is None else str(liquids),
         "extras": extras,
+        "source": str(source),
         "series": series,
         "contact": extras["contact"],
     }
@@ -320,7 +324,7 @@ def write_result(
     out = Path(out)
     copy = None
     if experiment_copy:
-        copy = write_experiment_copy(out, result.read, result.recording.path, published_dir)
+        copy = write_experiment_copy(out, result.read, result.source, published_dir)
     series = write_measured(
         out,
         result.series,
