@@ -240,7 +240,9 @@ def ringing_tail(
     ``r_rest = rest_ratio * r_e`` (``r_e`` the law's radius at `end_time`),
     ``a = r_e - r_rest``, ``w = 2 pi / period`` and `b` chosen so that the
     radius and its slope are continuous at `end_time` (a description of our
-    own choosing, for the tests; no published form). By default the period
+    own choosing, for the tests; no published form). With `rest_ratio` at most
+    1 the neck slows down at once after `end_time`; above 1 it first runs
+    ahead of the law before it rings. By default the period
     is twice `end_time` and the damping time one period. The parameters
     record ``growth_end_time`` (s since contact): the radius may shrink
     after it.
