@@ -121,18 +121,8 @@ def measure(
         gap_floor=0.1,
     )
     status, early = relabel_before_contact(recording.times, status_names(px.codes), contact.time)
-    end = None
-    if prep.pair is not None:
-        free = prep.shift_correction  # free drops, not footprints seen from below
-        end = growth_end(
-            recording.times,
-            px.radius,
-            px.radius_err,
-            status,
-            contact.time,
-            drop_radius=float(min(prep.pair.radii)) if free else None,
-        )
-        status = mark_after_growth(status, end)
+    end = _growth_end(recording, prep, px, status, contact)
+    status = mark_after_growth(status, end)
     radius, radius_err, edges = px.radius.copy(), px.radius_err.copy(), px.edges.copy()
     angles = None if px.angles is None else px.angles.copy()
     level_radius = px.level_radius.copy()
@@ -211,6 +201,21 @@ def _collect(recording, prep: Preparation, options, progress) -> _PixelFrames:
             angles[start:stop] = result.angles
         level_radius[start:stop] = result.level_radius
     return _PixelFrames(radius, radius_err, codes, edges, gap, angles, level_radius)
+
+
+def _growth_end(recording, prep, px: _PixelFrames, status, contact):
+    """Where the growth phase of two drops ends (a GrowthEnd), or None."""
+    if prep.pair is None:
+        return None
+    free = prep.shift_correction  # free drops, not footprints seen from below
+    return growth_end(
+        recording.times,
+        px.radius,
+        px.radius_err,
+        status,
+        contact.time,
+        drop_radius=float(min(prep.pair.radii)) if free else None,
+    )
 
 
 def _drop_radii_px(prep) -> np.ndarray:
