@@ -162,3 +162,32 @@ def test_the_ringing_tail_is_marked_and_left_out_of_the_fit(analysed):
     assert top.key == "inertial", protocol
     assert abs(top.exponent_fit - 0.5) <= 0.05, protocol
     assert top.window[1] <= 1.25 * END
+
+
+def test_drops_that_barely_move_keep_the_first_frames_circles(tmp_path):
+    # Both drops closing the gap at 0.1 px per frame each (0.2 px together)
+    # over 30 frames: each centre moves 3 px, the first frames' circles are
+    # replaced; at 0.01 px per frame (0.3 px) they are kept. The inertial
+    # law alone, without a tail: no end of the growth is found.
+    for speed_px, moved in ((0.2, True), (0.02, False)):
+        setup = synth.Coalescence(drop_radius=RADIUS, approach_speed=speed_px * PIXEL * RATE)
+        rec = synth.synthesize(
+            setup,
+            INERTIAL,
+            camera=synth.Camera(RATE, PIXEL, (96, 192)),
+            frames=80,
+            contact_frame=30.5,
+            optics=synth.Optics(blur_px=BLUR),
+            seed=2,
+        )
+        path = tmp_path / f"still{speed_px}.tif"
+        tifffile.imwrite(path, rec.render(), photometric="minisblack")
+        path.with_suffix(".toml").write_text(synth.experiment_toml(rec))
+        exp = load_experiment(path)
+        recording = open_recording(
+            path, frame_rate=exp.recording.frame_rate, pixel_size=exp.recording.pixel_size
+        )
+        series, _ = measure(recording, exp)
+        assert (series.details["reference_frame"] > 20) is moved
+        assert series.details["growth_end_s"] is None
+        assert "after-growth" not in series.status

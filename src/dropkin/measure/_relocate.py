@@ -9,7 +9,8 @@ finds the last frame that still shows two separate silhouettes by bisection
 (the drops are apart before contact and one silhouette after it, so about
 log2(F) frames of F are looked at), and fits the circles there. They replace
 the first frames' circles when a centre or a radius has moved by more than
-half a pixel.
+half a pixel (and the radii are within a factor 2 of the first ones, the
+circles not overlapping by more than a pixel).
 """
 
 from __future__ import annotations
@@ -81,5 +82,10 @@ def relocate_near_contact(recording, prep, options):
         return prep
     index, pair = found
     if index == prep.reference_frame or _moved(prep.pair, pair) <= MOVED_PX:
+        return prep
+    ratio = pair.radii / prep.pair.radii
+    if not (np.all((ratio > 0.5) & (ratio < 2.0)) and pair.gap > -1.0):
+        # Not the same two drops about to touch (a speck taken for a drop,
+        # circles that overlap): the first frames' circles stay.
         return prep
     return dataclasses.replace(prep, pair=pair, reference_frame=index)
