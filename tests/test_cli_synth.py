@@ -171,3 +171,41 @@ def test_existing_frames_are_kept_without_overwrite(tmp_path):
     assert again.exit_code == 1
     assert "already holds frames" in again.output
     assert _run(str(out), *SMALL, "--overwrite").exit_code == 0
+
+
+def test_synth_renders_a_driven_drop_and_a_ringing_tail(tmp_path):
+    # Drop 2 driven at 2 px per frame (25 um pixels at 20 kfps: 1 m/s), the
+    # growth ending at 0.3 R; the truth's law records where, and the neck
+    # shrinks somewhere after it.
+    out = tmp_path / "run.tif"
+    args = [*SMALL, "--frames", "40", "--frame-rate", "20 kfps", "--drop-radius", "0.5 mm"]
+    result = _run(
+        str(out), *args, "--approach", "second-moves", "--approach-speed", "1 m/s",
+        "--ringing-at", "0.3", "--contact-frame", "3",
+    )  # fmt: skip
+    assert result.exit_code == 0, result.output
+    truth = json.loads((tmp_path / "run.truth.json").read_text())
+    assert truth["scene"]["approach"] == "second-moves"
+    end = truth["law"]["parameters"]["growth_end_time"]
+    radius = np.array(truth["radius_m"])
+    since = np.array(truth["time_since_contact_s"])
+    assert radius[since <= end].max() < 0.3 * 0.5e-3 < radius[since > end][0]
+    assert (np.diff(radius[since > end]) < 0).any()
+    assert (np.diff(radius[since <= end]) >= 0).all()
+    # Drop 1 stays where it touches; drop 2 starts 6 px (3 frames) further off:
+    # the dark run across the middle row ends 6 px further right.
+    stack = tifffile.imread(out).astype(float)
+    dark = stack[:, 24, :] < 0.5 * np.median(stack[:, 24, :2])
+    left = [np.argmax(row) for row in dark]
+    right = [len(row) - np.argmax(row[::-1]) for row in dark]
+    assert left[0] == left[-1]
+    assert right[0] - right[-1] == pytest.approx(6, abs=1)
+
+
+@pytest.mark.parametrize(
+    "extra", [["--approach", "growth"], ["--ringing-at", "0.4"]], ids=["approach", "ringing"]
+)
+def test_synth_refuses_coalescence_options_for_spreading(tmp_path, extra):
+    result = _run(str(tmp_path / "x"), *SMALL, "--geometry", "spreading", *extra)
+    assert result.exit_code != 0
+    assert "applies only to coalescence" in result.output

@@ -13,6 +13,11 @@ A frame's status is one of :data:`STATUSES`, as written in ``radius.csv``:
     Nothing to measure was seen.
 ``at-edge``
     What is measured reaches the frame's border.
+``after-growth``
+    In contact, after the growth phase has ended (the merged drop rings, the
+    neck nears the drop radius, or the growth has left its law; see
+    :mod:`dropkin.measure._growth`): a radius may be given, but the frame is
+    kept out of every fit.
 
 The image analysis works on integer codes, which index :data:`STATUSES`;
 :func:`status_names` turns codes into names.
@@ -27,15 +32,16 @@ __all__ = [
     "UNRESOLVED",
     "NOT_FOUND",
     "AT_EDGE",
+    "AFTER_GROWTH",
     "IN_CONTACT",
     "status_names",
 ]
 
 #: Allowed per-frame statuses; the integer codes below index this tuple.
-STATUSES = ("ok", "before-contact", "unresolved", "not-found", "at-edge")
-OK, BEFORE_CONTACT, UNRESOLVED, NOT_FOUND, AT_EDGE = range(len(STATUSES))
+STATUSES = ("ok", "before-contact", "unresolved", "not-found", "at-edge", "after-growth")
+OK, BEFORE_CONTACT, UNRESOLVED, NOT_FOUND, AT_EDGE, AFTER_GROWTH = range(len(STATUSES))
 #: The statuses of frames that show the drops in contact.
-IN_CONTACT = ("ok", "unresolved", "at-edge")
+IN_CONTACT = ("ok", "unresolved", "at-edge", "after-growth")
 
 
 def status_names(codes) -> tuple[str, ...]:

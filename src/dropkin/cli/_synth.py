@@ -153,6 +153,28 @@ def _size(ctx, param, value):
     type=positive("m/s"),
     help="Before contact (default: half a pixel per frame).",
 )
+@click.option(
+    "--approach",
+    type=click.Choice(["both-move", "second-moves", "growth"]),
+    default="both-move",
+    show_default=True,
+    help="Coalescence: how the gap closes before contact at --approach-speed: both drops"
+    " move, drop 2 alone is driven towards drop 1, or both drops grow on fixed needles.",
+)
+@click.option(
+    "--ringing-at",
+    type=FiniteFloat(0, 1, min_open=True, max_open=True),
+    help="Coalescence: the growth phase ends when the neck reaches this fraction of the"
+    " drop radius, and the neck then rings about a rest radius (truth.json records"
+    " growth_end_time).",
+)
+@click.option(
+    "--ringing-rest",
+    type=FiniteFloat(min=0, min_open=True),
+    default=0.9,
+    show_default=True,
+    help="With --ringing-at: the rest radius over the neck radius at the end of the growth.",
+)
 @click.option("--overwrite", is_flag=True, help="Replace existing output.")
 @click.pass_context
 def synth_command(ctx, out, **options):
@@ -185,7 +207,12 @@ def _setup(o):
             angle_deg=o["angle"],
             approach_speed=o["approach_speed"],
             needle_width=o["needle_width"] or 0.0,
+            approach=o["approach"],
         )
+    if o["approach"] != "both-move":
+        raise ExperimentError("applies only to coalescence", key="--approach")
+    if o["ringing_at"] is not None:
+        raise ExperimentError("applies only to coalescence", key="--ringing-at")
     if o["second_radius"] is not None:
         raise ExperimentError("applies only to coalescence", key="--second-radius")
     return synth.Spreading(
@@ -213,8 +240,13 @@ def _law(o, setup):
     if o["then"] is None:
         if o["then_prefactor"] is not None:
             raise ExperimentError("applies only with --then", key="--then-prefactor")
-        return first
-    return synth.harmonic_blend(first, _regime_law(o, setup, o["then"], o["then_prefactor"]))
+        law = first
+    else:
+        law = synth.harmonic_blend(first, _regime_law(o, setup, o["then"], o["then_prefactor"]))
+    if o["ringing_at"] is None:
+        return law
+    end = synth.time_at_radius(law, o["ringing_at"] * min(setup.radii))
+    return synth.ringing_tail(law, end_time=end, rest_ratio=o["ringing_rest"])
 
 
 def _regime_law(o, setup, name, prefactor):

@@ -21,8 +21,10 @@ from ..contact._frames import relabel_before_contact
 from ..errors import ExperimentError
 from ..series import RadiusSeries
 from ..status import status_names
+from ._growth import growth_end, mark_after_growth
 from ._options import DEFAULT_OPTIONS, MeasureOptions, checked_options
 from ._prepare import Preparation, prepare
+from ._relocate import relocate_near_contact
 from ._stream import stream
 
 __all__ = ["measure"]
@@ -104,6 +106,9 @@ def measure(
         options=options,
         contrast=experiment.recording.contrast,
     )
+    if prep.pair is not None:
+        # The drops may have moved or grown by the time they touch.
+        prep = relocate_near_contact(recording, prep, options)
     px = _collect(recording, prep, options, progress)
     # In pixels: gaps below a tenth of a pixel count as closed.
     contact = estimate_contact(
@@ -116,6 +121,8 @@ def measure(
         gap_floor=0.1,
     )
     status, early = relabel_before_contact(recording.times, status_names(px.codes), contact.time)
+    end = _growth_end(recording, prep, px, status, contact)
+    status = mark_after_growth(status, end)
     radius, radius_err, edges = px.radius.copy(), px.radius_err.copy(), px.edges.copy()
     angles = None if px.angles is None else px.angles.copy()
     level_radius = px.level_radius.copy()
@@ -138,7 +145,7 @@ def measure(
         frame_rate=recording.frame_rate,
         pixel_size=pixel,
         provenance=_provenance(recording, options),
-        details=_details(recording, experiment, prep, options, contact, pixel),
+        details=_details(recording, experiment, prep, options, contact, pixel, end),
         angles=angles,
         level_radii={
             level: level_radius[:, i] * pixel for i, level in enumerate(options.other_levels)
@@ -196,6 +203,21 @@ def _collect(recording, prep: Preparation, options, progress) -> _PixelFrames:
     return _PixelFrames(radius, radius_err, codes, edges, gap, angles, level_radius)
 
 
+def _growth_end(recording, prep, px: _PixelFrames, status, contact):
+    """Where the growth phase of two drops ends (a GrowthEnd), or None."""
+    if prep.pair is None:
+        return None
+    free = prep.shift_correction  # free drops, not footprints seen from below
+    return growth_end(
+        recording.times,
+        px.radius,
+        px.radius_err,
+        status,
+        contact.time,
+        drop_radius=float(min(prep.pair.radii)) if free else None,
+    )
+
+
 def _drop_radii_px(prep) -> np.ndarray:
     if prep.sessile is not None:
         return prep.sessile.radii
@@ -229,11 +251,12 @@ def _unresolved_criterion(prep, options) -> str:
     return f"gap beside the neck r^2/2 (1/R0 + 1/R1) narrower than {limit}"
 
 
-def _details(recording, experiment, prep, options, contact, pixel: float) -> dict:
+def _details(recording, experiment, prep, options, contact, pixel: float, end) -> dict:
     """The measurement's details, as written in ``measure.json``.
 
     The contact's time and error are fields of the series; its bracket and
     method come from the estimate's own file form (:meth:`ContactEstimate.to_dict`).
+    `end` is the end of the growth phase (a :class:`GrowthEnd`), or None.
     """
     own = contact.to_dict()
     return {
@@ -249,6 +272,8 @@ def _details(recording, experiment, prep, options, contact, pixel: float) -> dic
         "edge_blur_px": prep.blur,
         "unresolved_criterion": _unresolved_criterion(prep, options),
         "reference_frame": int(recording.source_frames[prep.reference_frame]),
+        "growth_end_s": None if end is None else float(recording.times[end.index]),
+        "growth_end_method": "" if end is None else end.method,
     }
 
 

@@ -37,7 +37,13 @@ __all__ = ["write_plots", "figure_makers", "PLOT_NAMES", "dominant_curve", "fit_
 #: The fit window's fill: light, but a swatch a reader can see in the legend.
 _WINDOW_FILL = "#DCDCDC"
 
-_STATUS_MARKERS = {"unresolved": "v", "not-found": "x", "at-edge": "s", "before-contact": "^"}
+_STATUS_MARKERS = {
+    "unresolved": "v",
+    "not-found": "x",
+    "at-edge": "s",
+    "before-contact": "^",
+    "after-growth": "d",
+}
 
 #: Stems of the figures that `write_plots` can write (each as .png and .svg).
 PLOT_NAMES = ("radius", "local_exponent", "residuals", "contact_angle", "overlays")

@@ -71,6 +71,8 @@ _STATUS_MEANING = {
     "resolve; the radius shown is biased",
     "not-found": "nothing to measure was seen",
     "at-edge": "what is measured reaches the frame's border",
+    "after-growth": "in contact, after the growth phase has ended (the merged drop rings or "
+    "the neck nears the drop radius); kept out of the fit",
 }
 
 

@@ -22,7 +22,8 @@ _STATUS_TEXT = (
     "What the frame shows: ok (a radius was measured), before-contact (not touching yet), "
     "unresolved (in contact, but narrower than the optics resolve; a radius may still be "
     "given), not-found (nothing to measure was seen), at-edge (what is measured reaches the "
-    "frame's border)."
+    "frame's border), after-growth (in contact, after the growth phase has ended: the merged "
+    "drop rings or the neck nears the drop radius; a radius may be given, kept out of the fit)."
 )
 
 # name: (type, unit or None, description, constraints)

@@ -34,7 +34,9 @@ from ._laws import crossing_time as crossing_time
 from ._laws import custom_law as custom_law
 from ._laws import harmonic_blend as harmonic_blend
 from ._laws import power_law as power_law
+from ._laws import ringing_tail as ringing_tail
 from ._laws import smooth_blend as smooth_blend
+from ._laws import time_at_radius as time_at_radius
 from ._materials import Liquid as Liquid
 from ._materials import Medium as Medium
 from ._optics import Optics as Optics
@@ -65,6 +67,7 @@ from ._scenes import cap_sphere as cap_sphere
 from ._sessile import SessileCoalescence as SessileCoalescence
 from ._sessile import SessileScene as SessileScene
 from ._sessile import sessile_law as sessile_law
+from ._setups import APPROACHES as APPROACHES
 from ._setups import Camera as Camera
 from ._setups import Coalescence as Coalescence
 from ._setups import Spreading as Spreading
@@ -82,6 +85,8 @@ __all__ = [
     "power_law",
     "harmonic_blend",
     "smooth_blend",
+    "ringing_tail",
+    "time_at_radius",
     "viscous_law",
     "ilv_law",
     "inertial_law",
@@ -93,6 +98,7 @@ __all__ = [
     "regime_law",
     "Liquid",
     "Medium",
+    "APPROACHES",
     "Camera",
     "Coalescence",
     "Spreading",

@@ -13,9 +13,13 @@ from dataclasses import dataclass
 from ..errors import ExperimentError
 from ._scenes import CapScene, PairScene, WettedDiscScene, cap_sphere
 
-__all__ = ["VIEWS", "Camera", "Coalescence", "Spreading", "check_setup", "scene_at"]
+__all__ = ["VIEWS", "APPROACHES", "Camera", "Coalescence", "Spreading", "check_setup", "scene_at"]
 
 VIEWS = ("side", "bottom")
+#: How two drops come into contact: both move towards each other, only the
+#: second one moves (driven on its needle), or both grow in place (fed
+#: slowly through their needles).
+APPROACHES = ("both-move", "second-moves", "growth")
 
 
 @dataclass(frozen=True)
@@ -73,6 +77,13 @@ class Coalescence:
         Width (m) of a needle from the top edge into the upper drop; 0 for none.
     spot_fraction : float
         Bright-spot radius over drop radius; 0 for none.
+    approach : str
+        How the gap closes (one of :data:`APPROACHES`): ``"both-move"``, each
+        drop moving at half the approach speed; ``"second-moves"``, drop 2
+        alone moving at the approach speed (drop 1 stays where it touches);
+        ``"growth"``, the centres fixed and each radius growing at half the
+        approach speed until the drops touch with their radii `drop_radius`
+        and `second_radius`. The drops do not move after contact.
     """
 
     view: str = "side"
@@ -83,6 +94,7 @@ class Coalescence:
     approach_speed: float | None = None
     needle_width: float = 0.0
     spot_fraction: float = 0.2
+    approach: str = "both-move"
 
     geometry = "coalescence"
 
@@ -165,6 +177,14 @@ def check_setup(setup, camera: Camera) -> None:
         if not (math.isfinite(radius) and radius > 0):
             key = "drop_radius" if index == 0 else "second_radius"
             raise ExperimentError("must be positive", key=key, value=radius)
+    approach = getattr(setup, "approach", APPROACHES[0])
+    if approach not in APPROACHES:
+        raise ExperimentError(
+            "is not a known approach",
+            key="approach",
+            value=approach,
+            expected=" | ".join(APPROACHES),
+        )
     speed = setup.approach_speed
     if speed is not None and not (math.isfinite(speed) and speed > 0):
         raise ExperimentError("must be positive", key="approach_speed", value=speed)
@@ -194,12 +214,18 @@ def _pair_scene(setup: Coalescence, camera: Camera, radius: float, gap: float) -
     angle = math.radians(setup.angle_deg)
     ar, ac = -math.sin(angle), math.cos(angle)
     r1, r2 = (r / px for r in setup.radii)
-    half_gap = gap / px / 2
+    # How far each centre stands back from where it is at contact, and how
+    # much smaller each drop is than at contact (px).
+    back_1, back_2, smaller = {
+        "both-move": (gap / px / 2, gap / px / 2, 0.0),
+        "second-moves": (0.0, gap / px, 0.0),
+        "growth": (0.0, 0.0, gap / px / 2),
+    }[setup.approach]
     return PairScene(
-        centre_1_px=(pr - (r1 + half_gap) * ar, pc - (r1 + half_gap) * ac),
-        centre_2_px=(pr + (r2 + half_gap) * ar, pc + (r2 + half_gap) * ac),
-        radius_1_px=r1,
-        radius_2_px=r2,
+        centre_1_px=(pr - (r1 + back_1) * ar, pc - (r1 + back_1) * ac),
+        centre_2_px=(pr + (r2 + back_2) * ar, pc + (r2 + back_2) * ac),
+        radius_1_px=r1 - smaller,
+        radius_2_px=r2 - smaller,
         neck_px=radius / px,
         needle_width_px=setup.needle_width / px if setup.view == "side" else 0.0,
         spot_fraction=setup.spot_fraction,

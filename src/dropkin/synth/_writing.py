@@ -24,6 +24,7 @@ from .._atomic import atomic_path, write_text_atomic
 from .._version import __version__
 from ..errors import ExperimentError
 from ._recording import SyntheticRecording
+from ._setups import scene_at
 
 __all__ = [
     "FORMATS",
@@ -131,12 +132,16 @@ def truth_record(recording: SyntheticRecording) -> dict:
     scene = {}
     if setup.geometry == "coalescence":
         scene["angle_deg"] = setup.angle_deg
-        first = recording.scene(0)
         # Contact point: where the drops touch, or will touch.
-        r1 = first.radius_1_px + truth.gap[0] / px / 2
-        ar, ac = first.axis()
-        scene["contact_px"] = [first.centre_1_px[0] + r1 * ar, first.centre_1_px[1] + r1 * ac]
+        touching = scene_at(setup, camera, 0.0, 0.0)
+        r1 = touching.radius_1_px
+        ar, ac = touching.axis()
+        scene["contact_px"] = [
+            touching.centre_1_px[0] + r1 * ar,
+            touching.centre_1_px[1] + r1 * ac,
+        ]
         scene["needle_width_m"] = setup.needle_width
+        scene["approach"] = setup.approach
     elif setup.geometry == "sessile-coalescence":
         scene.update(_sessile_scene(recording))
     else:
