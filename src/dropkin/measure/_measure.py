@@ -18,7 +18,9 @@ import numpy as np
 from .._version import __version__
 from ..contact._estimate import estimate_contact
 from ..contact._frames import relabel_before_contact
+from ..contact._settled import settled_gap
 from ..errors import ExperimentError
+from ..recording import LOSSY_CAUTION
 from ..series import RadiusSeries
 from ..status import status_names
 from ._options import DEFAULT_OPTIONS, MeasureOptions, checked_options
@@ -105,13 +107,15 @@ def measure(
         contrast=experiment.recording.contrast,
     )
     px = _collect(recording, prep, options, progress)
-    # In pixels: gaps below a tenth of a pixel count as closed.
+    # In pixels: gaps below a tenth of a pixel count as closed, and stay
+    # closed once they have been for a few frames (a lossy key frame's
+    # artefacts on the axis are no gap: see dropkin.contact._settled).
     contact = estimate_contact(
         recording.times,
         px.radius,
         px.radius_err,
         status_names(px.codes),
-        gap=px.gap,
+        gap=settled_gap(px.gap, floor=0.1),
         early_radius=_drop_radii_px(prep).min() / 3.0,
         gap_floor=0.1,
     )
@@ -249,7 +253,14 @@ def _details(recording, experiment, prep, options, contact, pixel: float) -> dic
         "edge_blur_px": prep.blur,
         "unresolved_criterion": _unresolved_criterion(prep, options),
         "reference_frame": int(recording.source_frames[prep.reference_frame]),
+        "lossy_source": _lossy_source(recording),
     }
+
+
+def _lossy_source(recording) -> dict | None:
+    """``measure.json``'s note of a lossy source: what compression, and the caution."""
+    lossy = getattr(recording, "lossy", None)
+    return None if lossy is None else {"compression": lossy, "caution": LOSSY_CAUTION}
 
 
 def _provenance(recording, options) -> dict:

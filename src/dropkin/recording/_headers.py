@@ -45,6 +45,8 @@ class FrameHeader:
         TIFF ``BitsPerSample`` narrower than the sample type), else None.
     decoder : str
         "opencv" or "tifffile", whichever will decode the pixels.
+    lossy : str or None
+        The lossy compression the pixels went through ("JPEG"), or None.
     """
 
     rows: int
@@ -53,6 +55,7 @@ class FrameHeader:
     channels: int
     bit_depth: int | None = None
     decoder: str = "opencv"
+    lossy: str | None = None
 
     def describe(self) -> str:
         return f"{self.rows} x {self.cols} {self.dtype}"
@@ -186,8 +189,10 @@ def _bmp_header(file, size: int, path) -> FrameHeader:
     return FrameHeader(rows, cols, np.dtype(np.uint8), channels)
 
 
-# Start-of-frame markers (all but DHT 0xC4, JPG 0xC8 and DAC 0xCC).
+# Start-of-frame markers (all but DHT 0xC4, JPG 0xC8 and DAC 0xCC); those of
+# lossless JPEG (ITU-T T.81, Table B.1: SOF3, SOF7, SOF11, SOF15) lose nothing.
 _JPEG_SOF = set(range(0xC0, 0xD0)) - {0xC4, 0xC8, 0xCC}
+_JPEG_LOSSLESS = {0xC3, 0xC7, 0xCB, 0xCF}
 
 
 def _jpeg_header(file, size: int, path) -> FrameHeader:
@@ -226,7 +231,8 @@ def _jpeg_header(file, size: int, path) -> FrameHeader:
     file.seek(max(0, size - 1024))
     if b"\xff\xd9" not in file.read():
         raise RecordingError("is truncated: no JPEG end-of-image marker at the end", path=path)
-    return FrameHeader(rows, cols, dtype, 1 if components == 1 else 3)
+    lossy = None if code in _JPEG_LOSSLESS else "JPEG"
+    return FrameHeader(rows, cols, dtype, 1 if components == 1 else 3, lossy=lossy)
 
 
 def _tiff_header(path: Path, size: int) -> FrameHeader:
