@@ -18,7 +18,7 @@ import numpy as np
 from .._version import __version__
 from ..contact._estimate import estimate_contact
 from ..contact._frames import relabel_before_contact
-from ..contact._settled import settled_gap
+from ..contact._settled import fresh_gap, settled_gap
 from ..errors import ExperimentError
 from ..recording import LOSSY_CAUTION
 from ..series import RadiusSeries
@@ -108,14 +108,14 @@ def measure(
     )
     px = _collect(recording, prep, options, progress)
     # In pixels: gaps below a tenth of a pixel count as closed, and stay
-    # closed once they have been for a few frames (a lossy key frame's
-    # artefacts on the axis are no gap: see dropkin.contact._settled).
+    # closed once they have been for a few frames; a reading repeated to the
+    # bit is a block a lossy codec held (see dropkin.contact._settled).
     contact = estimate_contact(
         recording.times,
         px.radius,
         px.radius_err,
         status_names(px.codes),
-        gap=settled_gap(px.gap, floor=0.1),
+        gap=fresh_gap(settled_gap(px.gap, floor=0.1), floor=0.1),
         early_radius=_drop_radii_px(prep).min() / 3.0,
         gap_floor=0.1,
     )
