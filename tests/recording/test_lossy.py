@@ -109,3 +109,27 @@ def test_lossless_jpeg_is_told_by_its_start_of_frame_marker(tmp_path, sof, lossy
 
 def test_the_caution_says_what_to_expect():
     assert LOSSY_CAUTION.startswith("sub-pixel accuracy is not expected")
+
+
+def test_jpeg_compressed_tiff_is_lossy(tmp_path):
+    # Written by OpenCV's libtiff with compression 7 (JPEG, TIFF Technical
+    # Note 2); the same frames deflated (8) are not lossy.
+    frames = _frames(k=3)
+    for code, name in ((7, "jpeg"), (8, "deflate")):
+        stack = tmp_path / f"{name}.tif"
+        assert cv2.imwritemulti(str(stack), frames, [cv2.IMWRITE_TIFF_COMPRESSION, code])
+        folder = tmp_path / name
+        folder.mkdir()
+        for k, frame in enumerate(frames):
+            assert cv2.imwrite(
+                str(folder / f"f{k}.tif"), frame, [cv2.IMWRITE_TIFF_COMPRESSION, code]
+            )
+        with (
+            open_recording(stack, frame_rate=1.0) as rec,
+            open_recording(folder, frame_rate=1.0) as fold,
+        ):
+            assert len(rec) == len(fold) == 3
+            if code == 7:
+                assert rec.lossy == "JPEG TIFF pages" and fold.lossy == "JPEG frames"
+            else:
+                assert rec.lossy is None and fold.lossy is None

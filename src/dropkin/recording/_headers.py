@@ -20,7 +20,13 @@ from ._limits import check_frame_size
 from ._tiff import TIFF_SUFFIXES
 from ._tiffcheck import check_claims, check_data_apart, ifd_offsets
 from ._tifferrors import open_tifffile, tifffile_reports
-from ._tiffpage import check_frame_page, check_tag_order, decoder_for, sample_bits
+from ._tiffpage import (
+    check_frame_page,
+    check_tag_order,
+    decoder_for,
+    lossy_compression,
+    sample_bits,
+)
 from ._tiffseries import frame_layout
 
 __all__ = ["FrameHeader", "read_header", "IMAGE_SUFFIXES"]
@@ -264,6 +270,7 @@ def _tiff_header(path: Path, size: int) -> FrameHeader:
                 channels=frame_shape[2] if len(frame_shape) == 3 else 1,
                 bit_depth=bits if 0 < bits < 8 * dtype.itemsize else None,
                 decoder=decoder,
+                lossy=None if lossy_compression(key) is None else "JPEG",
             )
         finally:
             tif.close()
