@@ -64,6 +64,7 @@ def test_a_compressed_mp4_meets_the_lossy_standard(tmp_path):
     out = tmp_path / "out"
     result = CliRunner().invoke(main, ["analyze", str(video), "-o", str(out), "--bootstrap", "30"])
     assert result.exit_code == 0, result.output
+    assert "lossy source (MPEG-4 Part 2 video" in result.output
 
     measured = json.loads((out / "measure.json").read_text())
     assert measured["lossy_source"]["compression"].startswith("MPEG-4 Part 2 video")
