@@ -108,8 +108,9 @@ def measure(
     )
     px = _collect(recording, prep, options, progress)
     # In pixels: gaps below a tenth of a pixel count as closed, and stay
-    # closed once they have been for a few frames; a reading repeated to the
-    # bit is a block a lossy codec held (see dropkin.contact._settled).
+    # closed once they have been for a few frames; an open reading that
+    # repeats the one before is a block a lossy codec held (see
+    # dropkin.contact._settled).
     contact = estimate_contact(
         recording.times,
         px.radius,
