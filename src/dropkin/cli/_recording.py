@@ -83,16 +83,23 @@ def _open_for_info(source, experiment, overrides):
 
 
 def measure_summary(series, out) -> str:
-    """One line: frames per status, the measured contact instant, where the series went."""
+    """One line: frames per status, the measured contact instant, where the series
+    went, and a lossy source's caution."""
     from ..report._origin import time_text
 
     counts = {s: series.status.count(s) for s in dict.fromkeys(series.status)}
     summary = ", ".join(f"{n} {s}" for s, n in counts.items() if n)
+    lossy = series.details.get("lossy_source") or {}
+    caution = (
+        f"; lossy source ({lossy['compression']}): sub-pixel accuracy is not expected"
+        if lossy.get("compression")
+        else ""
+    )
     return (
         f"{len(series)} frames: {summary}; measured contact t_c = "
         f"{time_text(series.contact_time, 4)} ± {time_text(series.contact_time_err, 2)} "
         f"after the first frame (radius.csv's since_contact_s counts from it); "
-        f"wrote {out / 'radius.csv'}"
+        f"wrote {out / 'radius.csv'}{caution}"
     )
 
 

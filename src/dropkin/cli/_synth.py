@@ -129,8 +129,23 @@ def _size(ctx, param, value):
 @click.option(
     "--format",
     "fmt",
-    type=click.Choice(["png", "tiff"]),
-    help="png: a folder of frames; tiff: a multi-page file (default: from OUT's suffix).",
+    type=click.Choice(["png", "tiff", "mp4", "jpeg"]),
+    help="png: a folder of frames; tiff: a multi-page file; lossy, as recordings are often"
+    " shared: mp4 (MPEG-4 video) or jpeg (a folder of JPEG frames), 8-bit only"
+    " (default: from OUT's suffix).",
+)
+@click.option(
+    "--bit-rate",
+    type=positive("bit/s"),
+    help="mp4: the bit rate at the 30 fps playback rate, e.g. '10 kbit/s' for a heavily"
+    " compressed export (default: the encoder's).",
+)
+@click.option(
+    "--jpeg-quality",
+    type=click.IntRange(1, 100),
+    default=75,
+    show_default=True,
+    help="jpeg: the JPEG quality.",
 )
 @click.option("--seed", type=click.IntRange(min=0), default=0, show_default=True)
 @click.option(
@@ -178,7 +193,7 @@ def _size(ctx, param, value):
 @click.option("--overwrite", is_flag=True, help="Replace existing output.")
 @click.pass_context
 def synth_command(ctx, out, **options):
-    """Write a synthetic recording with known truth to OUT (a folder, or a .tif file)."""
+    """Write a synthetic recording with known truth to OUT (a folder, a .tif or a .mp4 file)."""
     try:
         _synth(ctx, out, options)
     except DropkinError as exc:
@@ -296,7 +311,13 @@ def _synth(ctx, out, o):
     start = time.perf_counter()
     with progress_bar(ctx, "rendering", recording.frames) as progress:
         written = synth.write_recording(
-            recording, out, format=o["fmt"], overwrite=o["overwrite"], progress=progress
+            recording,
+            out,
+            format=o["fmt"],
+            overwrite=o["overwrite"],
+            progress=progress,
+            bit_rate=o["bit_rate"],
+            jpeg_quality=o["jpeg_quality"],
         )
     elapsed = time.perf_counter() - start
     truth = recording.truth

@@ -18,7 +18,9 @@ import numpy as np
 from .._version import __version__
 from ..contact._estimate import estimate_contact
 from ..contact._frames import relabel_before_contact
+from ..contact._settled import fresh_gap, settled_gap
 from ..errors import ExperimentError
+from ..recording import LOSSY_CAUTION
 from ..series import RadiusSeries
 from ..status import status_names
 from ._growth import growth_end, mark_after_growth
@@ -110,13 +112,16 @@ def measure(
         # The drops may have moved or grown by the time they touch.
         prep = relocate_near_contact(recording, prep, options)
     px = _collect(recording, prep, options, progress)
-    # In pixels: gaps below a tenth of a pixel count as closed.
+    # In pixels: gaps below a tenth of a pixel count as closed, and stay
+    # closed once they have been for a few frames; an open reading that
+    # repeats the one before is a block a lossy codec held (see
+    # dropkin.contact._settled).
     contact = estimate_contact(
         recording.times,
         px.radius,
         px.radius_err,
         status_names(px.codes),
-        gap=px.gap,
+        gap=fresh_gap(settled_gap(px.gap, floor=0.1), floor=0.1),
         early_radius=_drop_radii_px(prep).min() / 3.0,
         gap_floor=0.1,
     )
@@ -274,7 +279,14 @@ def _details(recording, experiment, prep, options, contact, pixel: float, end) -
         "reference_frame": int(recording.source_frames[prep.reference_frame]),
         "growth_end_s": None if end is None else float(recording.times[end.index]),
         "growth_end_method": "" if end is None else end.method,
+        "lossy_source": _lossy_source(recording),
     }
+
+
+def _lossy_source(recording) -> dict | None:
+    """``measure.json``'s note of a lossy source: what compression, and the caution."""
+    lossy = getattr(recording, "lossy", None)
+    return None if lossy is None else {"compression": lossy, "caution": LOSSY_CAUTION}
 
 
 def _provenance(recording, options) -> dict:

@@ -20,6 +20,7 @@ Examples
 from ._base import Recording as Recording
 from ._folder import FRAME_SUFFIXES as FRAME_SUFFIXES
 from ._folder import read_image as read_image
+from ._lossy import CAUTION as LOSSY_CAUTION
 from ._open import RECORDING_SUFFIXES as RECORDING_SUFFIXES
 from ._open import open_recording as open_recording
 from ._tiff import TIFF_SUFFIXES as TIFF_SUFFIXES
@@ -33,4 +34,5 @@ __all__ = [
     "TIFF_SUFFIXES",
     "VIDEO_SUFFIXES",
     "RECORDING_SUFFIXES",
+    "LOSSY_CAUTION",
 ]

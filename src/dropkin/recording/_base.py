@@ -63,7 +63,8 @@ class FrameSource(Protocol):
     timing: FileTiming | None
     # Optional: ``trigger_frame`` (float, the trigger's place in the source's
     # frames, fractional when it fell between two saved frames) and
-    # ``header_facts`` (dict, what a camera file's header says, for ``info``).
+    # ``header_facts`` (dict, what a camera file's header says, for ``info``);
+    # ``lossy`` (str, the lossy compression the pixels went through).
 
     def __len__(self) -> int: ...
 
@@ -153,6 +154,10 @@ class Recording(ArrayAccess):
     header_facts : dict
         What a camera file's header says (record rate, save step, bit depths,
         whether it has per-frame time stamps); empty for other sources.
+    lossy : str or None
+        The lossy compression the frames went through, e.g. "MPEG-4 Part 2
+        video (codec tag FMP4)" or "JPEG frames"; None for lossless sources
+        (and for codecs dropkin does not know).
     """
 
     def __init__(
@@ -234,6 +239,10 @@ class Recording(ArrayAccess):
     @property
     def header_facts(self) -> dict:
         return dict(getattr(self._source, "header_facts", None) or {})
+
+    @property
+    def lossy(self) -> str | None:
+        return getattr(self._source, "lossy", None)
 
     def __len__(self) -> int:
         return len(self._indices)

@@ -44,7 +44,8 @@ def describe(recording, experiment) -> dict:
         ``frame_interval_s``, ``duration_s`` (frames times the mean interval),
         ``pixel_size_m``, ``field_of_view_m`` (rows, cols), ``geometry``,
         ``view``, ``liquid``, ``medium``, ``drop_radius_m``,
-        ``experiment_file``, ``notes``, and for a camera file whose header
+        ``experiment_file``, ``notes``, ``lossy_compression`` (the lossy
+        compression the frames went through, or None), and for a camera file whose header
         records them ``trigger_frame``, ``trigger_time_s`` (on the axis of the
         frame times) and ``camera_header`` (what the header says: record
         rate, save step, saved-frame rate, bit depths, time stamps). A
@@ -82,6 +83,7 @@ def describe(recording, experiment) -> dict:
         "drop_radius_m": experiment.drops.radius,
         "experiment_file": None if experiment.path is None else str(experiment.path),
         "notes": list(recording.notes),
+        "lossy_compression": getattr(recording, "lossy", None),
         **_camera(recording),
     }
 
@@ -168,6 +170,10 @@ def format_description(description: dict) -> str:
         f"frame size      {d['rows']} rows x {d['cols']} columns",
         f"pixel data      {d['dtype']}, {d['bit_depth']}-bit",
     ]
+    if d.get("lossy_compression"):
+        lines.append(
+            f"compression     lossy: {d['lossy_compression']} (sub-pixel accuracy is not expected)"
+        )
     if d.get("frame_rate_missing"):
         lines.append(f"frame rate      missing: {d['frame_rate_missing']}")
     elif d["frame_rate_hz"] is not None:

@@ -128,6 +128,7 @@ class ImageFolder:
                 "needs the optional imagecodecs package in tifffile)"
             )
         self.notes = tuple(notes)
+        self.lossy = _lossy_frames(headers)
 
     @staticmethod
     def _header(file: Path, i: int) -> FrameHeader:
@@ -145,6 +146,17 @@ class ImageFolder:
 
     def _read(self, i: int) -> np.ndarray:
         return _decode(self.files[i], self._decoders[i], frame=i)
+
+
+def _lossy_frames(headers) -> str | None:
+    """What lossy compression the frames went through (see ``recording._lossy``), or None."""
+    lossy = [header.lossy for header in headers if header.lossy is not None]
+    if not lossy:
+        return None
+    kinds = " and ".join(sorted(set(lossy)))
+    if len(lossy) == len(headers):
+        return f"{kinds} frames"
+    return f"{kinds} frames ({len(lossy)} of {len(headers)})"
 
 
 def _decode(file: Path, decoder: str, *, frame: int | None = None) -> np.ndarray:

@@ -20,7 +20,13 @@ from ._limits import check_frame_size
 from ._tiff import TIFF_SUFFIXES
 from ._tiffcheck import check_claims, check_data_apart, ifd_offsets
 from ._tifferrors import open_tifffile, tifffile_reports
-from ._tiffpage import check_frame_page, check_tag_order, decoder_for, sample_bits
+from ._tiffpage import (
+    check_frame_page,
+    check_tag_order,
+    decoder_for,
+    lossy_compression,
+    sample_bits,
+)
 from ._tiffseries import frame_layout
 
 __all__ = ["FrameHeader", "read_header", "IMAGE_SUFFIXES"]
@@ -45,6 +51,8 @@ class FrameHeader:
         TIFF ``BitsPerSample`` narrower than the sample type), else None.
     decoder : str
         "opencv" or "tifffile", whichever will decode the pixels.
+    lossy : str or None
+        The lossy compression the pixels went through ("JPEG"), or None.
     """
 
     rows: int
@@ -53,6 +61,7 @@ class FrameHeader:
     channels: int
     bit_depth: int | None = None
     decoder: str = "opencv"
+    lossy: str | None = None
 
     def describe(self) -> str:
         return f"{self.rows} x {self.cols} {self.dtype}"
@@ -186,8 +195,10 @@ def _bmp_header(file, size: int, path) -> FrameHeader:
     return FrameHeader(rows, cols, np.dtype(np.uint8), channels)
 
 
-# Start-of-frame markers (all but DHT 0xC4, JPG 0xC8 and DAC 0xCC).
+# Start-of-frame markers (all but DHT 0xC4, JPG 0xC8 and DAC 0xCC); those of
+# lossless JPEG (ITU-T T.81, Table B.1: SOF3, SOF7, SOF11, SOF15) lose nothing.
 _JPEG_SOF = set(range(0xC0, 0xD0)) - {0xC4, 0xC8, 0xCC}
+_JPEG_LOSSLESS = {0xC3, 0xC7, 0xCB, 0xCF}
 
 
 def _jpeg_header(file, size: int, path) -> FrameHeader:
@@ -226,7 +237,8 @@ def _jpeg_header(file, size: int, path) -> FrameHeader:
     file.seek(max(0, size - 1024))
     if b"\xff\xd9" not in file.read():
         raise RecordingError("is truncated: no JPEG end-of-image marker at the end", path=path)
-    return FrameHeader(rows, cols, dtype, 1 if components == 1 else 3)
+    lossy = None if code in _JPEG_LOSSLESS else "JPEG"
+    return FrameHeader(rows, cols, dtype, 1 if components == 1 else 3, lossy=lossy)
 
 
 def _tiff_header(path: Path, size: int) -> FrameHeader:
@@ -258,6 +270,7 @@ def _tiff_header(path: Path, size: int) -> FrameHeader:
                 channels=frame_shape[2] if len(frame_shape) == 3 else 1,
                 bit_depth=bits if 0 < bits < 8 * dtype.itemsize else None,
                 decoder=decoder,
+                lossy=None if lossy_compression(key) is None else "JPEG",
             )
         finally:
             tif.close()

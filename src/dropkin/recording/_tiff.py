@@ -53,6 +53,7 @@ from ._tiffpage import (
     code_name,
     decoder_for,
     full_page,
+    lossy_compression,
     max_sample_value,
     sample_bits,
 )
@@ -98,6 +99,7 @@ class TiffStack:
             raise RecordingError("holds no frame", path=path)
         decoder = decoder_for(key, path)
         check_frame_page(key, dtype, frame_shape, path, None, decoder=decoder)
+        self.lossy = lossy_compression(key)
         self._n = n
         self._frame_shape = frame_shape
         self.shape = frame_shape[:2]

@@ -68,6 +68,20 @@ def decoder_for(page, path, frame: int | None = None) -> str:
     )
 
 
+# Lossy TIFF compressions (TIFF 6.0 §22 for 6 and TIFF Technical Note 2 for
+# 7; 34892 is DNG's lossy JPEG).
+_LOSSY_COMPRESSIONS = {
+    6: "JPEG (old-style) TIFF pages",
+    7: "JPEG TIFF pages",
+    34892: "lossy JPEG TIFF pages",
+}
+
+
+def lossy_compression(page) -> str | None:
+    """What lossy compression `page` went through (see ``recording._lossy``), or None."""
+    return _LOSSY_COMPRESSIONS.get(int(page.compression))
+
+
 def code_name(value) -> str:
     """The name of a TIFF enumeration value (compression, photometric), or its code."""
     name = getattr(value, "name", None)

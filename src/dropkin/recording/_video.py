@@ -9,6 +9,10 @@ the middle without complaint. Frames are read in order without seeking; a jump s
 ``CAP_PROP_POS_FRAMES``. OpenCV decodes to blue-green-red colour, which is
 converted to grayscale.
 
+The stream's codec tag (``CAP_PROP_FOURCC``) tells a lossy codec (MPEG-4,
+H.264, Motion JPEG...; see :mod:`dropkin.recording._lossy`): ``lossy``
+describes it, or is None.
+
 The container's frame rate is a playback rate on high-speed cameras (a
 20 000 fps recording is typically saved to play at 30 fps), so it is never used
 as the frame rate; it is only reported in the notes.
@@ -26,6 +30,7 @@ import numpy as np
 
 from ..errors import RecordingError
 from ._gray import notes_for_channels, to_gray
+from ._lossy import video_codec
 
 __all__ = ["VIDEO_SUFFIXES", "Video", "open_video"]
 
@@ -79,6 +84,7 @@ class Video:
         self.dtype = image.dtype
         self.bit_depth = 8 * self.dtype.itemsize
         notes = list(notes_for_channels(1 if image.ndim == 2 else image.shape[2]))
+        self.codec, self.lossy = video_codec(capture.get(cv2.CAP_PROP_FOURCC))
         fps = capture.get(cv2.CAP_PROP_FPS)
         self.container_fps = fps if math.isfinite(fps) and fps > 0 else None
         if self.container_fps is not None:

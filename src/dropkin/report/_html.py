@@ -88,12 +88,19 @@ def _data_uri(path: Path) -> str:
 def report_warnings(*, series, verdict) -> list[str]:
     """Plain-text warnings about the measurement and the verdict.
 
-    Few ok frames, frames whose drop was not found or touched the image edge,
+    A lossy source (measure.json's ``lossy_source``), few ok frames, frames
+    whose drop was not found or touched the image edge,
     a dominant regime whose window ends where at-edge frames begin (the field
     of view cut it), a failed or undecided verdict, and the verdict's own
     warnings (``verdict.warnings``, each with its code).
     """
     out = []
+    lossy = series.details.get("lossy_source")
+    if isinstance(lossy, dict) and lossy.get("compression"):
+        out.append(
+            f"The recording went through lossy compression ({lossy['compression']}): "
+            f"{lossy.get('caution') or 'sub-pixel accuracy is not expected'}."
+        )
     counts = series.status_counts
     if counts["ok"] < FEW_OK_POINTS:
         out.append(

@@ -3,10 +3,14 @@
 Two layouts:
 
 * a folder ``OUT/`` of PNG frames ``frame_00000.png, ...`` (written with
-  ``cv2.imwrite``), with ``OUT/experiment.toml`` and ``OUT/truth.json``;
-* a multi-page TIFF ``OUT.tif`` (tifffile, zlib-compressed pages), with
-  ``OUT.toml`` and ``OUT.truth.json`` beside it (``<stem>.toml``,
-  ``<stem>.truth.json``).
+  ``cv2.imwrite``), or of JPEG frames ``frame_00000.jpg, ...`` (lossy), with
+  ``OUT/experiment.toml`` and ``OUT/truth.json``;
+* a multi-page TIFF ``OUT.tif`` (tifffile, zlib-compressed pages), or an
+  MPEG-4 video ``OUT.mp4`` (lossy), with ``OUT.toml`` and ``OUT.truth.json``
+  beside it (``<stem>.toml``, ``<stem>.truth.json``).
+
+The lossy exports (:mod:`dropkin.synth._lossy`) record how they were made in
+the truth file (``export``).
 
 Every file goes to a temporary name in its folder and is renamed into place
 when complete.
@@ -23,6 +27,7 @@ from pathlib import Path
 from .._atomic import atomic_path, write_text_atomic
 from .._version import __version__
 from ..errors import ExperimentError
+from ._lossy import write_jpeg_frames, write_mp4
 from ._recording import SyntheticRecording
 from ._setups import scene_at
 
@@ -34,8 +39,9 @@ __all__ = [
     "write_recording",
 ]
 
-FORMATS = ("png", "tiff")
+FORMATS = ("png", "tiff", "mp4", "jpeg")
 _TIFF_SUFFIXES = (".tif", ".tiff")
+_FILE_SUFFIXES = {"tiff": _TIFF_SUFFIXES, "mp4": (".mp4",)}
 
 
 @dataclass(frozen=True)
@@ -51,7 +57,7 @@ class WrittenRecording:
     truth : pathlib.Path
         The truth file.
     format : str
-        ``"png"`` or ``"tiff"``.
+        One of :data:`FORMATS`.
     """
 
     frames: Path
@@ -215,16 +221,18 @@ def _sessile_scene(recording: SyntheticRecording) -> dict:
 
 
 def _resolve(out: Path, fmt: str | None) -> str:
+    suffix = out.suffix.lower()
     if fmt is None:
-        fmt = "tiff" if out.suffix.lower() in _TIFF_SUFFIXES else "png"
+        fmt = next((f for f, ends in _FILE_SUFFIXES.items() if suffix in ends), "png")
     if fmt not in FORMATS:
         raise ExperimentError(
             "is not a known format", key="format", value=fmt, expected=" or ".join(FORMATS)
         )
-    if fmt == "tiff" and out.suffix.lower() not in _TIFF_SUFFIXES:
-        raise ExperimentError("must end in .tif or .tiff for a TIFF stack", path=out)
-    if fmt == "png" and out.suffix.lower() in _TIFF_SUFFIXES:
-        raise ExperimentError("names a TIFF file, but the format is png", path=out)
+    ends = _FILE_SUFFIXES.get(fmt)
+    if ends is not None and suffix not in ends:
+        raise ExperimentError(f"must end in {' or '.join(ends)} for format {fmt}", path=out)
+    if ends is None and any(suffix in e for e in _FILE_SUFFIXES.values()):
+        raise ExperimentError(f"names a file, but the format {fmt} is a folder", path=out)
     return fmt
 
 
@@ -236,6 +244,8 @@ def write_recording(
     overwrite: bool = False,
     png_compression: int = 6,
     progress: Callable[[int, int], None] | None = None,
+    bit_rate: float | None = None,
+    jpeg_quality: int = 75,
 ) -> WrittenRecording:
     """Render `recording` and write frames, experiment file and truth.
 
@@ -243,15 +253,21 @@ def write_recording(
     ----------
     recording : SyntheticRecording
     out : str or os.PathLike
-        A folder (PNG frames) or a ``.tif``/``.tiff`` file (multi-page TIFF).
-    format : {"png", "tiff"}, optional
-        Chosen from the suffix of `out` when not given.
+        A folder (PNG or JPEG frames), a ``.tif``/``.tiff`` file (multi-page
+        TIFF) or a ``.mp4`` file (MPEG-4 video).
+    format : {"png", "tiff", "mp4", "jpeg"}, optional
+        Chosen from the suffix of `out` when not given (a folder: png).
     overwrite : bool
         Replace existing output; otherwise existing frames are an error.
     png_compression : int
         zlib level 0-9 of the PNG frames (9 is smallest and slowest).
     progress : callable, optional
         ``progress(done, total)`` after each frame.
+    bit_rate : float, optional
+        mp4: bits per second at the 30 fps playback rate (the encoder's
+        default when None; e.g. 10 000 for a heavily compressed export).
+    jpeg_quality : int
+        jpeg: the quality, 1-100.
 
     Returns
     -------
@@ -259,12 +275,23 @@ def write_recording(
     """
     out = Path(out)
     fmt = _resolve(out, format)
+    record = truth_record(recording)
     if fmt == "png":
         experiment, truth = _write_png_frames(recording, out, overwrite, png_compression, progress)
-    else:
+    elif fmt == "tiff":
         experiment, truth = _write_tiff_stack(recording, out, overwrite, progress)
+    elif fmt == "mp4":
+        experiment, truth = write_mp4(
+            recording, out, overwrite=overwrite, bit_rate=bit_rate, progress=progress
+        )
+        record["export"] = {"format": "mp4", "codec": "mp4v", "bit_rate_bps": bit_rate}
+    else:
+        experiment, truth = write_jpeg_frames(
+            recording, out, overwrite=overwrite, quality=jpeg_quality, progress=progress
+        )
+        record["export"] = {"format": "jpeg", "quality": jpeg_quality}
     write_text_atomic(experiment, experiment_toml(recording))
-    write_text_atomic(truth, json.dumps(truth_record(recording), indent=1) + "\n")
+    write_text_atomic(truth, json.dumps(record, indent=1) + "\n")
     return WrittenRecording(frames=out, experiment=experiment, truth=truth, format=fmt)
 
 
