@@ -60,11 +60,11 @@ class GrowthEnd:
     method: str
 
 
-def _ringing_peak(r, err):
+def _ringing_peak(r, err, step):
     """Position (into `r`) of the largest radius before the neck first shrinks
-    for good, or None."""
+    for good (by more than `step` px and three uncertainties), or None."""
     top = np.maximum.accumulate(r)
-    below = r < top - np.maximum(3.0 * err, 0.5)
+    below = r < top - np.maximum(3.0 * err, step)
     run = below[:-2] & below[1:-1] & below[2:]
     if not run.any():
         return None
@@ -72,7 +72,7 @@ def _ringing_peak(r, err):
     return int(np.argmax(r[: first + 1]))
 
 
-def _left_law(x, y, err_rel, candidate):
+def _left_law(x, y, err_rel, candidate, floor_rel):
     """Position of the first point after which the points up to `candidate`
     all fall below the line fitted before them, or `candidate` itself."""
     width = LAW_DECADES * math.log(10.0)
@@ -81,7 +81,7 @@ def _left_law(x, y, err_rel, candidate):
     if window.sum() < 5:
         return candidate
     slope, intercept = np.polyfit(x[window], y[window], 1)
-    short = y < slope * x + intercept - np.maximum(3.0 * err_rel, SHORT_FRACTION)
+    short = y < slope * x + intercept - np.maximum(3.0 * err_rel, floor_rel)
     after = np.nonzero(x >= end - width)[0]
     after = after[after <= candidate]
     start = candidate
@@ -93,7 +93,7 @@ def _left_law(x, y, err_rel, candidate):
 
 
 def growth_end(
-    time, radius, radius_err, status, contact_time, *, drop_radius=None
+    time, radius, radius_err, status, contact_time, *, drop_radius=None, step=0.5, lossy=False
 ) -> GrowthEnd | None:
     """The first frame after the growth phase, or None while the neck still grows.
 
@@ -110,6 +110,14 @@ def growth_end(
     drop_radius : float, optional
         The smaller drop's radius (px), for the "drop radius reached" sign
         (free drops only; None leaves it out).
+    step : float, optional
+        A neck must shrink by more than this (px, and three uncertainties)
+        to ring: half a pixel for lossless frames.
+    lossy : bool, optional
+        The frames went through lossy compression, whose codec moves edges
+        by a pixel or more at once from one key frame to the next: a neck
+        must then also fall short of its law by more than `step` pixels
+        (besides 1 % and three uncertainties) to have left it.
 
     Returns
     -------
@@ -137,7 +145,7 @@ def growth_end(
     r_ok = r[idx]
     e_ok = np.where(np.isfinite(err[idx]), err[idx], 0.0)
     signs = []
-    peak = _ringing_peak(r_ok, e_ok)
+    peak = _ringing_peak(r_ok, e_ok, step)
     if peak is not None:
         signs.append((peak, "the neck rings (shrinks after its largest radius)"))
     if drop_radius is not None and drop_radius > 0:
@@ -149,7 +157,8 @@ def growth_end(
     candidate, method = min(signs)
     x = np.log(t[idx] - contact_time)
     y = np.log(r_ok)
-    start = _left_law(x, y, e_ok / r_ok, candidate)
+    floor = np.maximum(SHORT_FRACTION, step / r_ok) if lossy else SHORT_FRACTION
+    start = _left_law(x, y, e_ok / r_ok, candidate, floor)
     if start < candidate:
         method += "; the growth left its law before that"
     return GrowthEnd(int(idx[start]), method)

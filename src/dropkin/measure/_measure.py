@@ -112,16 +112,22 @@ def measure(
         # The drops may have moved or grown by the time they touch.
         prep = relocate_near_contact(recording, prep, options)
     px = _collect(recording, prep, options, progress)
-    # In pixels: gaps below a tenth of a pixel count as closed, and stay
-    # closed once they have been for a few frames; an open reading that
-    # repeats the one before is a block a lossy codec held (see
-    # dropkin.contact._settled).
+    # In pixels: gaps below a tenth of a pixel count as closed. From a lossy
+    # source the gap also stays closed once it has been for a few frames,
+    # and an open reading that repeats the one before is a block the codec
+    # held (see dropkin.contact._settled). Lossless frames keep every
+    # reading: still drops repeat theirs honestly, and drops grown on
+    # needles can read a closed gap on the final line of centres long
+    # before they touch.
+    gap = px.gap
+    if getattr(recording, "lossy", None) is not None:
+        gap = fresh_gap(settled_gap(gap, floor=0.1), floor=0.1)
     contact = estimate_contact(
         recording.times,
         px.radius,
         px.radius_err,
         status_names(px.codes),
-        gap=fresh_gap(settled_gap(px.gap, floor=0.1), floor=0.1),
+        gap=gap,
         early_radius=_drop_radii_px(prep).min() / 3.0,
         gap_floor=0.1,
     )
@@ -208,11 +214,17 @@ def _collect(recording, prep: Preparation, options, progress) -> _PixelFrames:
     return _PixelFrames(radius, radius_err, codes, edges, gap, angles, level_radius)
 
 
+#: A lossy source's smallest resolved change of radius (px), for the growth's
+#: end: an MPEG-4 key frame moves the edge by a pixel or two at once.
+LOSSY_STEP_PX = 2.0
+
+
 def _growth_end(recording, prep, px: _PixelFrames, status, contact):
     """Where the growth phase of two drops ends (a GrowthEnd), or None."""
     if prep.pair is None:
         return None
     free = prep.shift_correction  # free drops, not footprints seen from below
+    lossy = getattr(recording, "lossy", None) is not None
     return growth_end(
         recording.times,
         px.radius,
@@ -220,6 +232,8 @@ def _growth_end(recording, prep, px: _PixelFrames, status, contact):
         status,
         contact.time,
         drop_radius=float(min(prep.pair.radii)) if free else None,
+        step=LOSSY_STEP_PX if lossy else 0.5,
+        lossy=lossy,
     )
 
 
