@@ -24,6 +24,7 @@ from ._style import (
     _RC,
     _WIDTH_IN,
     OKABE_ITO,
+    PLOT_FORMATS,
     _exponent_text,
     _finite,
     _log_axis,
@@ -39,7 +40,7 @@ _WINDOW_FILL = "#DCDCDC"
 
 _STATUS_MARKERS = {"unresolved": "v", "not-found": "x", "at-edge": "s", "before-contact": "^"}
 
-#: Stems of the figures that `write_plots` can write (each as .png and .svg).
+#: Stems of the figures that `write_plots` can write (each in the formats asked for).
 PLOT_NAMES = ("radius", "local_exponent", "residuals", "contact_angle", "overlays")
 
 
@@ -306,8 +307,8 @@ def _plot_overlays(files):
     return fig
 
 
-def write_plots(out_dir, *, series, verdict, overlays_dir=None) -> list[Path]:
-    """Write the analysis figures into ``out_dir/plots/`` as PNG and SVG.
+def write_plots(out_dir, *, series, verdict, overlays_dir=None, formats=("png",)) -> list[Path]:
+    """Write the analysis figures into ``out_dir/plots/``, as PNG unless asked otherwise.
 
     Parameters
     ----------
@@ -320,6 +321,9 @@ def write_plots(out_dir, *, series, verdict, overlays_dir=None) -> list[Path]:
         The regime verdict; a failed one still gets the radius plot.
     overlays_dir : path, optional
         The annotated frames for the montage (default ``out_dir/overlays``).
+    formats : sequence of str
+        File formats, each of :data:`PLOT_FORMATS` (``png``, ``svg``,
+        ``pdf``); each figure is laid out once and saved in each.
 
     Returns
     -------
@@ -327,8 +331,9 @@ def write_plots(out_dir, *, series, verdict, overlays_dir=None) -> list[Path]:
         The files written: ``radius`` always; ``local_exponent`` when the
         verdict has one; ``residuals`` when it has a dominant regime;
         ``contact_angle`` when the series has contact angles; ``overlays``
-        when there are overlay frames, each as ``.png`` and ``.svg``. A figure
-        of an earlier run that does not apply any more is removed.
+        when there are overlay frames, each in every format asked for. A figure
+        of an earlier run that does not apply any more, or a format not
+        asked for, is removed.
 
     Notes
     -----
@@ -372,8 +377,8 @@ def write_plots(out_dir, *, series, verdict, overlays_dir=None) -> list[Path]:
         warnings.simplefilter("ignore", UserWarning)
         warnings.simplefilter("ignore", RuntimeWarning)
         for stem, draw in figures.items():
-            written += _save(draw(), plots_dir, stem)
+            written += _save(draw(), plots_dir, stem, formats)
     for stem in set(PLOT_NAMES) - set(figures):
-        for ext in ("png", "svg"):
+        for ext in PLOT_FORMATS:
             (plots_dir / f"{stem}.{ext}").unlink(missing_ok=True)
     return written
