@@ -151,7 +151,9 @@ def measure_into(
     contact_method : str
     """
     from .._atomic import remove_temporaries
+    from ..errors import RecordingError
     from ..measure import MeasureOptions, measure
+    from ..measure._hash import PinnedInput
     from ..report._overlays import write_overlays
     from ..series import write_series
 
@@ -167,21 +169,32 @@ def measure_into(
         jobs=settings.jobs,
         background=background,
     )
-    measured, extras = measure(rec, exp, options=options, progress=progress, keep_edges=True)
+    out = Path(out)
+    # the input is hashed beside the measurement, from files held open for it; a
+    # file that changes meanwhile fails the run before radius.csv is written
+    with PinnedInput(rec) as pinned:
+        measured, extras = measure(rec, exp, options=options, progress=progress, keep_edges=True)
+        remove_temporaries(out, out / "overlays")  # left by a run that was killed
+        drawn = []
+        if settings.overlays:
+            folder, count = out / "overlays", settings.overlays
+            drawn = write_overlays(rec, measured, extras, folder, count=count)
+        try:
+            digest = pinned.sha256()
+        except RecordingError:
+            for path in drawn:  # frames of a file that changed: not kept
+                path.unlink(missing_ok=True)
+            raise
     named = experiment_file if experiment_file is not None else exp.path
     provenance = measure_provenance(
-        measured.provenance, rec, named, settings, published_dir or out
+        measured.provenance, rec, named, settings, published_dir or out, sha256=digest
     )
     if sample_given(sample):
         provenance["sample_overrides"] = sample_given(sample)
     if liquids is not None:
         provenance["liquids_file"] = relative_path(liquids, published_dir or out)
     series = replace(measured, provenance=provenance)
-    out = Path(out)
-    remove_temporaries(out, out / "overlays")  # left by a run that was killed
     write_series(series, out)
-    if settings.overlays:
-        write_overlays(rec, series, extras, out / "overlays", count=settings.overlays)
     if package:
         write_datapackage(out)
     return series, extras["contact"].method
