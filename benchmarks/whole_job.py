@@ -32,8 +32,16 @@ of one 60-frame 256 x 256 recording (each a recording of its own to batch).
 
     python benchmarks/whole_job.py [--keep DIR] [--repeat 2] [--only abcde]
 
-Last measured: see the closing note of issue 18 (the figures vary with the
-machine's load).
+Last measured (2-core machine shared with other jobs; the figures move with
+the load): at load 5-7, (a) 12.8 s / 3.3 s = 3.9; (b) marginal 5,800
+frames/s against a read-and-hash floor of 1,800 (0.31 x the floor's time per
+frame: the neck search reads a band of each frame and the hash runs on
+another core) and 23 x the per-frame script; (d) 146 ms / 84 ms = 1.7
+(before the lazy imports about 0.5-0.6 s at load 0.2); (e) 350 MB (211 MB
+with ``--chunk-size 16``: a chunk of 64 whole frames sets it). At load 22,
+(c) 5.4 recordings/min at ``--jobs 1``, 11.9 at ``--jobs 2`` (2.2 x). Where
+(a) goes: the fit's bootstrap (t0 refitted in 200 resamples of five linear
+laws, about 6 s under a profiler) and the figures (about 4.7 s).
 """
 
 from __future__ import annotations
