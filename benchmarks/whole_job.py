@@ -38,8 +38,10 @@ frames/s against a read-and-hash floor of 1,800 (0.31 x the floor's time per
 frame: the neck search reads a band of each frame and the hash runs on
 another core) and 23 x the per-frame script; (d) 146 ms / 84 ms = 1.7
 (before the lazy imports about 0.5-0.6 s at load 0.2); (e) 350 MB (211 MB
-with ``--chunk-size 16``: a chunk of 64 whole frames sets it). At load 22,
-(c) 5.4 recordings/min at ``--jobs 1``, 11.9 at ``--jobs 2`` (2.2 x). Where
+with ``--chunk-size 16``: a chunk of 64 whole frames sets it). (c) at load 7-8:
+32.9 recordings/min at ``--jobs 1``, 30.1 at ``--jobs 2`` (0.92 x: no idle
+core for the second worker); at load 22, 5.4 and 11.9 (2.2 x) - on this
+shared machine (c) says little either way. Where
 (a) goes: the fit's bootstrap (t0 refitted in 200 resamples of five linear
 laws, about 6 s under a profiler) and the figures (about 4.7 s).
 """
