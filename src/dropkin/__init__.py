@@ -18,6 +18,9 @@ The physics lives in :mod:`dropkin.scaling`, synthetic recordings in
 :mod:`dropkin.synth`, the per-frame image analysis in :mod:`dropkin.vision`.
 """
 
+import sys as _sys
+import types as _types
+
 from ._version import __version__ as __version__
 from .errors import DropkinError as DropkinError
 from .errors import ExperimentError as ExperimentError
@@ -25,22 +28,34 @@ from .errors import FitError as FitError
 from .errors import MeasurementError as MeasurementError
 from .errors import QuantityError as QuantityError
 from .errors import RecordingError as RecordingError
-from .experiment import Experiment as Experiment
-from .experiment import load_experiment as load_experiment
-from .liquids import liquid_names as liquid_names
-from .liquids import liquid_properties as liquid_properties
-from .liquids import resolve_fluids as resolve_fluids
-from .measure import MeasureOptions as MeasureOptions
-from .measure import measure as measure
-from .recording import Recording as Recording
-from .recording import open_recording as open_recording
-from .series import RadiusSeries as RadiusSeries
-from .series import read_radius_csv as read_radius_csv
-from .series import write_series as write_series
-from .units import parse_quantity as parse_quantity
-from .units import parse_si as parse_si
-from .units import registry as registry
 
+# The rest is imported on first use (PEP 562), so that ``dropkin --help`` and
+# the worker processes of a campaign do not pay for numpy, scipy and OpenCV
+# before they need them.
+_LAZY = {
+    "Experiment": ".experiment",
+    "load_experiment": ".experiment",
+    "liquid_names": ".liquids",
+    "liquid_properties": ".liquids",
+    "resolve_fluids": ".liquids",
+    "MeasureOptions": ".measure",
+    "measure": ".measure",
+    "Recording": ".recording",
+    "open_recording": ".recording",
+    "RadiusSeries": ".series",
+    "read_radius_csv": ".series",
+    "write_series": ".series",
+    "parse_quantity": ".units",
+    "parse_si": ".units",
+    "registry": ".units",
+    # the Python API's calls (dropkin.api)
+    "open": ".api",
+    "analyze": ".api",
+    "read_results": ".api",
+    "read_catalogue": ".api",
+}
+
+# ``open`` is left out: ``from dropkin import *`` must not hide the built-in.
 __all__ = [
     "__version__",
     "DropkinError",
@@ -49,37 +64,33 @@ __all__ = [
     "MeasurementError",
     "QuantityError",
     "RecordingError",
-    "Experiment",
-    "load_experiment",
-    "liquid_names",
-    "liquid_properties",
-    "resolve_fluids",
-    "MeasureOptions",
-    "measure",
-    "Recording",
-    "open_recording",
-    "RadiusSeries",
-    "read_radius_csv",
-    "write_series",
-    "parse_quantity",
-    "parse_si",
-    "registry",
+    *sorted(name for name in _LAZY if name != "open"),
 ]
-
-#: The Python API's calls (:mod:`dropkin.api`), imported on first use so that
-#: ``import dropkin`` stays light. ``open`` is left out of ``__all__``:
-#: ``from dropkin import *`` must not hide the built-in ``open``.
-_API = ("open", "analyze", "read_results", "read_catalogue")
-__all__ += ["analyze", "read_results", "read_catalogue"]
 
 
 def __getattr__(name: str):
-    if name in _API:
-        from . import api
+    module = _LAZY.get(name)
+    if module is None:
+        raise AttributeError(f"module 'dropkin' has no attribute {name!r}")
+    import importlib
 
-        return getattr(api, name)
-    raise AttributeError(f"module 'dropkin' has no attribute {name!r}")
+    value = getattr(importlib.import_module(module, __name__), name)
+    globals()[name] = value
+    return value
 
 
-def __dir__() -> list[str]:
-    return sorted({*globals(), *_API})
+def __dir__():
+    return sorted(set(globals()) | set(_LAZY))
+
+
+class _Package(_types.ModuleType):
+    """``dropkin.measure`` stays the function: importing the subpackage of the same
+    name (which Python records on its parent) does not replace it."""
+
+    def __setattr__(self, name, value):
+        if name == "measure" and isinstance(value, _types.ModuleType):
+            return
+        super().__setattr__(name, value)
+
+
+_sys.modules[__name__].__class__ = _Package

@@ -1026,7 +1026,6 @@ def option_cases():
             "fit.json",
             "report.html",
             "plots/radius.png",
-            "plots/radius.svg",
             "datapackage.json",
         ],
         about="a contact instant after the last frame: fit.json records the failed verdict, "

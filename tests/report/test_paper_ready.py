@@ -109,7 +109,11 @@ def test_a_failed_fit_writes_its_radius_plot_and_a_report_that_says_why(runs, tm
     (short / "radius.csv").write_text("\n".join(rows) + "\n", encoding="utf-8")
     shutil.copy(runs["pair"] / "measure.json", short)
     shutil.copytree(runs["pair"] / "overlays", short / "overlays")
-    result = _run("fit", short / "radius.csv", "-o", tmp_path / "out", "--bootstrap", "20")
+    result = _run(
+        "fit",
+        *(short / "radius.csv", "-o", tmp_path / "out", "--bootstrap", "20"),
+        *("--plot-formats", "png,svg"),
+    )
     assert result.exit_code == 1
     out = tmp_path / "out"
     fit = json.loads((out / "fit.json").read_text(encoding="utf-8"))

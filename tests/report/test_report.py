@@ -84,7 +84,7 @@ def test_records_read_back_give_their_files_again(analysed):
     assert origin == origin_dict(time_origin(inputs["series"], inputs["verdict"]))
 
 
-def test_plots_are_valid_png_and_svg(analysed):
+def test_plots_are_valid_png_and_png_only_by_default(analysed):
     import matplotlib.image as mpimg
 
     out, _ = analysed
@@ -92,10 +92,32 @@ def test_plots_are_valid_png_and_svg(analysed):
         png = out / "plots" / f"{stem}.png"
         assert png.read_bytes()[:8] == PNG_SIGNATURE, png
         shape = mpimg.imread(png).shape
-        # one column (3.4 in) at 300 dpi, trimmed by the tight bounding box
+        # one column (3.4 in) at 300 dpi
         assert 600 < shape[1] < 1100 and shape[0] > 200, (stem, shape)
-        root = ET.parse(out / "plots" / f"{stem}.svg").getroot()
+    assert sorted({p.suffix for p in (out / "plots").iterdir()}) == [".png"]
+
+
+def test_plots_in_every_format_asked_for_and_no_other(analysed, tmp_path):
+    import matplotlib.image as mpimg
+
+    out, _ = analysed
+    stems = ("radius", "local_exponent", "residuals", *_angle_plot(out))
+    written = write_plots(tmp_path, **_inputs(out), formats=("png", "svg", "pdf"))
+    assert sorted(p.name for p in written) == sorted(
+        f"{s}.{e}" for s in stems for e in ("png", "svg", "pdf")
+    )
+    for stem in stems:
+        root = ET.parse(tmp_path / "plots" / f"{stem}.svg").getroot()
         assert root.tag.endswith("svg")
+        assert (tmp_path / "plots" / f"{stem}.pdf").read_bytes()[:5] == b"%PDF-"
+        # the PNG's size is the figure's, as laid out once for every format
+        height, width = mpimg.imread(tmp_path / "plots" / f"{stem}.png").shape[:2]
+        assert width == 1020  # 3.4 in at 300 dpi
+    # a later run that asks for PNG only leaves no figure of the earlier one
+    write_plots(tmp_path, **_inputs(out))
+    assert sorted(p.name for p in (tmp_path / "plots").iterdir()) == sorted(
+        f"{s}.png" for s in stems
+    )
 
 
 def test_write_plots_returns_the_files_it_wrote(analysed, tmp_path):
@@ -104,7 +126,7 @@ def test_write_plots_returns_the_files_it_wrote(analysed, tmp_path):
     names = sorted(p.name for p in written)
     # no overlays folder in tmp_path, so no montage; contact angles for spreading
     stems = ("radius", "local_exponent", "residuals", *_angle_plot(out))
-    assert names == sorted(f"{s}.{e}" for s in stems for e in ("png", "svg"))
+    assert names == sorted(f"{s}.png" for s in stems)
     assert all(p.is_file() and p.parent == tmp_path / "plots" for p in written)
     assert not [p for p in (tmp_path / "plots").iterdir() if p.name.startswith(".")]
 

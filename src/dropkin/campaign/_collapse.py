@@ -374,8 +374,8 @@ def curve_to_dict(curve: MasterCurve) -> dict:
     }
 
 
-def write_collapse(curves, dest) -> list[Path]:
-    """Write ``collapse.json`` and a figure per regime into `dest`; the paths."""
+def write_collapse(curves, dest, formats=("png",)) -> list[Path]:
+    """Write ``collapse.json`` and a figure per regime (in `formats`) into `dest`; the paths."""
     import json
 
     from .._atomic import write_text_atomic
@@ -385,7 +385,7 @@ def write_collapse(curves, dest) -> list[Path]:
     dest.mkdir(parents=True, exist_ok=True)
     written = []
     for curve in curves:
-        written += write_master_curve(curve, dest)
+        written += write_master_curve(curve, dest, formats)
     data = {"curves": [curve_to_dict(c) for c in curves]}
     written.append(
         write_text_atomic(dest / "collapse.json", json.dumps(data, indent=2, allow_nan=False))

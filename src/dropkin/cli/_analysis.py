@@ -12,6 +12,7 @@ from ._options import (
     measure_options,
     options_named,
     output_option,
+    plot_formats_option,
     recording_overrides,
     sample_options,
     sample_overrides,
@@ -49,8 +50,11 @@ def _report_verdict(verdict, series, radius_csv, out) -> None:
 )
 @sample_options
 @fit_options
+@plot_formats_option
 @click.pass_context
-def fit_command(ctx, radius_csv, out, experiment, t0, seed, bootstrap, initial_radius, **sample):
+def fit_command(
+    ctx, radius_csv, out, experiment, t0, seed, bootstrap, initial_radius, plot_formats, **sample
+):
     """Fit the scaling regimes to RADIUS_CSV (from dropkin measure) and give the
     verdict: fit.json, plots/ and a self-contained report.html, as analyze.
 
@@ -71,6 +75,7 @@ def fit_command(ctx, radius_csv, out, experiment, t0, seed, bootstrap, initial_r
             experiment=experiment,
             overrides=overrides,
             liquids=sample["liquids_file"],
+            plot_formats=plot_formats,
             **fit,
         )
     detail_experiment(ctx, measurement.experiment.path)
@@ -82,6 +87,7 @@ def fit_command(ctx, radius_csv, out, experiment, t0, seed, bootstrap, initial_r
 @measure_options
 @sample_options
 @fit_options
+@plot_formats_option
 @click.pass_context
 def analyze_command(ctx, source, out, **options):
     """Measure SOURCE, then fit the regimes: radius.csv, measure.json, fit.json,

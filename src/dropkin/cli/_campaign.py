@@ -7,7 +7,7 @@ import click
 from .._words import count
 from ._console import verbosity
 from ._main import EXIT_BATCH_PARTIAL, EXIT_INTERRUPTED
-from ._options import output_option
+from ._options import output_option, plot_formats_option
 
 __all__ = ["batch_command", "collapse_command"]
 
@@ -121,7 +121,8 @@ def batch_command(ctx, manifest, out, jobs, scheduler, redo, allow_outside_paths
     type=click.Path(file_okay=False, path_type=str),
     help="Folder for collapse.json and the figures (default: OUT/collapse).",
 )
-def collapse_command(out, regime, dest):
+@plot_formats_option
+def collapse_command(out, regime, dest, plot_formats):
     """Master curve of a campaign (the OUT of dropkin batch): r/R against t/tau,
     the collective prefactor, and the recordings that do not collapse."""
     from pathlib import Path
@@ -130,7 +131,7 @@ def collapse_command(out, regime, dest):
 
     curves = master_curves(out, regime=regime)
     dest = Path(dest) if dest else Path(out) / "collapse"
-    write_collapse(curves, dest)
+    write_collapse(curves, dest, plot_formats)
     for curve in curves:
         lo, hi = curve.pooled.ci
         published = "" if curve.published is None else f" (published {curve.published:g})"

@@ -234,6 +234,31 @@ def fit_options(command):
     return _apply(command, options)
 
 
+def _plot_formats(ctx, param, value):
+    from ..report._style import PLOT_FORMATS
+
+    formats = tuple(dict.fromkeys(v.strip().lower() for v in value.split(",") if v.strip()))
+    wrong = [v for v in formats if v not in PLOT_FORMATS]
+    if wrong or not formats:
+        raise click.BadParameter(
+            f"{value!r}: formats are {', '.join(PLOT_FORMATS)}, separated by commas, e.g. png,svg"
+        )
+    return formats
+
+
+def plot_formats_option(command):
+    """``--plot-formats``: the file formats of the figures (PNG unless asked)."""
+    option = click.option(
+        "--plot-formats",
+        default="png",
+        show_default=True,
+        callback=_plot_formats,
+        help="Formats of the figures, comma-separated, of png, svg, pdf (e.g. png,svg); "
+        "the report shows the PNG, which an analysis always writes.",
+    )
+    return option(command)
+
+
 def sample_options(command):
     """Options that describe the sample (they override the experiment file) and
     ``--liquids``, a user's liquid library."""
@@ -318,7 +343,7 @@ def analysis_settings(*, background, roi, threshold, jobs, chunk_size, overlay_c
     given, :func:`fit_options` (other options in `others` are ignored)."""
     from ..pipeline._steps import AnalysisSettings, parse_roi
 
-    keys = ("t0", "seed", "bootstrap", "initial_radius")
+    keys = ("t0", "seed", "bootstrap", "initial_radius", "plot_formats")
     fit = {key: others[key] for key in keys if key in others}
     return AnalysisSettings(
         roi=parse_roi(roi),

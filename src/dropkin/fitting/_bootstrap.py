@@ -12,9 +12,11 @@ outside its own interval (the resamples disagree with the fit), the record
 names it in ``outside_ci`` instead of widening the interval to hide it.
 
 Fits that are linear at a given origin (power laws, the log law) are
-refitted all at once, batched in numpy (:func:`._linear.profile_many`: a grid
-of origins across the bracket, then a golden-section search, for every
-resample in step); blends are refitted one by one with scipy, t0 one of the
+refitted in blocks of resamples, batched in numpy (:func:`._linear.profile_many`:
+a grid of origins across the bracket, then a golden-section search, for every
+resample of a block in step; a block holds at most :data:`_BLOCK_VALUES`
+values per array, so memory does not grow with the number of points times
+the resamples); blends are refitted one by one with scipy, t0 one of the
 parameters of the least-squares refit.
 """
 
@@ -36,6 +38,7 @@ __all__ = [
     "percentile_interval",
     "outside",
     "resampled_residuals",
+    "resample_chunks",
 ]
 
 _PERCENTILES = (2.5, 97.5)
@@ -86,9 +89,45 @@ def _std(values) -> float:
         return float(np.std(values, ddof=1))
 
 
+#: Most values in one block of the batched refits: resamples x points x origins tried at
+#: once by :func:`._linear.profile_many` (its grid). 2**22 doubles are 32 MB an array.
+_BLOCK_VALUES = 1 << 22
+
+
+def resample_chunks(n: int, points: int) -> list[int]:
+    """Sizes of the blocks of resamples refitted together: at most :data:`_BLOCK_VALUES`
+    values per array whatever the number of points (at least one resample a block)."""
+    from ._linear import _T0_GRID
+
+    per = max(1, _BLOCK_VALUES // max(1, points * _T0_GRID))
+    return [min(per, n - start) for start in range(0, n, per)]
+
+
 def _method(refitted) -> str:
     origin = "; t0 refitted in its bracket in every resample" if refitted else "; t0 fixed"
     return f"residual bootstrap, 2.5–97.5 percentiles{origin}"
+
+
+def _refit_linear(data, fitted, e, model, fit, f_scale, n, rng):
+    """t0 (n,) and β (n, p) refitted to `n` resamples, a block of them at a time.
+
+    The residuals are drawn block by block: the same draws as one (n, N)
+    array, so the result does not depend on the block size.
+    """
+    lo, hi = fit.t0_bracket
+    t0s, betas = [np.zeros(0)], [np.zeros((0, model.n_linear))]
+    for k in resample_chunks(n, len(data)):
+        idx = rng.integers(0, len(data), size=(k, len(data)))
+        y_star = fitted[None, :] + data.s[None, :] * e[idx]
+        if fit.t0_free:
+            t0, beta = profile_many(data.time, y_star, data.s, model, lo, hi, f_scale, fit.loss)
+        else:
+            t0 = np.full(k, fit.t0)
+            xb, offb = model.design(np.broadcast_to(data.time - fit.t0, y_star.shape))
+            beta, _, _ = solve_linear(xb, y_star - offb, data.s, f_scale, fit.loss)
+        t0s.append(t0)
+        betas.append(beta)
+    return np.concatenate(t0s), np.concatenate(betas)
 
 
 def bootstrap_linear(series: Series, model: LinearModel, fit: LawFit, *, f_scale, n, seed):
@@ -107,14 +146,7 @@ def bootstrap_linear(series: Series, model: LinearModel, fit: LawFit, *, f_scale
         beta.append(fit.exponent)
     fitted = x @ np.asarray(beta) + off
     e = resampled_residuals(data.y, fitted, data.s)
-    idx = rng.integers(0, len(data), size=(n, len(data)))
-    y_star = fitted[None, :] + data.s[None, :] * e[idx]
-    if fit.t0_free:
-        t0s, beta_b = profile_many(data.time, y_star, data.s, model, lo, hi, f_scale, fit.loss)
-    else:
-        t0s = np.full(n, fit.t0)
-        xb, offb = model.design(np.broadcast_to(data.time - fit.t0, y_star.shape))
-        beta_b, _, _ = solve_linear(xb, y_star - offb, data.s, f_scale, fit.loss)
+    t0s, beta_b = _refit_linear(data, fitted, e, model, fit, f_scale, n, rng)
     ln_a = beta_b[:, 0]
     tp = fit.pivot_time
     if model.shape is None:

@@ -3,8 +3,10 @@
 Method (docs/physics.md §4.8): the points are averaged (weighted by ``(r/σ_r)²``)
 in bins of ``1/points_per_decade`` decade of τ = t - t0, the bin means are
 interpolated linearly onto a uniform grid of ``ln τ``, and the derivative is
-taken with a Savitzky–Golay filter (``scipy.signal.savgol_filter``,
-quadratic, a window of `window_decades`, ``deriv=1``). Its standard error
+taken with a Savitzky–Golay filter (quadratic, a window of `window_decades`,
+first derivative; the edges from the polynomial fitted to the first and last
+windows, as ``scipy.signal.savgol_filter(..., mode="interp")`` does, which the
+tests compare it with). Its standard error
 follows exactly from the linear maps (interpolation, then filter) applied to
 the bin variances. The band spans the exponent computed with t0 at the ends
 of its bracket and at its best value (compared at the same frame times),
@@ -31,8 +33,8 @@ from ._core import Series, make_series, resolve_origin
 __all__ = ["LocalExponent", "local_exponent", "exponent_plateaus"]
 
 _METHOD = (
-    "Savitzky–Golay derivative (scipy.signal.savgol_filter, order {order}, window "
-    "{window:.3g} decade) of ln r on a grid of ln τ with {ppd} points per decade "
+    "Savitzky–Golay derivative (as scipy.signal.savgol_filter, mode interp, order {order}, "
+    "window {window:.3g} decade) of ln r on a grid of ln τ with {ppd} points per decade "
     "(weighted bin means, linear interpolation); band: t0 at its bracket ends ± 2 s.e."
 )
 
@@ -95,10 +97,38 @@ def _span_decades(series: Series, t0) -> float:
     return math.log10(tau.max()) - math.log10(tau.min()) if len(tau) > 1 else 0.0
 
 
+def savgol_derivative_matrix(m: int, window: int, order: int, delta: float) -> np.ndarray:
+    """The (m, m) matrix of a Savitzky–Golay first derivative on a uniform grid.
+
+    Row i holds the weights of the points in the derivative at point i: the
+    slope at the centre of the polynomial of degree `order` fitted by least
+    squares to the `window` (odd) points around i; within half a window of
+    either end, the slope at i of the polynomial fitted to the first (last)
+    `window` points. `delta` is the grid step.
+    """
+    half = window // 2
+    powers = np.arange(order + 1)
+    # least-squares coefficients of the polynomial in z (points from the window's start)
+    z = np.arange(window, dtype=float)
+    coeffs = np.linalg.pinv(z[:, None] ** powers)  # (order + 1, window)
+
+    def slope_rows(at):  # d/dz of the fitted polynomial at positions `at` of the window
+        at = np.asarray(at, float)[:, None]
+        d = powers[1:] * at ** (powers[1:] - 1)  # (len(at), order)
+        return d @ coeffs[1:] / delta
+
+    out = np.zeros((m, m))
+    centre = slope_rows([half])[0]
+    rows = np.arange(half, m - half)
+    cols = rows[:, None] + np.arange(-half, half + 1)
+    out[rows[:, None], cols] = centre
+    out[:half, :window] = slope_rows(np.arange(half))
+    out[m - half :, m - window :] = slope_rows(np.arange(window - half, window))
+    return out
+
+
 def _grid_exponent(series: Series, t0, ppd, window_points, order):
     """(grid ln τ, n_loc, s.e.) for one origin; None when too short."""
-    from scipy.signal import savgol_filter
-
     tau = series.time - t0
     keep = tau > 0
     x = np.log(tau[keep])
@@ -124,7 +154,7 @@ def _grid_exponent(series: Series, t0, ppd, window_points, order):
     interp[np.arange(m), j] = 1.0 - frac
     interp[np.arange(m), j + 1] += frac
     window = min(window_points, m if m % 2 else m - 1)
-    filt = savgol_filter(np.eye(m), window, order, deriv=1, delta=h, axis=0, mode="interp")
+    filt = savgol_derivative_matrix(m, window, order, h)
     lin = filt @ interp
     n_loc = lin @ yb
     err = np.sqrt((lin**2) @ vb)

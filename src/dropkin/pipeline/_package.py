@@ -74,7 +74,7 @@ _FOLDERS = {
     "overlays": ("overlay", "A frame with the measured outline drawn over it."),
 }
 
-_IMAGE_TYPES = {".png": "image/png", ".svg": "image/svg+xml"}
+_IMAGE_TYPES = {".png": "image/png", ".svg": "image/svg+xml", ".pdf": "application/pdf"}
 
 
 def _header(path: Path) -> list[str]:

@@ -39,10 +39,13 @@ def resolved_settings(settings, folder) -> dict:
     return resolved
 
 
-def measure_provenance(measured: dict, rec, experiment_file, settings, folder) -> dict:
+def measure_provenance(
+    measured: dict, rec, experiment_file, settings, folder, sha256=None
+) -> dict:
     """``measure.json``'s provenance: `measured` (the measurement's own: tool,
     version, options) with the paths made relative to `folder`, the
-    recording's SHA-256, where its frame rate came from, the settings as
+    recording's SHA-256 (`sha256`, the digest of the bytes measured; hashed
+    here when not given), where its frame rate came from, the settings as
     resolved and the run."""
     from ..measure import recording_sha256
 
@@ -51,7 +54,7 @@ def measure_provenance(measured: dict, rec, experiment_file, settings, folder) -
         **measured,
         "input": relative_path(source, folder),
         "input_absolute": str(source.absolute()),
-        "sha256": recording_sha256(rec),
+        "sha256": recording_sha256(rec) if sha256 is None else sha256,
         "experiment_file": None
         if experiment_file is None
         else relative_path(experiment_file, folder),

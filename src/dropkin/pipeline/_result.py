@@ -185,6 +185,7 @@ def measure_series(exp, rec, settings: AnalysisSettings = _DEFAULTS, *, progress
         ``preparation``, ``contact`` and ``edges`` (see :func:`dropkin.measure.measure`).
     """
     from ..measure import MeasureOptions, measure
+    from ..measure._hash import PinnedInput
 
     background = None
     if settings.background is not None:
@@ -198,7 +199,13 @@ def measure_series(exp, rec, settings: AnalysisSettings = _DEFAULTS, *, progress
         jobs=settings.jobs,
         background=background,
     )
-    return measure(rec, exp, options=options, progress=progress, keep_edges=True)
+    # the input is hashed beside the measurement, from files held open for it;
+    # a file that changes meanwhile fails the run before anything is written
+    with PinnedInput(rec) as pinned:
+        series, extras = measure(rec, exp, options=options, progress=progress, keep_edges=True)
+        extras["sha256"] = pinned.sha256()
+        extras["input_identity"] = pinned.identities
+    return series, extras
 
 
 def write_measured(
@@ -220,11 +227,15 @@ def write_measured(
     the series as written.
     """
     from .._atomic import remove_temporaries
+    from ..errors import RecordingError
+    from ..measure._hash import check_unchanged
     from ..report._overlays import write_overlays
     from ..series import write_series
 
     folder = published_dir or out
-    provenance = measure_provenance(measured.provenance, rec, experiment_file, settings, folder)
+    provenance = measure_provenance(
+        measured.provenance, rec, experiment_file, settings, folder, sha256=extras.get("sha256")
+    )
     if sample_given(sample):
         provenance["sample_overrides"] = sample_given(sample)
     if liquids is not None:
@@ -234,7 +245,13 @@ def write_measured(
     remove_temporaries(out, out / "overlays")  # left by a run that was killed
     write_series(series, out)
     if settings.overlays:
-        write_overlays(rec, series, extras, out / "overlays", count=settings.overlays)
+        drawn = write_overlays(rec, series, extras, out / "overlays", count=settings.overlays)
+        try:  # the overlay frames are read again: from the bytes measured, or not kept
+            check_unchanged(rec, extras.get("input_identity"))
+        except RecordingError:
+            for path in drawn:
+                path.unlink(missing_ok=True)
+            raise
     return series
 
 
@@ -351,6 +368,7 @@ def write_result(
         verdict=result.verdict,
         experiment=measurement.experiment,
         overlays_dir=out / "overlays",
+        formats=result.settings.plot_formats,
     )
     write_datapackage(out)
     return replace(result, series=series, measurement=measurement)

@@ -32,6 +32,9 @@ class AnalysisSettings:
     initial_radius : bool
         Also try a finite initial radius r0 in the fits (kept when the AIC
         prefers it).
+    plot_formats : tuple of str
+        File formats of the figures (``png``, ``svg``, ``pdf``); they do not
+        change the result.
     """
 
     roi: tuple[int, int, int, int] | None = None
@@ -44,6 +47,7 @@ class AnalysisSettings:
     seed: int = 0
     bootstrap: int = 200
     initial_radius: bool = False
+    plot_formats: tuple[str, ...] = ("png",)
 
     def fit_settings(self) -> dict:
         """The keywords of the fit (:func:`~dropkin.pipeline._fit.fit_measurement`)."""

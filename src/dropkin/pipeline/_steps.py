@@ -148,7 +148,7 @@ def _fit_and_write(measurement, out, published_dir=None, experiment_file=None, *
     return verdict, numbers
 
 
-def _write_report(out, measurement, verdict) -> Path:
+def _write_report(out, measurement, verdict, plot_formats=("png",)) -> Path:
     """``OUT/plots/`` and ``OUT/report.html`` for a verdict, whether it succeeded or not.
 
     A failed or undecided fit still gets the radius plot and a report that
@@ -163,6 +163,7 @@ def _write_report(out, measurement, verdict) -> Path:
         verdict=verdict,
         experiment=measurement.experiment,
         overlays_dir=Path(measurement.path).parent / "overlays",
+        formats=plot_formats,
     )
     write_datapackage(out)
     return report
@@ -179,6 +180,7 @@ def fit_into(
     seed: int = 0,
     bootstrap: int = 200,
     initial_radius: bool = False,
+    plot_formats=("png",),
 ):
     """Fit the regimes to a ``radius.csv``; write ``fit.json``, ``plots/`` and ``report.html``.
 
@@ -205,7 +207,7 @@ def fit_into(
     )
     fit = {"t0": t0, "seed": seed, "bootstrap": bootstrap, "initial_radius": initial_radius}
     verdict, numbers = _fit_and_write(measurement, out, **fit)
-    _write_report(out, measurement, verdict)
+    _write_report(out, measurement, verdict, plot_formats)
     return verdict, numbers, measurement
 
 

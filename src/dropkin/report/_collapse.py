@@ -16,8 +16,8 @@ _MARKERS = ("o", "s", "^", "D", "v", "P", "X", "<", ">", "h")
 _LEGEND_MAX = 10
 
 
-def write_master_curve(curve, dest) -> list[Path]:
-    """Write ``collapse-<regime>.png`` and ``.svg`` into `dest`; their paths."""
+def write_master_curve(curve, dest, formats=("png",)) -> list[Path]:
+    """Write ``collapse-<regime>.png`` (and the other `formats`) into `dest`; their paths."""
     from matplotlib import rc_context
 
     with rc_context(_RC):
@@ -73,4 +73,4 @@ def write_master_curve(curve, dest) -> list[Path]:
         ax.set_ylabel("r / R")
         ax.set_title(f"{curve.regime}: {count(len(curve.members), 'recording')}")
         ax.legend(loc="upper left", fontsize=6, handlelength=1.5)
-        return _save(fig, Path(dest), f"collapse-{curve.regime}")
+        return _save(fig, Path(dest), f"collapse-{curve.regime}", formats)

@@ -358,12 +358,19 @@ def write_report(out_dir, *, series, verdict, experiment=None, overlays_dir=None
     return write_text_atomic(out_dir / "report.html", html)
 
 
-def write_analysis_report(out_dir, *, series, verdict, experiment=None, overlays_dir=None) -> Path:
-    """Write an analysis' plots (``plots/``) and its report; return the report's path.
+def write_analysis_report(
+    out_dir, *, series, verdict, experiment=None, overlays_dir=None, formats=("png",)
+) -> Path:
+    """Write an analysis' plots (``plots/``, in `formats`) and its report; return the
+    report's path.
 
-    See :func:`~dropkin.report.write_plots` and :func:`write_report`.
+    See :func:`~dropkin.report.write_plots` and :func:`write_report`; the
+    report inlines the PNG figures, so ``png`` is always written.
     """
-    write_plots(out_dir, series=series, verdict=verdict, overlays_dir=overlays_dir)
+    formats = ("png", *(f for f in formats if f != "png"))
+    write_plots(
+        out_dir, series=series, verdict=verdict, overlays_dir=overlays_dir, formats=formats
+    )
     return write_report(
         out_dir, series=series, verdict=verdict, experiment=experiment, overlays_dir=overlays_dir
     )

@@ -24,6 +24,7 @@ from ._style import (
     _RC,
     _WIDTH_IN,
     OKABE_ITO,
+    PLOT_FORMATS,
     _exponent_text,
     _finite,
     _log_axis,
@@ -45,7 +46,7 @@ _STATUS_MARKERS = {
     "after-growth": "d",
 }
 
-#: Stems of the figures that `write_plots` can write (each as .png and .svg).
+#: Stems of the figures that `write_plots` can write (each in the formats asked for).
 PLOT_NAMES = ("radius", "local_exponent", "residuals", "contact_angle", "overlays")
 
 
@@ -328,8 +329,8 @@ def figure_makers(series, verdict, overlay_files=()) -> dict:
     return figures
 
 
-def write_plots(out_dir, *, series, verdict, overlays_dir=None) -> list[Path]:
-    """Write the analysis figures into ``out_dir/plots/`` as PNG and SVG.
+def write_plots(out_dir, *, series, verdict, overlays_dir=None, formats=("png",)) -> list[Path]:
+    """Write the analysis figures into ``out_dir/plots/``, as PNG unless asked otherwise.
 
     Parameters
     ----------
@@ -342,6 +343,9 @@ def write_plots(out_dir, *, series, verdict, overlays_dir=None) -> list[Path]:
         The regime verdict; a failed one still gets the radius plot.
     overlays_dir : path, optional
         The annotated frames for the montage (default ``out_dir/overlays``).
+    formats : sequence of str
+        File formats, each of :data:`PLOT_FORMATS` (``png``, ``svg``,
+        ``pdf``); each figure is laid out once and saved in each.
 
     Returns
     -------
@@ -349,8 +353,9 @@ def write_plots(out_dir, *, series, verdict, overlays_dir=None) -> list[Path]:
         The files written: ``radius`` always; ``local_exponent`` when the
         verdict has one; ``residuals`` when it has a dominant regime;
         ``contact_angle`` when the series has contact angles; ``overlays``
-        when there are overlay frames, each as ``.png`` and ``.svg``. A figure
-        of an earlier run that does not apply any more is removed.
+        when there are overlay frames, each in every format asked for. A figure
+        of an earlier run that does not apply any more, or a format not
+        asked for, is removed.
 
     Notes
     -----
@@ -385,8 +390,8 @@ def write_plots(out_dir, *, series, verdict, overlays_dir=None) -> list[Path]:
         warnings.simplefilter("ignore", UserWarning)
         warnings.simplefilter("ignore", RuntimeWarning)
         for stem, draw in figures.items():
-            written += _save(draw(), plots_dir, stem)
+            written += _save(draw(), plots_dir, stem, formats)
     for stem in set(PLOT_NAMES) - set(figures):
-        for ext in ("png", "svg"):
+        for ext in PLOT_FORMATS:
             (plots_dir / f"{stem}.{ext}").unlink(missing_ok=True)
     return written

@@ -1,7 +1,7 @@
 """The figures' style and the number helpers the figures and the page share.
 
 Every figure is one journal column wide (3.4 in), fonts of 8 pt, written as a
-300 dpi PNG and as an SVG. Colours come from the Okabe–Ito palette, which
+300 dpi PNG (and, on request, as SVG or PDF). Colours come from the Okabe–Ito palette, which
 colour-blind readers can tell apart; each series also has its own line style
 or marker, so the figures survive a grey-scale print.
 
@@ -17,7 +17,7 @@ from pathlib import Path
 
 from .._atomic import atomic_path
 
-__all__ = ["OKABE_ITO"]
+__all__ = ["OKABE_ITO", "PLOT_FORMATS"]
 
 #: The Okabe–Ito colour-blind-safe palette (name → hex).
 OKABE_ITO = {
@@ -49,9 +49,14 @@ _RC = {
     "ytick.major.width": 0.6,
     "legend.frameon": False,
     "svg.hashsalt": "dropkin",
-    "savefig.bbox": "tight",
-    "savefig.pad_inches": 0.02,
+    # the constrained layout is computed once per figure (:func:`_save`); a
+    # tight bounding box would lay the figure out again for every file
+    "savefig.bbox": "standard",
 }
+
+#: The formats a figure can be saved in; PNG is the default, the others on request.
+PLOT_FORMATS = ("png", "svg", "pdf")
+_METADATA = {"png": {"Software": None}, "svg": {"Date": None}, "pdf": {"CreationDate": None}}
 
 
 def _finite(value) -> bool:
@@ -132,12 +137,22 @@ def _new_figure(height):
     return Figure(figsize=(_WIDTH_IN, height), dpi=_DPI, layout="constrained")
 
 
-def _save(fig, plots_dir: Path, stem: str) -> list[Path]:
+def _save(fig, plots_dir: Path, stem: str, formats=("png",)) -> list[Path]:
+    """Write `fig` as ``stem.<format>`` for each of `formats`; the files written.
+
+    The figure is laid out once (its constrained layout, then frozen), so each
+    further format costs one rendering only. The files of the other formats
+    of :data:`PLOT_FORMATS` are removed: a folder never mixes figures of two
+    runs.
+    """
+    fig.draw_without_rendering()
+    fig.set_layout_engine("none")
     written = []
-    for ext in ("png", "svg"):
+    for ext in formats:
         path = plots_dir / f"{stem}.{ext}"
-        meta = {"Software": None} if ext == "png" else {"Date": None}
         with atomic_path(path) as tmp:
-            fig.savefig(tmp, format=ext, dpi=_DPI, metadata=meta)
+            fig.savefig(tmp, format=ext, dpi=_DPI, metadata=_METADATA[ext])
         written.append(path)
+    for ext in set(PLOT_FORMATS) - set(formats):
+        (plots_dir / f"{stem}.{ext}").unlink(missing_ok=True)
     return written
