@@ -137,6 +137,7 @@ def test_open_honours_the_experiment_file_and_the_keywords():
         ("analyze", {"threshold": 2}, "threshold = 2", "0.05 to 0.95"),
         ("analyze", {"jobs": 0}, "jobs = 0", "1 to 64"),
         ("analyze", {"t0": "1 m"}, "t0 = '1 m'", "unit of s"),
+        ("analyze", {"plot_formats": "png,gif"}, "plot_formats = 'png,gif'", "png, svg, pdf"),
     ],
 )
 def test_a_bad_keyword_is_one_error_naming_it(call, keywords, named, said):

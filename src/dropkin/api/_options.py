@@ -36,7 +36,16 @@ SETTING_RANGES = {
 #: The edge level's range, as ``--threshold``'s.
 THRESHOLD_RANGE = (0.05, 0.95)
 
-_SETTINGS = ("roi", "threshold", "background", *SETTING_RANGES, "t0", "seed", "initial_radius")
+_SETTINGS = (
+    "roi",
+    "threshold",
+    "background",
+    *SETTING_RANGES,
+    "t0",
+    "seed",
+    "initial_radius",
+    "plot_formats",
+)
 #: What :func:`dropkin.open` takes.
 OPEN_KEYWORDS = ("experiment", *RECORDING_OPTION_KEYS)
 #: What :func:`dropkin.analyze` takes.
@@ -201,4 +210,23 @@ def _settings(options: dict) -> AnalysisSettings:
         seed=seed,
         bootstrap=_whole(options, "bootstrap", 200),
         initial_radius=bool(options.get("initial_radius", False)),
+        plot_formats=_plot_formats(options.get("plot_formats", "png")),
     )
+
+
+def _plot_formats(value) -> tuple[str, ...]:
+    """``plot_formats``: "png,svg" or a sequence of formats; PNG always among them."""
+    from ..report._style import PLOT_FORMATS
+
+    given = value.split(",") if isinstance(value, str) else value
+    try:
+        formats = tuple(dict.fromkeys(str(v).strip().lower() for v in given if str(v).strip()))
+    except TypeError:
+        formats = ()
+    if not formats or set(formats) - set(PLOT_FORMATS):
+        raise ExperimentError(
+            f"is not a list of {', '.join(PLOT_FORMATS)} (e.g. 'png,svg')",
+            key="plot_formats",
+            value=value,
+        )
+    return ("png", *(f for f in formats if f != "png"))
