@@ -168,9 +168,7 @@ def test_candidates_with_an_outer_fluid():
 
 
 def test_sessile_laws_need_the_contact_angle():
-    # Source: docs/physics.md §2 B1–B2: h0 ∝ (γθ⁴/η) t; t^2/3 only for θ < 90°. The θ⁴ is
-    # that of the similarity solution of Phys. Rev. Lett. 109, 184502 (2012) as a 2026
-    # seminar abstract on sessile coalescence quotes it, h0 ≃ 0.272 θ⁴ t (secondary, V).
+    # Source: docs/physics.md §2 B1–B2: h0 ∝ (γθ⁴/η) t; t^2/3 only for θ < 90°.
     assert regime("viscous-sessile").group(WATER) is None
     with pytest.raises(ExperimentError, match="contact angle"):
         regime("viscous-sessile").law(WATER)

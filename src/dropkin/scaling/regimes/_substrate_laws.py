@@ -38,8 +38,7 @@ SUBSTRATE_LAWS: tuple[Regime, ...] = (
         prefactor=None,
         prefactor_range=None,
         prefactor_status="D",
-        normalisation="θ the contact angle in radians; θ⁴ as a secondary source quotes the "
-        "similarity solution, h0 ≃ 0.272 θ⁴ t (its time unit not stated: C not adopted)",
+        normalisation="θ the contact angle in radians (θ⁴ from memory); C depends on θ",
         conditions=f"Oh ≥ {OH_VISCOUS}; lubrication (small θ)",
         reference="Phys. Rev. Lett. 109, 184502 (2012)",
         status="D",
