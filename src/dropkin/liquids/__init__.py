@@ -14,7 +14,8 @@ Built-in liquids (surface tensions are against air or the liquid's vapour):
   2008 viscosity; 0–100 °C at 0.1 MPa.
 - ``glycerol-water`` (needs ``glycerol_mass_fraction``) and ``glycerol``:
   the 2008 viscosity correlation (2 %, checked against the 1951 table), the
-  2018 density model (0.1 %), surface tension from memory of a 1963 table
+  2018 density model (0.1 %), surface tension between water's and the 2010
+  handbook fit for glycerol, shaped by a 1963 table quoted from memory
   (±1.5 mN/m); 0–100 °C.
 - ``ethanol``: the 2012 recommended surface-tension fit; density and
   viscosity as two-point forms through CoolProp values; 0–60 °C.

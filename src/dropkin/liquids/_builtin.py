@@ -92,8 +92,9 @@ _WATER_SOURCES = {
 }
 _WATER_U = {"surface_tension": 0.005, "viscosity": 0.01, "density": 1e-4}
 _GLYCEROL_SOURCES = {
-    "surface_tension": "table of 1963 for glycerol–water at 20 °C, from memory, ±1.5 mN/m "
-    "(2.5 % stated, not checked against a published table); water end IAPWS R1-76(2014)",
+    "surface_tension": "ends published: water IAPWS R1-76(2014), glycerol the PPDS fit of the "
+    "VDI Heat Atlas, 2nd ed. (2010); the shape in between from memory of a 1963 table at "
+    "20 °C, ±1.5 mN/m (2.5 % stated, not checked against a published table)",
     "viscosity": "Ind. Eng. Chem. Res. 47, 3285 (2008) correlation; 2 % = its rms deviation "
     "from the table of Ind. Eng. Chem. 43, 2117 (1951) at 0–40 °C (largest 3.5 %)",
     "density": "Exp. Fluids 59, 75 (2018); within 0.05 % of the glycerine tables, 0.1 % stated",
