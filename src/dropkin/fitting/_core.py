@@ -24,7 +24,7 @@ import numpy as np
 
 from ..errors import FitError
 
-__all__ = ["MIN_POINTS", "MIN_DECADES", "ROBUST_SCALE", "LawShape"]
+__all__ = ["MIN_POINTS", "MIN_DECADES", "ROBUST_SCALE", "LawShape", "span_problem"]
 
 #: Fewest points a fit accepts (three parameters with t0 free, five degrees of freedom left).
 MIN_POINTS = 8
@@ -236,9 +236,23 @@ def data_problem(series: Series, lo: float, hi: float, *, reference=None) -> str
     if n < MIN_POINTS:
         return f"too few points: {n} after contact, at least {MIN_POINTS} needed"
     ref = 0.5 * (lo + hi) if reference is None else reference
-    tau = series.time[after] - ref
+    return span_problem(series.time[after] - ref)
+
+
+def span_problem(tau) -> str:
+    """Why times since contact `tau` span too short a stretch to fit (``""`` when they
+    do not): at least :data:`MIN_DECADES` between the first and the last.
+
+    Examples
+    --------
+    >>> span_problem([1.0, 2.0, 3.0])
+    ''
+    >>> span_problem([1.0, 2.0])[:45]
+    'too short: the points span 0.3010 decades of '
+    """
+    tau = np.asarray(tau, dtype=np.float64)
     tau = tau[tau > 0]
-    decades = math.log10(tau[-1]) - math.log10(tau[0]) if len(tau) >= 2 else 0.0
+    decades = math.log10(tau.max()) - math.log10(tau.min()) if len(tau) >= 2 else 0.0
     if decades < MIN_DECADES:
         # Rounded down to 4 digits, so that a span just short of 1/3 never reads as
         # "0.33 ... 1/3": any span below 1/3 shows at most 0.3333 - 0.0001.

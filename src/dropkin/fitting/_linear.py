@@ -37,6 +37,7 @@ from ._core import (
     rho,
     safe_exp,
     solve_linear,
+    span_problem,
 )
 from ._records import LawFit
 
@@ -221,6 +222,11 @@ def linear_fit(series, model, lo, hi, *, loss, f_scale, reference=None) -> LawFi
     data = series.subset(series.time > hi)
     t0, beta, z, w = profile_fit(data, model, lo, hi, f_scale, loss)
     tau = data.time - t0
+    # The span was checked at the reference origin; the fitted one, elsewhere in
+    # the bracket, can shorten it below the minimum.
+    problem = span_problem(tau)
+    if problem:
+        return LawFit(False, problem + f" (at the fitted t0 = {t0:.6g} s)", law, loss=loss)
     x, off = model.design(tau)
     fitted = x @ beta + off
     n, p = len(tau), model.n_linear
