@@ -31,6 +31,7 @@ __all__ = [
     "MeasurementError",
     "FitError",
     "with_path",
+    "Terminated",
 ]
 
 _FIELDS = ("path", "key", "value", "expected", "frame")
@@ -149,3 +150,11 @@ def with_path(error: DropkinError, path) -> DropkinError:
     fields = {name: getattr(error, name) for name in _FIELDS}
     fields["path"] = path
     return _restore(type(error), error.message, fields)
+
+
+class Terminated(KeyboardInterrupt):
+    """The process was sent SIGTERM (the command line turns the signal into this).
+
+    A kind of KeyboardInterrupt, so that whatever cleans up after Ctrl-C
+    (work folders, a batch's workers) cleans up after SIGTERM too.
+    """
