@@ -126,9 +126,6 @@ def write_text_atomic(path, text: str) -> Path:
     Text from a path whose bytes are not UTF-8 (Python keeps each such byte
     as a lone surrogate) is written with each such byte as ``\\xff``.
     """
-    try:
-        data = text.encode("utf-8")
-    except UnicodeEncodeError:
-        data = text.encode("utf-8", "surrogateescape").decode("utf-8", "backslashreplace")
-        data = data.encode("utf-8")
-    return write_bytes_atomic(path, data)
+    from .errors import readable
+
+    return write_bytes_atomic(path, readable(text).encode("utf-8"))

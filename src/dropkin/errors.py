@@ -32,6 +32,7 @@ __all__ = [
     "FitError",
     "with_path",
     "Terminated",
+    "readable",
 ]
 
 _FIELDS = ("path", "key", "value", "expected", "frame")
@@ -97,8 +98,8 @@ class DropkinError(Exception):
         text = self.message
         if self.expected is not None:
             text = f"{text} (expected {self.expected})"
-        # One line, always: a newline in user text must not break a log.
-        return ": ".join([*parts, text]).replace("\n", " ")
+        # One line, always: a newline in user text must not break a log; and UTF-8.
+        return readable(": ".join([*parts, text]).replace("\n", " "))
 
     def __reduce__(self):
         fields = {name: getattr(self, name) for name in _FIELDS}
@@ -131,6 +132,28 @@ class MeasurementError(DropkinError, RuntimeError):
 
 class FitError(DropkinError, ValueError):
     """A radius series cannot be fitted because the call itself is wrong."""
+
+
+def readable(text: str) -> str:
+    """`text` as valid UTF-8: each byte of a path that is not UTF-8 written ``\\xff``.
+
+    Python reads such a byte from a file name as a lone surrogate (``\\udcff``),
+    which no UTF-8 file, terminal or database accepts.
+
+    Examples
+    --------
+    >>> print(readable("rec\\udcff\\udcfe/a.tif"))
+    rec\\xff\\xfe/a.tif
+    """
+    try:
+        text.encode("utf-8")
+        return text
+    except UnicodeEncodeError:
+        pass
+    try:
+        return text.encode("utf-8", "surrogateescape").decode("utf-8", "backslashreplace")
+    except UnicodeEncodeError:  # a surrogate no file name gives: its code point
+        return text.encode("utf-8", "backslashreplace").decode("utf-8")
 
 
 def with_path(error: DropkinError, path) -> DropkinError:

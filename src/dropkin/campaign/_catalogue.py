@@ -21,6 +21,8 @@ import os
 import sqlite3
 from pathlib import Path
 
+from ..errors import readable
+
 __all__ = [
     "CATALOGUE_NAME",
     "COLUMNS",
@@ -137,24 +139,11 @@ def _stored(name: str, value):
         return json.dumps(value)  # escapes what UTF-8 cannot carry (\udcff)
     if not isinstance(value, str):
         return value
-    try:
-        value.encode("utf-8")
+    if readable(value) is value:
         return value
-    except UnicodeEncodeError:
-        pass
     if name == "source":  # the path's own bytes, as a BLOB: nothing lost
         return os.fsencode(value)
-    # Text for people to read (an error naming the path): \xff for each such byte.
-    raw = value.encode("utf-8", "surrogateescape" if _escapable(value) else "backslashreplace")
-    return raw.decode("utf-8", "backslashreplace")
-
-
-def _escapable(text: str) -> bool:
-    try:
-        text.encode("utf-8", "surrogateescape")
-        return True
-    except UnicodeEncodeError:
-        return False
+    return readable(value)  # text for people (an error naming the path): \xff per byte
 
 
 #: Columns a reader of the catalogue relies on (collapse, reports).

@@ -16,7 +16,9 @@ import contextlib
 import dataclasses
 import json
 import shutil
+import signal
 import sqlite3
+import threading
 from collections.abc import Callable, Iterable
 from dataclasses import dataclass
 from pathlib import Path
@@ -31,7 +33,9 @@ from ._manifest import Task, read_manifest
 from ._task import (
     OLD_PREFIX,
     WORK_PREFIX,
+    analyze_task,
     input_fingerprint,
+    make_work_folder,
     publish_work,
     run_task,
     settings_sha256,
@@ -70,6 +74,18 @@ class BatchSummary:
 def _pool_rows(tasks, out_dir, jobs) -> Iterable[tuple[dict, Path | None]]:
     invocation = current_invocation()  # for the provenance, in the worker processes
     return worker_rows(tasks, out_dir, jobs, invocation)
+
+
+def _local_rows(tasks, out_dir: Path) -> Iterable[tuple[dict, Path | None]]:
+    """Analyse `tasks` in this process, one after the other; each row with its work folder."""
+    for task in tasks:
+        work = make_work_folder(out_dir, task.label)
+        try:
+            row = analyze_task(task, work, out_dir)
+        except BaseException:  # interrupted: a partial folder is never published
+            shutil.rmtree(work, ignore_errors=True)
+            raise
+        yield row, work
 
 
 def _dask_rows(tasks, out_dir, scheduler) -> Iterable[dict]:
@@ -136,15 +152,33 @@ def _is_unchanged(task: Task, previous: dict | None, out_dir: Path) -> bool:
         return False
 
 
+@contextlib.contextmanager
+def _signals_held():
+    """Hold Ctrl-C and SIGTERM back for the block (in the main thread, on POSIX): they
+    arrive when it ends, so a folder is never published without its row."""
+    held = {signal.SIGINT, signal.SIGTERM}
+    if not hasattr(signal, "pthread_sigmask") or (
+        threading.current_thread() is not threading.main_thread()
+    ):
+        yield
+        return
+    before = signal.pthread_sigmask(signal.SIG_BLOCK, held)
+    try:
+        yield
+    finally:
+        signal.pthread_sigmask(signal.SIG_SETMASK, before)
+
+
 def _record(conn, row: dict, work: Path | None, out_dir: Path) -> None:
     """Publish a recording's work folder, then write its row (a full disk: one line)."""
-    publish_work(work, out_dir, row["label"])
-    try:
-        write_row(conn, row)
-    except sqlite3.Error as exc:
-        raise DropkinError(
-            f"cannot record the row of {row['label']} ({exc})", path=out_dir / CATALOGUE_NAME
-        ) from None
+    with _signals_held():
+        publish_work(work, out_dir, row["label"])
+        try:
+            write_row(conn, row)
+        except sqlite3.Error as exc:
+            raise DropkinError(
+                f"cannot record the row of {row['label']} ({exc})", path=out_dir / CATALOGUE_NAME
+            ) from None
 
 
 def _catalogue_rows(rows, conn, summary: BatchSummary, report, out_dir: Path) -> None:
@@ -234,7 +268,7 @@ def _run_locked(campaign, out_dir: Path, jobs, scheduler, redo, report) -> Batch
         elif jobs > 1 and len(pending) > 1:
             rows = _pool_rows(pending, out_dir, min(jobs, len(pending)))
         else:
-            rows = ((run_task(task, out_dir), None) for task in pending)
+            rows = _local_rows(pending, out_dir)
         _catalogue_rows(rows, conn, summary, report, out_dir)
     except KeyboardInterrupt as exc:
         summary.interrupted = True

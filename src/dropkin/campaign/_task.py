@@ -22,7 +22,7 @@ from pathlib import Path
 
 from .._provenance import invoked
 from .._version import __version__
-from ..errors import DropkinError
+from ..errors import DropkinError, readable
 from ..pipeline import analyze_into, open_source
 from ._manifest import Task
 from ._row import sample_columns, series_columns, verdict_columns
@@ -145,7 +145,7 @@ def failed_row(task: Task, message: str) -> dict:
         "started_utc": now,
         "finished_utc": now,
         "status": "failed",
-        "error": f"{task.source}: {message}",
+        "error": readable(f"{task.source}: {message}"),
     }
 
 
@@ -204,11 +204,11 @@ def analyze_task(task: Task, work: Path, out_dir: Path, invocation: dict | None 
         row["input_sha256"] = _measured_sha256(work)
     except OSError as exc:  # the machine's fault (a full disk): one line naming the file
         where = exc.filename if exc.filename is not None else work
-        row["status"], row["error"] = "failed", f"{where}: {exc.strerror or exc}"
+        row["status"], row["error"] = "failed", readable(f"{where}: {exc.strerror or exc}")
     except Exception as exc:  # noqa: BLE001 - one recording must not stop a campaign
         row["status"] = "failed"
         row["error"] = f"internal error, please report it: {type(exc).__name__}: {exc}"
-        row["error"] = row["error"].replace("\n", " ")
+        row["error"] = readable(row["error"].replace("\n", " "))
     row["finished_utc"] = _now()
     row["seconds"] = round(time.perf_counter() - clock, 3)
     return row

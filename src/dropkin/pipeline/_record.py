@@ -88,11 +88,6 @@ def _run(folder) -> dict:
     return {**run_record(), "working_directory": relative_path(os.getcwd(), folder)}
 
 
-def _readable(path) -> str:
-    """A path as UTF-8 text, each byte that is not UTF-8 written ``\\xff``."""
-    return os.fsencode(path).decode("utf-8", "backslashreplace")
-
-
 def write_experiment_copy(out: Path, exp, source, published_dir) -> Path:
     """``OUT/experiment.toml``, the experiment as used; the path the provenance names."""
     from .._atomic import write_text_atomic
@@ -101,7 +96,6 @@ def write_experiment_copy(out: Path, exp, source, published_dir) -> Path:
     out.mkdir(parents=True, exist_ok=True)
     write_text_atomic(
         out / "experiment.toml",
-        # a comment: a path's bytes that are not UTF-8 read \xff there
-        experiment_to_toml(exp, header=f"The experiment as analysed, for {_readable(source)}"),
+        experiment_to_toml(exp, header=f"The experiment as analysed, for {source}"),
     )
     return Path(published_dir if published_dir is not None else out) / "experiment.toml"
