@@ -84,7 +84,8 @@ def atomic_path(path, *, suffix: str | None = None):
     The temporary name is ``.dropkin-tmp.<stem>.<random><suffix>``: it keeps
     the final suffix (so writers that choose a format from the suffix, such
     as OpenCV, still work). On an exception it is removed and `path` is left
-    as it was.
+    as it was. An ``OSError`` that names no file (a full disk: ``write()``
+    and ``close()`` know only a descriptor) is raised again naming `path`.
     """
     path = Path(path)
     path.parent.mkdir(parents=True, exist_ok=True)
@@ -100,6 +101,10 @@ def atomic_path(path, *, suffix: str | None = None):
     try:
         yield tmp
         os.replace(tmp, path)
+    except OSError as exc:
+        if exc.filename is not None or exc.errno is None:
+            raise
+        raise OSError(exc.errno, exc.strerror, str(path)) from exc
     finally:
         with contextlib.suppress(FileNotFoundError):
             tmp.unlink()
@@ -116,5 +121,11 @@ def write_bytes_atomic(path, data: bytes) -> Path:
 
 
 def write_text_atomic(path, text: str) -> Path:
-    """Write `text` (UTF-8) to `path` atomically; return `path`."""
-    return write_bytes_atomic(path, text.encode("utf-8"))
+    """Write `text` (UTF-8) to `path` atomically; return `path`.
+
+    Text from a path whose bytes are not UTF-8 (Python keeps each such byte
+    as a lone surrogate) is written with each such byte as ``\\xff``.
+    """
+    from .errors import readable
+
+    return write_bytes_atomic(path, readable(text).encode("utf-8"))

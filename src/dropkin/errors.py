@@ -31,6 +31,8 @@ __all__ = [
     "MeasurementError",
     "FitError",
     "with_path",
+    "Terminated",
+    "readable",
 ]
 
 _FIELDS = ("path", "key", "value", "expected", "frame")
@@ -96,8 +98,8 @@ class DropkinError(Exception):
         text = self.message
         if self.expected is not None:
             text = f"{text} (expected {self.expected})"
-        # One line, always: a newline in user text must not break a log.
-        return ": ".join([*parts, text]).replace("\n", " ")
+        # One line, always: a newline in user text must not break a log; and UTF-8.
+        return readable(": ".join([*parts, text]).replace("\n", " "))
 
     def __reduce__(self):
         fields = {name: getattr(self, name) for name in _FIELDS}
@@ -132,6 +134,28 @@ class FitError(DropkinError, ValueError):
     """A radius series cannot be fitted because the call itself is wrong."""
 
 
+def readable(text: str) -> str:
+    """`text` as valid UTF-8: each byte of a path that is not UTF-8 written ``\\xff``.
+
+    Python reads such a byte from a file name as a lone surrogate (``\\udcff``),
+    which no UTF-8 file, terminal or database accepts.
+
+    Examples
+    --------
+    >>> print(readable("rec\\udcff\\udcfe/a.tif"))
+    rec\\xff\\xfe/a.tif
+    """
+    try:
+        text.encode("utf-8")
+        return text
+    except UnicodeEncodeError:
+        pass
+    try:
+        return text.encode("utf-8", "surrogateescape").decode("utf-8", "backslashreplace")
+    except UnicodeEncodeError:  # a surrogate no file name gives: its code point
+        return text.encode("utf-8", "backslashreplace").decode("utf-8")
+
+
 def with_path(error: DropkinError, path) -> DropkinError:
     """A copy of `error` that names `path`, when it names no file yet.
 
@@ -149,3 +173,11 @@ def with_path(error: DropkinError, path) -> DropkinError:
     fields = {name: getattr(error, name) for name in _FIELDS}
     fields["path"] = path
     return _restore(type(error), error.message, fields)
+
+
+class Terminated(KeyboardInterrupt):
+    """The process was sent SIGTERM (the command line turns the signal into this).
+
+    A kind of KeyboardInterrupt, so that whatever cleans up after Ctrl-C
+    (work folders, a batch's workers) cleans up after SIGTERM too.
+    """

@@ -7,13 +7,21 @@ is then only the closest), its status (``complete`` or ``failed``) and error
 message, the SHA-256 of its input and of its settings, and the dropkin
 version. Each row is written in a transaction of its own, so a killed batch
 keeps every row it finished. Values are SI floats; intervals are 95 %.
+
+Paths are text (UTF-8). A recording whose path is not valid UTF-8 (bytes
+such as ``\xff`` in a folder's name) has its ``source`` stored as the path's
+bytes, a BLOB (:func:`os.fsdecode` gives the path back); in the other text
+columns (the error message) each such byte reads ``\xff``.
 """
 
 from __future__ import annotations
 
 import json
+import os
 import sqlite3
 from pathlib import Path
+
+from ..errors import readable
 
 __all__ = [
     "CATALOGUE_NAME",
@@ -85,18 +93,28 @@ TIMING_COLUMNS = ("started_utc", "finished_utc", "seconds")
 
 
 def open_catalogue(out_dir) -> sqlite3.Connection:
-    """Open (creating if needed) the catalogue of a campaign's output folder."""
+    """Open (creating if needed) the catalogue of a campaign's output folder.
+
+    Raises :class:`~dropkin.errors.DropkinError` naming the file when it
+    cannot be opened or written (a full disk, a file that is not SQLite).
+    """
     path = Path(out_dir) / CATALOGUE_NAME
     path.parent.mkdir(parents=True, exist_ok=True)
     conn = sqlite3.connect(path, timeout=30.0)
     conn.row_factory = sqlite3.Row
-    with conn:
-        conn.execute("CREATE TABLE IF NOT EXISTS meta (key TEXT PRIMARY KEY, value TEXT)")
-        conn.execute(
-            "INSERT OR IGNORE INTO meta VALUES ('schema_version', ?)", (str(SCHEMA_VERSION),)
-        )
-        columns = ", ".join(f"{name} {kind}" for name, kind in COLUMNS)
-        conn.execute(f"CREATE TABLE IF NOT EXISTS recordings ({columns})")
+    try:
+        with conn:
+            conn.execute("CREATE TABLE IF NOT EXISTS meta (key TEXT PRIMARY KEY, value TEXT)")
+            conn.execute(
+                "INSERT OR IGNORE INTO meta VALUES ('schema_version', ?)", (str(SCHEMA_VERSION),)
+            )
+            columns = ", ".join(f"{name} {kind}" for name, kind in COLUMNS)
+            conn.execute(f"CREATE TABLE IF NOT EXISTS recordings ({columns})")
+    except sqlite3.Error as exc:
+        conn.close()
+        from ..errors import DropkinError
+
+        raise DropkinError(f"cannot be opened or written ({exc})", path=path) from None
     return conn
 
 
@@ -105,14 +123,27 @@ def write_row(conn: sqlite3.Connection, row: dict) -> None:
     unknown = set(row) - set(COLUMN_NAMES)
     if unknown:  # pragma: no cover - a programming error, not the user's
         raise KeyError(f"not catalogue columns: {sorted(unknown)}")
-    values = [row.get(name) for name in COLUMN_NAMES]
-    values = [json.dumps(v) if isinstance(v, list | dict) else v for v in values]
+    values = [_stored(name, row.get(name)) for name in COLUMN_NAMES]
     marks = ", ".join("?" for _ in COLUMN_NAMES)
     with conn:
         conn.execute(
             f"INSERT OR REPLACE INTO recordings ({', '.join(COLUMN_NAMES)}) VALUES ({marks})",
             values,
         )
+
+
+def _stored(name: str, value):
+    """A value as SQLite stores it: lists and tables as JSON; text that is not valid
+    UTF-8 (a path's undecodable bytes, as Python decodes them) made storable."""
+    if isinstance(value, list | dict):
+        return json.dumps(value)  # escapes what UTF-8 cannot carry (\udcff)
+    if not isinstance(value, str):
+        return value
+    if readable(value) is value:
+        return value
+    if name == "source":  # the path's own bytes, as a BLOB: nothing lost
+        return os.fsencode(value)
+    return readable(value)  # text for people (an error naming the path): \xff per byte
 
 
 #: Columns a reader of the catalogue relies on (collapse, reports).

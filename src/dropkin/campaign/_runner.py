@@ -17,17 +17,30 @@ import dataclasses
 import json
 import shutil
 import signal
+import sqlite3
+import threading
 from collections.abc import Callable, Iterable
 from dataclasses import dataclass
 from pathlib import Path
 
 from .._provenance import current_invocation
-from ..errors import DropkinError
+from ..errors import DropkinError, Terminated
 from ..measure import recording_sha256
 from ..pipeline import open_source
-from ._catalogue import open_catalogue, read_rows, write_row
+from ._catalogue import CATALOGUE_NAME, open_catalogue, read_rows, write_row
+from ._lock import batch_lock
 from ._manifest import Task, read_manifest
-from ._task import OLD_PREFIX, WORK_PREFIX, input_fingerprint, run_task, settings_sha256
+from ._task import (
+    OLD_PREFIX,
+    WORK_PREFIX,
+    analyze_task,
+    input_fingerprint,
+    make_work_folder,
+    publish_work,
+    run_task,
+    settings_sha256,
+)
+from ._workers import worker_rows
 
 __all__ = ["BatchSummary", "run_batch"]
 
@@ -45,7 +58,9 @@ class BatchSummary:
     failed : list of (str, str)
         Labels that failed, with their messages.
     interrupted : bool
-        Whether the batch was stopped before the end.
+        Whether the batch was stopped before the end (Ctrl-C or SIGTERM).
+    terminated : bool
+        Whether that was SIGTERM (:class:`dropkin.errors.Terminated`).
     """
 
     total: int
@@ -53,29 +68,24 @@ class BatchSummary:
     skipped: list[str] = dataclasses.field(default_factory=list)
     failed: list[tuple[str, str]] = dataclasses.field(default_factory=list)
     interrupted: bool = False
+    terminated: bool = False
 
 
-def _ignore_sigint() -> None:
-    signal.signal(signal.SIGINT, signal.SIG_IGN)
+def _pool_rows(tasks, out_dir, jobs) -> Iterable[tuple[dict, Path | None]]:
+    invocation = current_invocation()  # for the provenance, in the worker processes
+    return worker_rows(tasks, out_dir, jobs, invocation)
 
 
-def _pool_rows(tasks, out_dir, jobs) -> Iterable[dict]:
-    import multiprocessing
-
-    pool = multiprocessing.get_context().Pool(jobs, initializer=_ignore_sigint)
-    try:
-        invocation = current_invocation()  # for the provenance, in the worker processes
-        pairs = [(t, str(out_dir), invocation) for t in tasks]
-        yield from pool.imap_unordered(_run_pair, pairs)
-        pool.close()
-    finally:
-        pool.terminate()
-        pool.join()
-
-
-def _run_pair(pair):
-    task, out_dir, invocation = pair
-    return run_task(task, out_dir, invocation=invocation)
+def _local_rows(tasks, out_dir: Path) -> Iterable[tuple[dict, Path | None]]:
+    """Analyse `tasks` in this process, one after the other; each row with its work folder."""
+    for task in tasks:
+        work = make_work_folder(out_dir, task.label)
+        try:
+            row = analyze_task(task, work, out_dir)
+        except BaseException:  # interrupted: a partial folder is never published
+            shutil.rmtree(work, ignore_errors=True)
+            raise
+        yield row, work
 
 
 def _dask_rows(tasks, out_dir, scheduler) -> Iterable[dict]:
@@ -107,7 +117,7 @@ def _dask_rows(tasks, out_dir, scheduler) -> Iterable[dict]:
             for i, t in enumerate(tasks)
         ]
         for future in as_completed(futures):
-            yield future.result()
+            yield future.result(), None  # published by the worker
     finally:
         with contextlib.suppress(Exception):
             client.cancel(futures)
@@ -142,11 +152,40 @@ def _is_unchanged(task: Task, previous: dict | None, out_dir: Path) -> bool:
         return False
 
 
-def _catalogue_rows(rows, conn, summary: BatchSummary, report) -> None:
+@contextlib.contextmanager
+def _signals_held():
+    """Hold Ctrl-C and SIGTERM back for the block (in the main thread, on POSIX): they
+    arrive when it ends, so a folder is never published without its row."""
+    held = {signal.SIGINT, signal.SIGTERM}
+    if not hasattr(signal, "pthread_sigmask") or (
+        threading.current_thread() is not threading.main_thread()
+    ):
+        yield
+        return
+    before = signal.pthread_sigmask(signal.SIG_BLOCK, held)
+    try:
+        yield
+    finally:
+        signal.pthread_sigmask(signal.SIG_SETMASK, before)
+
+
+def _record(conn, row: dict, work: Path | None, out_dir: Path) -> None:
+    """Publish a recording's work folder, then write its row (a full disk: one line)."""
+    with _signals_held():
+        publish_work(work, out_dir, row["label"])
+        try:
+            write_row(conn, row)
+        except sqlite3.Error as exc:
+            raise DropkinError(
+                f"cannot record the row of {row['label']} ({exc})", path=out_dir / CATALOGUE_NAME
+            ) from None
+
+
+def _catalogue_rows(rows, conn, summary: BatchSummary, report, out_dir: Path) -> None:
     """Write each row to the catalogue as it comes; count it in the summary."""
     try:
-        for row in rows:
-            write_row(conn, row)
+        for row, work in rows:
+            _record(conn, row, work, out_dir)
             if row["status"] == "complete":
                 summary.done.append(row["label"])
             else:
@@ -205,7 +244,13 @@ def run_batch(
     campaign = read_manifest(manifest, allow_outside=allow_outside)
     out_dir = Path(out_dir)
     out_dir.mkdir(parents=True, exist_ok=True)
-    _clean_leftovers(out_dir)
+    with batch_lock(out_dir):
+        return _run_locked(campaign, out_dir, jobs, scheduler, redo, report)
+
+
+def _run_locked(campaign, out_dir: Path, jobs, scheduler, redo, report) -> BatchSummary:
+    """:func:`run_batch` once OUT's lock is held."""
+    _clean_leftovers(out_dir)  # an earlier run's, which is over: the lock says so
     conn = open_catalogue(out_dir)
     summary = BatchSummary(total=len(campaign.tasks))
     try:
@@ -223,10 +268,11 @@ def run_batch(
         elif jobs > 1 and len(pending) > 1:
             rows = _pool_rows(pending, out_dir, min(jobs, len(pending)))
         else:
-            rows = (run_task(task, out_dir) for task in pending)
-        _catalogue_rows(rows, conn, summary, report)
-    except KeyboardInterrupt:
+            rows = _local_rows(pending, out_dir)
+        _catalogue_rows(rows, conn, summary, report, out_dir)
+    except KeyboardInterrupt as exc:
         summary.interrupted = True
+        summary.terminated = isinstance(exc, Terminated)
         _clean_leftovers(out_dir)
     finally:
         conn.close()

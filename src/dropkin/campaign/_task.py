@@ -22,12 +22,22 @@ from pathlib import Path
 
 from .._provenance import invoked
 from .._version import __version__
-from ..errors import DropkinError
+from ..errors import DropkinError, readable
 from ..pipeline import analyze_into, open_source
 from ._manifest import Task
 from ._row import sample_columns, series_columns, verdict_columns
 
-__all__ = ["run_task", "settings_sha256", "input_fingerprint", "WORK_PREFIX", "OLD_PREFIX"]
+__all__ = [
+    "run_task",
+    "analyze_task",
+    "failed_row",
+    "make_work_folder",
+    "publish_work",
+    "settings_sha256",
+    "input_fingerprint",
+    "WORK_PREFIX",
+    "OLD_PREFIX",
+]
 
 WORK_PREFIX = ".work-"
 OLD_PREFIX = ".old-"
@@ -117,19 +127,50 @@ def _analyze(task: Task, work: Path, out_dir: Path):
     )
 
 
-def run_task(task: Task, out_dir, invocation: dict | None = None) -> dict:
-    """Analyse one recording of a campaign into ``OUT/<label>``; its catalogue row.
+def make_work_folder(out_dir: Path, label: str) -> Path:
+    """A new hidden work folder ``OUT/.work-<label>-*`` for one recording (mode by umask)."""
+    work = Path(tempfile.mkdtemp(prefix=f"{WORK_PREFIX}{label}-", dir=out_dir))
+    work.chmod(_folder_mode())  # mkdtemp makes it private (0700); the umask decides
+    return work
+
+
+def failed_row(task: Task, message: str) -> dict:
+    """The row of a recording whose analysis ended without one (its worker died)."""
+    now = _now()
+    return {
+        "label": task.label,
+        "source": task.source,
+        "dropkin_version": __version__,
+        "output": task.label,
+        "started_utc": now,
+        "finished_utc": now,
+        "status": "failed",
+        "error": readable(f"{task.source}: {message}"),
+    }
+
+
+def publish_work(work: Path | None, out_dir: Path, label: str) -> None:
+    """Publish a work folder as ``OUT/<label>`` (an empty one is removed instead)."""
+    if work is None:
+        return
+    if any(work.iterdir()):
+        _publish(work, out_dir / label)
+    else:
+        shutil.rmtree(work, ignore_errors=True)
+
+
+def analyze_task(task: Task, work: Path, out_dir: Path, invocation: dict | None = None) -> dict:
+    """Analyse one recording into the work folder `work`; its catalogue row.
 
     `invocation` is the command line's record for the provenance
     (:func:`dropkin._provenance.current_invocation`), handed over to a worker
-    process that does not have it.
-
-    Never raises for the recording's own faults: a :class:`DropkinError` (and,
-    so that one bad recording cannot stop a campaign, any other exception)
-    becomes a row with status ``failed`` and the message. Whatever was written
-    (the frames measured before a failure, say) is published all the same.
+    process that does not have it. Never raises for the recording's own
+    faults: a :class:`DropkinError`, an ``OSError`` (a full disk) and, so that
+    one bad recording cannot stop a campaign, any other exception becomes a
+    row with status ``failed`` and the message. The caller publishes `work`
+    (:func:`publish_work`): whatever was written, the frames measured before
+    a failure say, is kept all the same.
     """
-    out_dir = Path(out_dir)
     start, clock = _now(), time.perf_counter()
     row: dict = {
         "label": task.label,
@@ -138,8 +179,6 @@ def run_task(task: Task, out_dir, invocation: dict | None = None) -> dict:
         "output": task.label,
         "started_utc": start,
     }
-    work = Path(tempfile.mkdtemp(prefix=f"{WORK_PREFIX}{task.label}-", dir=out_dir))
-    work.chmod(_folder_mode())  # mkdtemp makes it private (0700); the umask decides
     try:
         row["input_stat"] = input_fingerprint(task.source)
         exp, _ = open_source(
@@ -163,17 +202,31 @@ def run_task(task: Task, out_dir, invocation: dict | None = None) -> dict:
     except DropkinError as exc:
         row["status"], row["error"] = "failed", str(exc)
         row["input_sha256"] = _measured_sha256(work)
+    except OSError as exc:  # the machine's fault (a full disk): one line naming the file
+        where = exc.filename if exc.filename is not None else work
+        row["status"], row["error"] = "failed", readable(f"{where}: {exc.strerror or exc}")
     except Exception as exc:  # noqa: BLE001 - one recording must not stop a campaign
         row["status"] = "failed"
         row["error"] = f"internal error, please report it: {type(exc).__name__}: {exc}"
-        row["error"] = row["error"].replace("\n", " ")
-    except BaseException:  # interrupted: a partial folder is never published
-        shutil.rmtree(work, ignore_errors=True)
-        raise
-    if any(work.iterdir()):
-        _publish(work, out_dir / task.label)
-    else:
-        shutil.rmtree(work, ignore_errors=True)
+        row["error"] = readable(row["error"].replace("\n", " "))
     row["finished_utc"] = _now()
     row["seconds"] = round(time.perf_counter() - clock, 3)
+    return row
+
+
+def run_task(task: Task, out_dir, invocation: dict | None = None) -> dict:
+    """Analyse one recording of a campaign into ``OUT/<label>``; its catalogue row.
+
+    What :func:`analyze_task` does, in a work folder of its own that is then
+    published (in this process, or on a Dask worker). An interruption
+    (KeyboardInterrupt) removes the work folder: a partial folder is never published.
+    """
+    out_dir = Path(out_dir)
+    work = make_work_folder(out_dir, task.label)
+    try:
+        row = analyze_task(task, work, out_dir, invocation)
+    except BaseException:
+        shutil.rmtree(work, ignore_errors=True)
+        raise
+    publish_work(work, out_dir, task.label)
     return row

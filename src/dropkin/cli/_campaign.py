@@ -6,7 +6,7 @@ import click
 
 from .._words import count
 from ._console import verbosity
-from ._main import EXIT_BATCH_PARTIAL, EXIT_INTERRUPTED
+from ._main import EXIT_BATCH_PARTIAL, EXIT_INTERRUPTED, EXIT_TERMINATED
 from ._options import output_option, plot_formats_option
 
 __all__ = ["batch_command", "collapse_command"]
@@ -57,7 +57,8 @@ def batch_command(ctx, manifest, out, jobs, scheduler, redo, allow_outside_paths
     """Analyse every recording a campaign MANIFEST lists; catalogue the results.
 
     Exits 3 when some recordings failed (the others are complete; the
-    failures are listed), 130 when interrupted (run it again to finish).
+    failures are listed), 130 when interrupted, 143 on SIGTERM (run it
+    again to finish), 1 when another batch is running on OUT.
     """
     from pathlib import Path
 
@@ -90,13 +91,14 @@ def batch_command(ctx, manifest, out, jobs, scheduler, redo, allow_outside_paths
     )
     finished = len(summary.done) + len(summary.skipped) + len(summary.failed)
     if summary.interrupted:
+        how = "terminated (SIGTERM)" if summary.terminated else "interrupted"
         click.echo(
-            f"dropkin: interrupted: {finished} of {count(summary.total, 'recording')} "
+            f"dropkin: {how}: {finished} of {count(summary.total, 'recording')} "
             "finished and "
             "catalogued; run the same command again to do the rest",
             err=True,
         )
-        ctx.exit(EXIT_INTERRUPTED)
+        ctx.exit(EXIT_TERMINATED if summary.terminated else EXIT_INTERRUPTED)
     click.echo(
         f"{count(summary.total, 'recording')}: {len(summary.done)} analysed, "
         f"{len(summary.skipped)} unchanged, {len(summary.failed)} failed; "

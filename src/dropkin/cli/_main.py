@@ -9,12 +9,22 @@ modules (``_recording``, ``_analysis``, ``_physics``, ``_campaign``,
 
 from __future__ import annotations
 
+import signal
+import threading
+
 import click
 
 from .._version import __version__
-from ..errors import DropkinError
+from ..errors import DropkinError, Terminated
 
-__all__ = ["main", "run", "EXIT_INPUT_ERROR", "EXIT_BATCH_PARTIAL", "EXIT_INTERRUPTED"]
+__all__ = [
+    "main",
+    "run",
+    "EXIT_INPUT_ERROR",
+    "EXIT_BATCH_PARTIAL",
+    "EXIT_INTERRUPTED",
+    "EXIT_TERMINATED",
+]
 
 #: Bad input or data: a one-line error on stderr.
 EXIT_INPUT_ERROR = 1
@@ -22,6 +32,8 @@ EXIT_INPUT_ERROR = 1
 EXIT_BATCH_PARTIAL = 3
 #: ``dropkin batch`` was interrupted (run it again to finish).
 EXIT_INTERRUPTED = 130
+#: Stopped by SIGTERM (128 + 15; a batch keeps what finished, as with Ctrl-C).
+EXIT_TERMINATED = 143
 
 #: Where the group keeps its arguments as given, for the provenance.
 _ARGS = "dropkin.args"
@@ -45,8 +57,12 @@ class _Group(click.Group):
         return name, command, rest
 
     def invoke(self, ctx):
+        restore = _catch_sigterm()
         try:
             return super().invoke(ctx)
+        except Terminated:
+            click.echo("dropkin: terminated (SIGTERM)", err=True)
+            ctx.exit(EXIT_TERMINATED)
         except DropkinError as exc:
             click.echo(f"dropkin: error: {exc}", err=True)
             ctx.exit(EXIT_INPUT_ERROR)
@@ -58,6 +74,22 @@ class _Group(click.Group):
             from .._provenance import set_invocation
 
             set_invocation(None)
+            restore()
+
+
+def _raise_terminated(signum, frame):
+    raise Terminated()
+
+
+def _catch_sigterm():
+    """Turn SIGTERM into :class:`Terminated` while a command runs (in the main thread: the
+    only one where signals can be handled); what puts the former handler back."""
+    if threading.current_thread() is not threading.main_thread():
+        return lambda: None
+    previous = signal.signal(signal.SIGTERM, _raise_terminated)
+    if previous is None:  # set outside Python: the default is the nearest
+        previous = signal.SIG_DFL
+    return lambda: signal.signal(signal.SIGTERM, previous)
 
 
 @click.group(cls=_Group, context_settings={"help_option_names": ["-h", "--help"]})
