@@ -116,5 +116,11 @@ def write_bytes_atomic(path, data: bytes) -> Path:
 
 
 def write_text_atomic(path, text: str) -> Path:
-    """Write `text` (UTF-8) to `path` atomically; return `path`."""
-    return write_bytes_atomic(path, text.encode("utf-8"))
+    """Write `text` (UTF-8) to `path` atomically; return `path`.
+
+    A path that is not valid UTF-8 (bytes such as ``\\xff`` in a folder's
+    name) reaches Python's text as lone surrogates, which UTF-8 cannot hold:
+    each is written as its escape (``\\udcff``), which a JSON reader turns
+    back into the same character and a person reads as the byte it stands for.
+    """
+    return write_bytes_atomic(path, text.encode("utf-8", errors="backslashreplace"))

@@ -8,9 +8,11 @@ mixed as long as every frame has the same size and sample type; that is
 checked for every file at open time from its header, and the first file that
 differs is named.
 
-Pixels are decoded with ``cv2.imread(path, cv2.IMREAD_UNCHANGED)``, or with
-tifffile for TIFF files it can decode, so 8- and 16-bit samples arrive exactly
-as stored (12-bit camera data in 16-bit words are not rescaled).
+Pixels are decoded with ``cv2.imdecode(bytes, cv2.IMREAD_UNCHANGED)`` from the
+file's bytes as Python read them (so that a file name that is not valid
+UTF-8 never reaches OpenCV, which crashed on one), or with tifffile for TIFF
+files it can decode, so 8- and 16-bit samples arrive exactly as stored
+(12-bit camera data in 16-bit words are not rescaled).
 """
 
 from __future__ import annotations
@@ -176,8 +178,14 @@ def _decode(file: Path, decoder: str, *, frame: int | None = None) -> np.ndarray
     else:
         checked = nullcontext()
     try:
+        data = np.fromfile(file, dtype=np.uint8)
+    except OSError as exc:
+        raise RecordingError(
+            f"cannot be read ({exc.strerror or exc})", path=file, frame=frame
+        ) from None
+    try:
         with checked:
-            image = cv2.imread(str(file), cv2.IMREAD_UNCHANGED)
+            image = cv2.imdecode(data, cv2.IMREAD_UNCHANGED) if data.size else None
     except cv2.error as exc:
         raise RecordingError(
             f"cannot be decoded by OpenCV ({' '.join(str(exc).split())[-160:]})",
