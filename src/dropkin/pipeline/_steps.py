@@ -235,6 +235,7 @@ def fit_into(
     seed: int = 0,
     bootstrap: int = 200,
     initial_radius: bool = False,
+    published_dir=None,
 ):
     """Fit the regimes to a ``radius.csv``; write ``fit.json``, ``plots/`` and ``report.html``.
 
@@ -245,7 +246,8 @@ def fit_into(
     experiment file and the sample values ``measure.json`` records, with
     `overrides` (dotted keys, e.g. ``{"liquid.name": "ethanol"}``) over them;
     `liquids` is a user's liquid library (default: the one ``measure.json``
-    names).
+    names). `published_dir` is where `out` will be moved once complete (the
+    provenance's paths are relative to it; default: `out`).
 
     Returns
     -------
@@ -260,7 +262,7 @@ def fit_into(
         radius_csv, experiment=experiment, overrides=overrides, liquids=liquids
     )
     fit = {"t0": t0, "seed": seed, "bootstrap": bootstrap, "initial_radius": initial_radius}
-    verdict, numbers = _fit_and_write(measurement, out, **fit)
+    verdict, numbers = _fit_and_write(measurement, out, published_dir=published_dir, **fit)
     _write_report(out, measurement, verdict)
     return verdict, numbers, measurement
 
