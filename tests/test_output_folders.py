@@ -94,11 +94,14 @@ def test_overwrite_never_removes_files_dropkin_does_not_write(tmp_path):
     assert (out / "notes.txt").read_text() == "mine"
 
 
-def test_a_failed_rerun_keeps_the_folder_and_a_failed_fit_replaces_it_whole(tmp_path):
+def test_a_failed_rerun_keeps_the_folder_and_a_failed_fit_replaces_it_whole(
+    spreading_measured, tmp_path
+):
     out = tmp_path / "out"
-    done = _run("analyze", SAMPLES / "viscous_pair", "-o", out, "--bootstrap", "0")
+    done = _run("fit", spreading_measured / "radius.csv", "-o", out, "--bootstrap", "0")
     assert done.exit_code == 0, done.output
     before = _snapshot(out)
+    assert "fit.json" in before
     # Fails after the folder is claimed (the liquid is checked inside the run).
     bad = _run("analyze", SAMPLES / "viscous_pair", "-o", out, "--overwrite", "--liquid", "nope")
     assert bad.exit_code == 1 and "nope" in _error(bad)
@@ -155,3 +158,12 @@ def test_staged_folder_publishes_whole_or_not_at_all(tmp_path):
         (stage / "b.txt").write_text("new")
     assert sorted(p.name for p in target.iterdir()) == ["a.txt", "b.txt"]
     assert sorted(p.name for p in tmp_path.iterdir()) == ["out"]
+
+
+def test_the_working_directory_is_not_an_output_folder(tmp_path, monkeypatch):
+    here = tmp_path / "here"
+    here.mkdir()
+    monkeypatch.chdir(here)
+    result = _run("measure", SAMPLES / "viscous_pair", "-o", ".", "--overwrite")
+    assert result.exit_code == 1 and "working directory" in _error(result)
+    assert list(here.iterdir()) == []

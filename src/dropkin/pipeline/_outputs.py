@@ -68,8 +68,10 @@ def claim_output_folder(out, *, overwrite: bool = False, keep=(), replaced=()) -
     those in `replaced` (the outputs of an earlier run of the same step on
     the same inputs, replaced whole) and ``datapackage.json`` is refused,
     unless `overwrite`; even then a
-    folder holding files dropkin does not write (frames, notes) or the
-    working directory is refused, so that ``--overwrite`` never removes them.
+    folder holding files dropkin does not write (frames, notes) is refused,
+    so that ``--overwrite`` never removes them. The working directory (or a
+    folder holding it) is refused in any case: it would be replaced under
+    the shell's feet.
     A symbolic link is followed: the folder it names is the one replaced.
 
     Raises
@@ -82,6 +84,12 @@ def claim_output_folder(out, *, overwrite: bool = False, keep=(), replaced=()) -
         target = target.resolve()
     if target.exists() and not target.is_dir():
         raise DropkinError("is not a folder", path=out)
+    here = Path(os.path.abspath(os.getcwd()))
+    if target.exists() and (here == target or target in here.parents):
+        # published in its place, the folder would leave the shell in a removed one
+        raise DropkinError(
+            "is the working directory or holds it; give a folder below it (-o out)", path=out
+        )
     mine = {*keep, *replaced, "datapackage.json"}
     others = [e for e in _entries(target) if e not in mine]
     if not others:
@@ -93,16 +101,13 @@ def claim_output_folder(out, *, overwrite: bool = False, keep=(), replaced=()) -
             "folder, or --overwrite to replace it whole",
             path=out,
         )
-    foreign = [e for e in _entries(target) if e not in _OURS and e not in keep]
+    foreign = [e for e in _entries(target) if e not in {*_OURS, *keep, *replaced}]
     if foreign:
         raise DropkinError(
             f"holds files dropkin does not write ({', '.join(foreign[:4])}); --overwrite "
             "replaces only an output folder: give a new or empty folder",
             path=out,
         )
-    here = Path(os.path.abspath(os.getcwd()))
-    if here == target or target in here.parents:
-        raise DropkinError("is the working directory or holds it; give another folder", path=out)
     return target
 
 
