@@ -1,4 +1,4 @@
-"""Files that are either complete or absent.
+"""Files that are either complete or absent, and folders published whole.
 
 Every file dropkin writes goes to a temporary name in the same folder and is
 renamed into place when complete (``os.replace`` is atomic on one file
@@ -10,6 +10,16 @@ start with :data:`TEMPORARY_PREFIX` (``.dropkin-tmp.``): hidden from ``ls``
 and from shell globs such as ``*.csv``, recognisable by :func:`is_temporary`,
 skipped by every dropkin reader of an output folder, and removed by
 :func:`remove_temporaries` when the next run writes into the same folder.
+
+A folder of outputs is built the same way, one level up
+(:func:`staged_folder`): in a sibling folder ``.dropkin-tmp.<name>.<random>``
+of the same parent (so on the same file system), renamed into place when
+complete by :func:`publish_folder`. A folder that was there is moved aside
+first and removed once the new one is in place, so a reader sees the old
+folder or the new one, never a mixture; between the two renames the name
+is absent for an instant. A run killed while building leaves the hidden
+sibling behind (remove it; dropkin does not, since another run may be
+building it).
 
 Examples
 --------
@@ -26,11 +36,15 @@ from __future__ import annotations
 
 import contextlib
 import os
+import shutil
 import tempfile
 from pathlib import Path
 
 __all__ = [
     "TEMPORARY_PREFIX",
+    "staged_folder",
+    "publish_folder",
+    "new_folder_beside",
     "atomic_path",
     "is_temporary",
     "remove_temporaries",
@@ -129,3 +143,85 @@ def write_text_atomic(path, text: str) -> Path:
     from .errors import readable
 
     return write_bytes_atomic(path, readable(text).encode("utf-8"))
+
+
+def _umask_mode(mode: int) -> int:
+    umask = os.umask(0o022)
+    os.umask(umask)
+    return mode & ~umask
+
+
+def new_folder_beside(target, tag: str = "") -> Path:
+    """A new, empty hidden folder in `target`'s parent (made if needed), with the
+    permissions the umask gives a new folder (not mkdtemp's private 0700)."""
+    target = Path(target)
+    target.parent.mkdir(parents=True, exist_ok=True)
+    folder = Path(
+        tempfile.mkdtemp(prefix=f"{TEMPORARY_PREFIX}{tag}{target.name}.", dir=target.parent)
+    )
+    folder.chmod(_umask_mode(0o777))
+    return folder
+
+
+def publish_folder(stage, target) -> Path:
+    """Put the complete folder `stage` in place of `target`, whole; return `target`.
+
+    `stage` must lie in `target`'s parent (see :func:`new_folder_beside`). A
+    folder at `target` is renamed aside first, then removed.
+    """
+    stage, target = Path(stage), Path(target)
+    old = None
+    if target.exists() or target.is_symlink():
+        old = new_folder_beside(target, "old.")
+        os.replace(target, old / target.name)
+    os.replace(stage, target)
+    if old is not None:
+        shutil.rmtree(old, ignore_errors=True)
+    return target
+
+
+def _link_or_copy(source, dest) -> None:
+    """A hard link of `source` at `dest` (a copy where links cannot be made)."""
+    try:
+        os.link(source, dest)
+    except OSError:
+        shutil.copy2(source, dest)
+
+
+@contextlib.contextmanager
+def staged_folder(target, *, keep=(), publish_on=()):
+    """Yield a new folder beside `target`; publish it as `target` when the block ends.
+
+    Parameters
+    ----------
+    target : path-like
+        The folder to make or replace whole.
+    keep : iterable of str
+        Names in the folder at `target` to carry into the new one before the
+        block runs (hard links where possible): the inputs of a step that
+        writes into its own input's folder.
+    publish_on : tuple of exception types
+        Exceptions after which what the block wrote is still published (when
+        it wrote anything), the exception then going on; after any other
+        exception the new folder is removed and `target` is left as it was.
+    """
+    target = Path(target)
+    stage = new_folder_beside(target)
+    try:
+        for name in keep:
+            source = target / name
+            if source.is_dir() and not source.is_symlink():
+                shutil.copytree(source, stage / name, copy_function=_link_or_copy)
+            elif source.is_file():
+                _link_or_copy(source, stage / name)
+        yield stage
+    except publish_on:
+        if any(stage.iterdir()):
+            publish_folder(stage, target)
+        else:
+            shutil.rmtree(stage, ignore_errors=True)
+        raise
+    except BaseException:
+        shutil.rmtree(stage, ignore_errors=True)
+        raise
+    publish_folder(stage, target)

@@ -268,10 +268,27 @@ def find_experiment_file(source) -> Path | None:
     """Find the experiment file that belongs to a recording, if there is one.
 
     Inside a folder of frames it is ``experiment.toml``; beside a recording
-    file ``shot.tif`` it is ``shot.toml``.
+    file ``shot.tif`` it is ``shot.toml``. A file found so that is a symbolic
+    link must lead inside the recording's folder (the folder of frames, or
+    the folder holding the recording file), as the frames' links must; a
+    link leading out of it, or nowhere, is refused, naming the link.
     """
     source = Path(source)
-    candidate = source / EXPERIMENT_FILE_NAME if source.is_dir() else source.with_suffix(".toml")
+    folder = source if source.is_dir() else source.parent
+    candidate = folder / EXPERIMENT_FILE_NAME if source.is_dir() else source.with_suffix(".toml")
+    if candidate.is_symlink():
+        try:
+            target = candidate.resolve(strict=True)
+        except (OSError, RuntimeError):  # a loop, or a link to nothing
+            raise ExperimentError(
+                "is a symbolic link that loops or leads nowhere", path=candidate
+            ) from None
+        if not target.is_relative_to(folder.resolve()):
+            raise ExperimentError(
+                f"is a symbolic link leading out of the recording's folder (to {target})",
+                path=candidate,
+                expected="the file itself, or --experiment FILE",
+            )
     return candidate if candidate.is_file() else None
 
 

@@ -338,3 +338,22 @@ def test_published_folders_honour_the_umask(pool_run):
     os.umask(mask)
     for label in GOOD:
         assert (out / label).stat().st_mode & 0o777 == 0o777 & ~mask
+
+
+def test_collapse_replaces_its_folder_whole_and_keeps_what_it_did_not_write(pool_run, tmp_path):
+    # Issue 17, finding 3: a figure of a regime the earlier collapse had, and
+    # this one has not, must not stay beside the new files.
+    out, _ = pool_run
+    dest = tmp_path / "collapse"
+    args = ["collapse", str(out), "-o", str(dest)]
+    assert CliRunner().invoke(main, args).exit_code == 0
+    (dest / "collapse-inertial.png").write_bytes(b"an earlier run's figure")
+    again = CliRunner().invoke(main, args)
+    assert again.exit_code == 0, again.output
+    assert not (dest / "collapse-inertial.png").exists()
+    assert (dest / "collapse.json").is_file()
+    (dest / "notes.txt").write_text("mine")
+    for extra in ([], ["--overwrite"]):
+        refused = CliRunner().invoke(main, [*args, *extra])
+        assert refused.exit_code == 1 and "notes.txt" in refused.output, refused.output
+    assert (dest / "notes.txt").read_text() == "mine"

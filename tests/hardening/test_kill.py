@@ -16,8 +16,11 @@ After each run, killed or not, every file in the output folder must be either
   set aside (:func:`_comparable`: each run has its own time and command
   line, which names its output folder).
 
-The kills go into one folder, so each run also meets what the earlier killed
-runs left. A final run into that folder must clean the temporaries and give
+The kills go into one folder (with ``--overwrite``: a complete run's folder
+holds another run's results), so each run also meets what the earlier killed
+runs left. Since the output folder is built aside and published whole, a
+killed run leaves the folder as it was and its hidden build folder beside it.
+A final run into that folder must clean the temporaries and give
 exactly the complete run's files.
 
 A deterministic companion kills a process inside a write (between the
@@ -52,8 +55,8 @@ pytestmark = pytest.mark.skipif(
 
 #: (arguments, number of kills, seed) per command.
 RUNS = {
-    "analyze": (["--bootstrap", "10", "--overlays", "3"], 7, 2024),
-    "measure": (["--overlays", "3"], 5, 2025),
+    "analyze": (["--bootstrap", "10", "--overlays", "3", "--overwrite"], 7, 2024),
+    "measure": (["--overlays", "3", "--overwrite"], 5, 2025),
 }
 
 
@@ -231,9 +234,10 @@ def test_reports_skip_a_temporary_overlay_and_the_next_run_removes_it(recording,
     write_analysis_outputs(out)  # the report and plots alone, as a script would redo them
     assert (out / "report.html").read_bytes() == reference
     assert stray.exists()
-    result = runner.invoke(main, ["measure", str(recording), "-o", str(out), "--overlays", "3"])
+    args = ["measure", str(recording), "-o", str(out), "--overlays", "3", "--overwrite"]
+    result = runner.invoke(main, args)
     assert result.exit_code == 0, result.output
-    assert not stray.exists()
+    assert not stray.exists()  # the folder was replaced whole
 
 
 def test_remove_temporaries_removes_only_temporaries(tmp_path):

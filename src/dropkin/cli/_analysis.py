@@ -12,6 +12,7 @@ from ._options import (
     measure_options,
     options_named,
     output_option,
+    overwrite_option,
     plot_formats_option,
     recording_overrides,
     sample_options,
@@ -43,6 +44,7 @@ def _report_verdict(verdict, series, radius_csv, out) -> None:
 @click.command("fit")
 @click.argument("radius_csv", type=click.Path(exists=True, dir_okay=False, path_type=str))
 @output_option("Folder for fit.json, plots/ and report.html.")
+@overwrite_option
 @click.option(
     "--experiment",
     type=click.Path(exists=True, dir_okay=False, path_type=str),
@@ -53,29 +55,48 @@ def _report_verdict(verdict, series, radius_csv, out) -> None:
 @plot_formats_option
 @click.pass_context
 def fit_command(
-    ctx, radius_csv, out, experiment, t0, seed, bootstrap, initial_radius, plot_formats, **sample
+    ctx,
+    radius_csv,
+    out,
+    overwrite,
+    experiment,
+    t0,
+    seed,
+    bootstrap,
+    initial_radius,
+    plot_formats,
+    **sample,
 ):
     """Fit the scaling regimes to RADIUS_CSV (from dropkin measure) and give the
     verdict: fit.json, plots/ and a self-contained report.html, as analyze.
 
     The sample is the experiment file measure.json names, with the sample
     options the measurement was given; options given here override both.
+    Into the folder of RADIUS_CSV, the measurement's files are kept and an
+    earlier fit's replaced whole.
     """
+    import os
     from pathlib import Path
 
+    from ..pipeline._outputs import FIT_OUTPUTS, MEASURE_OUTPUTS, output_folder
     from ..pipeline._steps import fit_into
 
     fit = {"t0": t0, "seed": seed, "bootstrap": bootstrap, "initial_radius": initial_radius}
     detail(ctx, "settings: " + ", ".join(f"{k} = {v!r}" for k, v in fit.items()))
     overrides = sample_overrides(**sample)
-    with options_named(overrides):
+    own = Path(os.path.abspath(out)).resolve() == Path(radius_csv).resolve().parent
+    # into its own folder: the measurement is kept, an earlier fit of it replaced
+    keep = (*MEASURE_OUTPUTS, Path(radius_csv).name) if own else ()
+    folder = {"overwrite": overwrite, "keep": keep, "replaced": FIT_OUTPUTS if own else ()}
+    with options_named(overrides), output_folder(out, **folder) as stage:
         verdict, _, measurement = fit_into(
             radius_csv,
-            out,
+            stage,
             experiment=experiment,
             overrides=overrides,
             liquids=sample["liquids_file"],
             plot_formats=plot_formats,
+            published_dir=Path(out),
             **fit,
         )
     detail_experiment(ctx, measurement.experiment.path)
@@ -94,27 +115,36 @@ def analyze_command(ctx, source, out, **options):
     plots/ and a self-contained report.html."""
     from pathlib import Path
 
+    from ..pipeline._outputs import claim_output_folder, output_folder
     from ..pipeline._steps import analyze_into
 
     out = Path(out)
+    claim_output_folder(out, overwrite=options["overwrite"])  # refused before any reading
     settings = analysis_settings(**options)
     detail_settings(ctx, settings, MEASURE_SETTINGS + FIT_SETTINGS)
     # The frame count is known only once the recording is open; the bar then
     # counts frames (the fit and the report take a few seconds more).
     overrides = {**recording_overrides(**options), **sample_overrides(**options)}
-    with progress_bar(ctx, "measuring", 0) as progress, options_named(overrides):
+    # the frames measured are published even when no contact is seen
+    publish = {"overwrite": options["overwrite"], "publish_on": (MeasurementError,)}
+    with (
+        progress_bar(ctx, "measuring", 0) as progress,
+        options_named(overrides),
+        output_folder(out, **publish) as stage,
+    ):
         try:
             result = analyze_into(
                 source,
-                out,
+                stage,
                 settings,
                 experiment=options["experiment"],
                 overrides=overrides,
                 liquids=options["liquids_file"],
                 progress=progress,
+                published_dir=out,
             )
         except MeasurementError as exc:
-            if (out / "radius.csv").is_file():
+            if (stage / "radius.csv").is_file():
                 raise MeasurementError(
                     f"{exc.message}; radius series written to {out}", path=exc.path
                 ) from None

@@ -7,7 +7,7 @@ import click
 from .._words import count
 from ._console import verbosity
 from ._main import EXIT_BATCH_PARTIAL, EXIT_INTERRUPTED, EXIT_TERMINATED
-from ._options import output_option, plot_formats_option
+from ._options import output_option, overwrite_option, plot_formats_option
 
 __all__ = ["batch_command", "collapse_command"]
 
@@ -124,16 +124,30 @@ def batch_command(ctx, manifest, out, jobs, scheduler, redo, allow_outside_paths
     help="Folder for collapse.json and the figures (default: OUT/collapse).",
 )
 @plot_formats_option
-def collapse_command(out, regime, dest, plot_formats):
+@overwrite_option
+def collapse_command(out, regime, dest, plot_formats, overwrite):
     """Master curve of a campaign (the OUT of dropkin batch): r/R against t/tau,
-    the collective prefactor, and the recordings that do not collapse."""
+    the collective prefactor, and the recordings that do not collapse.
+
+    The folder is replaced whole: an earlier collapse's files without
+    --overwrite, anything else dropkin wrote with it."""
+    import os
     from pathlib import Path
 
     from ..campaign._collapse import master_curves, write_collapse
+    from ..pipeline._outputs import claim_output_folder, output_folder
 
-    curves = master_curves(out, regime=regime)
     dest = Path(dest) if dest else Path(out) / "collapse"
-    write_collapse(curves, dest, plot_formats)
+    earlier = [  # an earlier collapse's outputs: replaced whole
+        name
+        for name in (os.listdir(dest) if dest.is_dir() else [])
+        if name == "collapse.json"
+        or (name.startswith("collapse-") and name[-4:] in (".png", ".svg", ".pdf"))
+    ]
+    claim_output_folder(dest, overwrite=overwrite, replaced=earlier)
+    curves = master_curves(out, regime=regime)
+    with output_folder(dest, overwrite=overwrite, replaced=earlier) as stage:
+        write_collapse(curves, stage, plot_formats)
     for curve in curves:
         lo, hi = curve.pooled.ci
         published = "" if curve.published is None else f" (published {curve.published:g})"

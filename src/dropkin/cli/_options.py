@@ -26,6 +26,7 @@ __all__ = [
     "FINITE_FLOAT",
     "LazyChoice",
     "output_option",
+    "overwrite_option",
     "experiment_options",
     "measure_options",
     "fit_options",
@@ -137,6 +138,16 @@ def output_option(help_text: str):
     )
 
 
+def overwrite_option(command):
+    """--overwrite: replace an output folder that holds another run's results, whole."""
+    return click.option(
+        "--overwrite",
+        is_flag=True,
+        help="Replace the output folder whole when it holds another run's results "
+        "(default: refuse such a folder).",
+    )(command)
+
+
 def experiment_options(command):
     """Options shared by every command that reads a recording."""
     options = [
@@ -167,6 +178,7 @@ def measure_options(command):
     """Options of every command that measures a recording."""
     options = [
         output_option("Folder for the outputs."),
+        overwrite_option,
         experiment_options,
         click.option("--roi", help="Region of interest ROW0:ROW1,COL0:COL1 (pixels)."),
         click.option(

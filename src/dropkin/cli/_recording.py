@@ -117,8 +117,10 @@ def measure_command(ctx, source, out, **options):
     from pathlib import Path
 
     from ..liquids import resolve_fluids
+    from ..pipeline._outputs import claim_output_folder, output_folder
     from ..pipeline._steps import measure_into, open_source
 
+    claim_output_folder(out, overwrite=options["overwrite"])  # refused before any reading
     sample = sample_overrides(**options)
     liquids = options["liquids_file"]
     overrides = {**recording_overrides(**options), **sample}
@@ -130,9 +132,19 @@ def measure_command(ctx, source, out, **options):
     settings = analysis_settings(**options)
     detail_experiment(ctx, exp.path)
     detail_settings(ctx, settings, MEASURE_SETTINGS)
-    with progress_bar(ctx, "measuring", len(rec)) as progress:
+    with (
+        output_folder(out, overwrite=options["overwrite"]) as stage,
+        progress_bar(ctx, "measuring", len(rec)) as progress,
+    ):
         series, method = measure_into(
-            out, exp, rec, settings, progress=progress, sample=sample, liquids=liquids
+            stage,
+            exp,
+            rec,
+            settings,
+            progress=progress,
+            sample=sample,
+            liquids=liquids,
+            published_dir=out,
         )
     if series.contact_time is None:
         raise MeasurementError(f"{method}; radius series written to {out}", path=rec.path)

@@ -14,6 +14,7 @@ from concurrent.futures import ProcessPoolExecutor
 import numpy as np
 
 from .. import vision
+from ..recording import frames_at_once
 from ._options import crop
 
 __all__ = ["stream"]
@@ -102,7 +103,10 @@ def stream(recording, prep, options, progress):
         Called as ``progress(frames_done, frames_total)``.
     """
     n = len(recording)
-    size = max(int(options.chunk_size), 1)
+    # a chunk of large frames is cut to what may be held at once (recording/_limits.py)
+    size = frames_at_once(
+        recording.shape, recording.dtype.itemsize, max(int(options.chunk_size), 1)
+    )
     if options.jobs <= 1:
         hint = None
         cache = {}

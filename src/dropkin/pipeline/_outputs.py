@@ -1,4 +1,13 @@
-"""An analysis folder's files: ``fit.json`` written and read, the report redone from a folder.
+"""An analysis folder's files: made whole or not at all, ``fit.json`` written and read,
+the report redone from a folder.
+
+Every command that writes an analysis folder builds it aside and publishes
+it in one step (:func:`output_folder`, on :func:`dropkin._atomic.staged_folder`):
+a run that fails leaves the folder as it was, and a folder holding the
+results of another run is refused (:func:`claim_output_folder`) unless
+``--overwrite`` asks to replace it whole. ``dropkin fit`` into the folder of
+its own ``radius.csv`` carries the measurement's files (:data:`MEASURE_OUTPUTS`)
+into the new folder and replaces only what a fit writes.
 
 A run passes its records in memory from step to step; the files are its
 outputs. Reading them back is for later work on a finished folder: a fit of a
@@ -11,10 +20,12 @@ and the work then follows the same path as in the run.
 from __future__ import annotations
 
 import json
+import os
+from contextlib import contextmanager
 from pathlib import Path
 from typing import TYPE_CHECKING
 
-from .._atomic import write_text_atomic
+from .._atomic import TEMPORARY_PREFIX, staged_folder, write_text_atomic
 from .._provenance import resolve_named
 from ..errors import DropkinError, with_path
 from ..series import read_series
@@ -23,7 +34,98 @@ from ._package import write_datapackage
 if TYPE_CHECKING:
     from ..scaling import RegimeVerdict
 
-__all__ = ["write_fit", "read_fit", "write_analysis_outputs"]
+__all__ = [
+    "MEASURE_OUTPUTS",
+    "FIT_OUTPUTS",
+    "claim_output_folder",
+    "output_folder",
+    "write_fit",
+    "read_fit",
+    "write_analysis_outputs",
+]
+
+#: What a measurement writes into its folder (``experiment.toml``: a campaign's copy).
+MEASURE_OUTPUTS = ("radius.csv", "measure.json", "angles.csv", "overlays", "experiment.toml")
+#: What a fit writes into its folder.
+FIT_OUTPUTS = ("fit.json", "plots", "report.html")
+#: Every name dropkin writes into an analysis folder; ``--overwrite`` replaces
+#: only a folder holding nothing else.
+_OURS = frozenset((*MEASURE_OUTPUTS, *FIT_OUTPUTS, "datapackage.json"))
+
+
+def _entries(folder: Path) -> list[str]:
+    """The names in `folder`, without the temporaries a killed run left."""
+    if not folder.is_dir():
+        return []
+    return sorted(e for e in os.listdir(folder) if not str(e).startswith(TEMPORARY_PREFIX))
+
+
+def claim_output_folder(out, *, overwrite: bool = False, keep=(), replaced=()) -> Path:
+    """The folder a command may build `out` as; refuse one holding another run's results.
+
+    `out` may be new or empty. A folder holding anything but the names in
+    `keep` (a step's inputs in its own folder, carried into the new folder),
+    those in `replaced` (the outputs of an earlier run of the same step on
+    the same inputs, replaced whole) and ``datapackage.json`` is refused,
+    unless `overwrite`; even then a
+    folder holding files dropkin does not write (frames, notes) is refused,
+    so that ``--overwrite`` never removes them. The working directory (or a
+    folder holding it) is refused in any case: it would be replaced under
+    the shell's feet.
+    A symbolic link is followed: the folder it names is the one replaced.
+
+    Raises
+    ------
+    DropkinError
+        Naming the folder and what it holds.
+    """
+    target = Path(os.path.abspath(out))
+    if target.is_symlink():
+        target = target.resolve()
+    if target.exists() and not target.is_dir():
+        raise DropkinError("is not a folder", path=out)
+    here = Path(os.path.abspath(os.getcwd()))
+    if target.exists() and (here == target or target in here.parents):
+        # published in its place, the folder would leave the shell in a removed one
+        raise DropkinError(
+            "is the working directory or holds it; give a folder below it (-o out)", path=out
+        )
+    mine = {*keep, *replaced, "datapackage.json"}
+    others = [e for e in _entries(target) if e not in mine]
+    if not others:
+        return target
+    shown = ", ".join(others[:4]) + (", ..." if len(others) > 4 else "")
+    if not overwrite:
+        raise DropkinError(
+            f"already holds the results of another run ({shown}); give a new or empty "
+            "folder, or --overwrite to replace it whole",
+            path=out,
+        )
+    foreign = [e for e in _entries(target) if e not in {*_OURS, *keep, *replaced}]
+    if foreign:
+        raise DropkinError(
+            f"holds files dropkin does not write ({', '.join(foreign[:4])}); --overwrite "
+            "replaces only an output folder: give a new or empty folder",
+            path=out,
+        )
+    return target
+
+
+@contextmanager
+def output_folder(out, *, overwrite: bool = False, keep=(), replaced=(), publish_on=()):
+    """Yield a new folder to write `out`'s outputs into; publish it as `out`, whole.
+
+    `out` is first claimed (:func:`claim_output_folder`, with `keep` and
+    `replaced`); the names in `keep`
+    that `out` holds are carried into the new folder. When the block raises,
+    `out` is left as it was, except after an exception of `publish_on` (a
+    run that ends with what it measured, say), when what the block wrote is
+    published all the same.
+    """
+    target = claim_output_folder(out, overwrite=overwrite, keep=keep, replaced=replaced)
+    present = [name for name in dict.fromkeys(keep) if (target / name).exists()]
+    with staged_folder(target, keep=present, publish_on=publish_on) as stage:
+        yield stage
 
 
 def write_fit(

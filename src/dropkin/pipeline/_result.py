@@ -127,13 +127,18 @@ class AnalysisResult:
             return {}
         return analysis_figures(self.series, self.verdict)
 
-    def write(self, out) -> Path:
+    def write(self, out, *, overwrite: bool = False) -> Path:
         """Write the files ``dropkin analyze`` writes into the folder `out`; return it
-        (see :func:`write_result`)."""
-        from .._provenance import invoked
+        (see :func:`write_result`).
 
-        with invoked(self.invocation):
-            write_result(self, out)
+        As on the command line, the folder is built aside and published whole;
+        one holding another run's results is refused unless `overwrite`.
+        """
+        from .._provenance import invoked
+        from ._outputs import output_folder
+
+        with invoked(self.invocation), output_folder(out, overwrite=overwrite) as stage:
+            write_result(self, stage, published_dir=Path(out))
         return Path(out)
 
 

@@ -181,6 +181,7 @@ def fit_into(
     bootstrap: int = 200,
     initial_radius: bool = False,
     plot_formats=("png",),
+    published_dir=None,
 ):
     """Fit the regimes to a ``radius.csv``; write ``fit.json``, ``plots/`` and ``report.html``.
 
@@ -191,7 +192,8 @@ def fit_into(
     experiment file and the sample values ``measure.json`` records, with
     `overrides` (dotted keys, e.g. ``{"liquid.name": "ethanol"}``) over them;
     `liquids` is a user's liquid library (default: the one ``measure.json``
-    names).
+    names). `published_dir` is where `out` will be moved once complete (the
+    provenance's paths are relative to it; default: `out`).
 
     Returns
     -------
@@ -206,7 +208,7 @@ def fit_into(
         radius_csv, experiment=experiment, overrides=overrides, liquids=liquids
     )
     fit = {"t0": t0, "seed": seed, "bootstrap": bootstrap, "initial_radius": initial_radius}
-    verdict, numbers = _fit_and_write(measurement, out, **fit)
+    verdict, numbers = _fit_and_write(measurement, out, published_dir=published_dir, **fit)
     _write_report(out, measurement, verdict, plot_formats)
     return verdict, numbers, measurement
 

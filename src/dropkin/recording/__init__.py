@@ -20,6 +20,7 @@ Examples
 from ._base import Recording as Recording
 from ._folder import FRAME_SUFFIXES as FRAME_SUFFIXES
 from ._folder import read_image as read_image
+from ._limits import frames_at_once as frames_at_once
 from ._lossy import CAUTION as LOSSY_CAUTION
 from ._open import RECORDING_SUFFIXES as RECORDING_SUFFIXES
 from ._open import open_recording as open_recording
@@ -30,6 +31,7 @@ __all__ = [
     "Recording",
     "open_recording",
     "read_image",
+    "frames_at_once",
     "FRAME_SUFFIXES",
     "TIFF_SUFFIXES",
     "VIDEO_SUFFIXES",

@@ -3,14 +3,20 @@
 The frames are the image files of the folder (suffixes compared without case),
 in natural order: runs of digits compare as numbers wherever they appear, so
 ``shot_2.png`` comes before ``shot_10.png``. Hidden files, sub-folders and other
-files (``experiment.toml``, ``truth.json``...) are ignored. Image kinds may be
+files (``experiment.toml``, ``truth.json``...) are ignored. A frame file may be
+a symbolic link only to a file inside the recording's folder (the folder as
+resolved, so a folder that is itself a link is fine): a link leading out of
+it, a link that loops and a link to nothing are refused, naming the link,
+rather than read from elsewhere or skipped in silence. Image kinds may be
 mixed as long as every frame has the same size and sample type; that is
 checked for every file at open time from its header, and the first file that
 differs is named.
 
-Pixels are decoded with ``cv2.imread(path, cv2.IMREAD_UNCHANGED)``, or with
-tifffile for TIFF files it can decode, so 8- and 16-bit samples arrive exactly
-as stored (12-bit camera data in 16-bit words are not rescaled).
+Pixels are decoded with ``cv2.imdecode(bytes, cv2.IMREAD_UNCHANGED)`` from the
+file's bytes as Python read them (so that a file name that is not valid
+UTF-8 never reaches OpenCV, which crashed on one), or with tifffile for TIFF
+files it can decode, so 8- and 16-bit samples arrive exactly as stored
+(12-bit camera data in 16-bit words are not rescaled).
 """
 
 from __future__ import annotations
@@ -54,15 +60,33 @@ def natural_key(name: str) -> tuple:
     return (tuple(parts), name)
 
 
+def _checked_link(entry: Path, inside: Path) -> None:
+    """Refuse a frame file that is a link leading out of `inside`, looping or dangling."""
+    try:
+        target = entry.resolve(strict=True)
+    except (OSError, RuntimeError):  # RuntimeError: a loop, before Python 3.13
+        raise RecordingError(
+            "is a symbolic link that loops or leads nowhere", path=entry
+        ) from None
+    if not target.is_relative_to(inside):
+        raise RecordingError(
+            f"is a symbolic link leading out of the recording's folder (to {target})",
+            path=entry,
+            expected="the frame file itself in the folder",
+        )
+
+
 def frame_files(folder: Path) -> list[Path]:
-    """The frame files of `folder`, in natural order."""
-    files = [
-        entry
-        for entry in folder.iterdir()
-        if not entry.name.startswith(".")
-        and entry.suffix.lower() in FRAME_SUFFIXES
-        and entry.is_file()
-    ]
+    """The frame files of `folder`, in natural order (links checked, see the module notes)."""
+    inside = folder.resolve()
+    files = []
+    for entry in folder.iterdir():
+        if entry.name.startswith(".") or entry.suffix.lower() not in FRAME_SUFFIXES:
+            continue
+        if entry.is_symlink():
+            _checked_link(entry, inside)
+        if entry.is_file():
+            files.append(entry)
     return sorted(files, key=lambda entry: natural_key(entry.name))
 
 
@@ -188,8 +212,14 @@ def _decode(file: Path, decoder: str, *, frame: int | None = None) -> np.ndarray
     else:
         checked = nullcontext()
     try:
+        data = np.fromfile(file, dtype=np.uint8)
+    except OSError as exc:
+        raise RecordingError(
+            f"cannot be read ({exc.strerror or exc})", path=file, frame=frame
+        ) from None
+    try:
         with checked:
-            image = cv2.imread(str(file), cv2.IMREAD_UNCHANGED)
+            image = cv2.imdecode(data, cv2.IMREAD_UNCHANGED) if data.size else None
     except cv2.error as exc:
         raise RecordingError(
             f"cannot be decoded by OpenCV ({' '.join(str(exc).split())[-160:]})",

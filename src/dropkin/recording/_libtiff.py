@@ -27,9 +27,30 @@ import cv2
 
 from ..errors import RecordingError
 
-__all__ = ["libtiff_errors", "libpng_errors"]
+__all__ = ["libtiff_errors", "libpng_errors", "opencv_path"]
 
 _LOG = cv2.utils.logging
+
+
+def opencv_path(path) -> str:
+    """`path` as the text OpenCV's file functions take, or a RecordingError.
+
+    OpenCV takes a file name as UTF-8 text; a name that is not valid UTF-8
+    (bytes such as ``\\xff`` in a folder's name, kept by Python as lone
+    surrogates) crashed the process by a signal inside OpenCV. Readers that
+    can, hand OpenCV the file's bytes instead (``cv2.imdecode``); the video
+    reader and the TIFF pages OpenCV decodes need a name, and refuse here.
+    """
+    text = str(path)
+    try:
+        text.encode("utf-8")
+    except UnicodeEncodeError:
+        raise RecordingError(
+            "has a name that is not valid UTF-8, which OpenCV cannot open",
+            path=path,
+            expected="the file (or its folder) renamed in UTF-8",
+        ) from None
+    return text
 
 
 @contextmanager

@@ -7,17 +7,30 @@ out that the file holds a few kilobytes. Every reader therefore checks the
 size of one decoded frame, from the header alone, against
 :data:`MAX_FRAME_BYTES` before it decodes anything.
 
-The bound is 256 MiB for one frame as the decoder produces it (rows x columns
+The bound is 64 MiB for one frame as the decoder produces it (rows x columns
 x samples per pixel x bytes per sample, before colour is converted to gray):
-a 16-bit gray frame of up to 11 585 x 11 585 pixels, an 8-bit colour frame
-with alpha of 8192 x 8192. High-speed cameras record one to a few megapixels
-(a 16-bit frame of 4 megapixels is 8 MiB), so the bound leaves a factor of 30
-above the largest sensor a coalescence or spreading experiment uses, and
-refuses only what no such camera writes. It holds for every reader, also for
+a 16-bit gray frame of up to 5792 x 5792 pixels, an 8-bit gray frame of
+8192 x 8192, an 8-bit colour frame with alpha of 4096 x 4096. High-speed
+cameras record one to a few megapixels (a 16-bit frame of 4 megapixels is
+8 MiB; common practice), so the bound leaves a factor of 8 above the largest
+sensor a coalescence or spreading experiment uses, and refuses only what no
+such camera writes. The per-frame analysis works on floating-point copies
+of a frame (several times its decoded size), so a bound of 256 MiB let three
+hostile 16000 x 16000 PNG frames of 750 kB cost gigabytes before the analysis
+gave up; the bound is set for that working memory, not for the decoder's.
+It holds for every reader, also for
 uncompressed TIFF stacks that could be memory-mapped, so that one rule says
 which frames dropkin reads. How many frames are held at once is the caller's
 choice (``Recording.chunks(n)``); the readers never decode more than the
 frames asked for.
+
+The frames decoded together are bounded as well: :func:`frames_at_once`
+says how many frames of a recording fit in :data:`MAX_HELD_BYTES` (256 MiB,
+decoded), at least one; the measurement cuts its chunks to that number, so a
+recording of large frames is streamed a few frames at a time whatever
+``--chunk-size`` asks. Both bounds are applied to the sizes the headers
+claim, before any frame is decoded. There is no bound on a recording's
+length: its frames are never all held at once.
 
 The number of frames a file claims is checked against its size instead: a
 TIFF stack whose pages would end past the end of the file is refused as
@@ -30,10 +43,28 @@ import math
 
 from ..errors import RecordingError
 
-__all__ = ["MAX_FRAME_BYTES", "check_frame_size"]
+__all__ = ["MAX_FRAME_BYTES", "MAX_HELD_BYTES", "check_frame_size", "frames_at_once"]
 
 #: Largest decoded frame dropkin reads, in bytes (see the module docstring).
-MAX_FRAME_BYTES = 256 * 2**20
+MAX_FRAME_BYTES = 64 * 2**20
+
+#: Largest sum of decoded frames held at once, in bytes (see the module docstring).
+MAX_HELD_BYTES = 256 * 2**20
+
+
+def frames_at_once(shape, itemsize: int, wanted: int) -> int:
+    """How many of `wanted` frames of `shape` and `itemsize` to decode together:
+    at most `wanted`, at least 1, and no more than fit in :data:`MAX_HELD_BYTES`.
+
+    Examples
+    --------
+    >>> frames_at_once((1024, 1024), 2, 64)
+    64
+    >>> frames_at_once((8192, 8192), 1, 64)
+    4
+    """
+    frame = max(math.prod(int(s) for s in shape) * int(itemsize), 1)
+    return max(1, min(int(wanted), MAX_HELD_BYTES // frame))
 
 
 def check_frame_size(shape, itemsize: int, *, path, frame: int | None = None) -> None:
@@ -63,7 +94,7 @@ def check_frame_size(shape, itemsize: int, *, path, frame: int | None = None) ->
     Traceback (most recent call last):
         ...
     dropkin.errors.RecordingError: a.tif: claims frames of 100000 x 100000 samples of 2 bytes \
-(20000000000 bytes), more than the 268435456 bytes dropkin decodes per frame
+(20000000000 bytes), more than the 67108864 bytes dropkin decodes per frame
     """
     dims = [int(s) for s in shape]
     if not dims or min(dims) < 1:

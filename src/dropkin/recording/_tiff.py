@@ -38,7 +38,7 @@ import tifffile
 from ..errors import RecordingError
 from ._base import FileTiming
 from ._gray import notes_for_channels, to_gray
-from ._libtiff import libtiff_errors
+from ._libtiff import libtiff_errors, opencv_path
 from ._tiffcheck import (
     check_claims,
     check_contiguous_frames,
@@ -278,7 +278,7 @@ class TiffStack:
         try:
             with libtiff_errors(self.path, frame=start):
                 ok, images = cv2.imreadmulti(
-                    str(self.path), start=first, count=count, flags=cv2.IMREAD_UNCHANGED
+                    opencv_path(self.path), start=first, count=count, flags=cv2.IMREAD_UNCHANGED
                 )
         except RecordingError:
             if count == 1:

@@ -30,6 +30,7 @@ import numpy as np
 
 from ..errors import RecordingError
 from ._gray import notes_for_channels, to_gray
+from ._libtiff import opencv_path
 from ._lossy import video_codec
 
 __all__ = ["VIDEO_SUFFIXES", "Video", "open_video"]
@@ -122,7 +123,7 @@ class Video:
 
     def _open(self):
         if self._capture is None:
-            capture = cv2.VideoCapture(str(self.path))
+            capture = cv2.VideoCapture(opencv_path(self.path))
             if not capture.isOpened():
                 raise RecordingError(
                     "cannot be opened by OpenCV (not a video format it decodes, or damaged)",

@@ -6,7 +6,7 @@ from pathlib import Path
 
 import numpy as np
 
-from .._atomic import atomic_path
+from .._atomic import write_bytes_atomic
 from ..vision import light_span
 
 __all__ = ["choose_overlay_frames", "write_overlays"]
@@ -168,9 +168,12 @@ def write_overlays(recording, series, extras, out_dir, *, count: int = 6) -> lis
             label += f"  r = {radius_px:.2f} px"
         image = _with_caption(image, label)
         path = out_dir / f"frame_{int(series.frame[index]):06d}.png"
-        with atomic_path(path) as tmp:
-            if not cv2.imwrite(str(tmp), image):
-                raise OSError(f"cannot write {path}")
+        # encoded in memory: OpenCV is never handed a file name (one that is
+        # not valid UTF-8 crashed it)
+        ok, encoded = cv2.imencode(".png", image)
+        if not ok:
+            raise OSError(f"cannot write {path}")
+        write_bytes_atomic(path, encoded.tobytes())
         written.append(path)
     return written
 
