@@ -151,7 +151,9 @@ def test_the_keywords_are_the_analyze_command_options_with_the_same_ranges():
     command = main.commands["analyze"]
     params = {p.name: p for p in command.params}
     renamed = {"overlay_count": "overlays", "liquids_file": "liquids"}
-    names = {renamed.get(name, name) for name in params} - {"source", "out"}
+    # where the files go, and whether an earlier run's folder may be replaced,
+    # are said when writing: result.write(out, overwrite=...)
+    names = {renamed.get(name, name) for name in params} - {"source", "out", "overwrite"}
     assert names == set(ANALYZE_KEYWORDS)
     for name, (low, high) in SETTING_RANGES.items():
         kind = params["overlay_count" if name == "overlays" else name].type
@@ -169,3 +171,21 @@ def test_import_dropkin_loads_the_api_only_when_used():
     env = {"PYTHONPATH": str(ROOT / "src"), "PATH": ""}
     run = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True, env=env)
     assert run.stdout.split() == ["False", "False", "True"], run.stderr
+
+
+def test_write_refuses_another_runs_folder_and_replaces_it_whole_when_asked(
+    result, cli_out, tmp_path
+):
+    # The rule of every command that writes (issue on faults, finding 3): a folder
+    # holding another run's results is refused, or with overwrite replaced whole.
+    import shutil
+
+    out = tmp_path / "used"
+    shutil.copytree(cli_out, out)
+    (out / "angles.csv").write_text("frame,left_deg,right_deg\n0,1,1\n", encoding="utf-8")
+    with pytest.raises(dropkin.DropkinError, match="already holds the results of another run"):
+        result.write(out)
+    assert (out / "angles.csv").is_file()  # left as it was
+    result.write(out, overwrite=True)
+    assert not (out / "angles.csv").exists()  # nothing of the other run is kept
+    assert (out / "radius.csv").read_bytes() == (cli_out / "radius.csv").read_bytes()
