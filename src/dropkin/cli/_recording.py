@@ -88,11 +88,13 @@ def measure_summary(series, out) -> str:
 
     counts = {s: series.status.count(s) for s in dict.fromkeys(series.status)}
     summary = ", ".join(f"{n} {s}" for s, n in counts.items() if n)
+    disagreement = series.details.get("contact_disagreement")
     return (
         f"{len(series)} frames: {summary}; measured contact t_c = "
         f"{time_text(series.contact_time, 4)} ± {time_text(series.contact_time_err, 2)} "
         f"after the first frame (radius.csv's since_contact_s counts from it); "
         f"wrote {out / 'radius.csv'}"
+        + (f"\nwarning: the contact signals disagree: {disagreement}" if disagreement else "")
     )
 
 

@@ -195,7 +195,7 @@ def _edge_spread(trans, cols, rows, half_window: int) -> float:
     return max(1.0 / (np.sqrt(2.0 * np.pi) * max(slope, 1e-6)), 0.5)
 
 
-def _conserved_rows(trans, cols, rows, half_window: int, level_rows: int = 4):
+def _conserved_rows(trans, cols, rows, half_window: int, level_rows: int = 8):
     """The edge rows refined by conserving the light of each column (sub-pixel, unbiased).
 
     Around the first guess `rows` (the midpoint crossing, whose linear
@@ -219,12 +219,24 @@ def _conserved_rows(trans, cols, rows, half_window: int, level_rows: int = 4):
     cols, a, b = cols[fits], a[fits], b[fits]
     offsets = np.arange(-w - level_rows, w + level_rows + 1)
     block = trans[a[:, None] + w + offsets[None, :], cols[:, None]]  # (C, rows)
-    top = block[:, :level_rows].mean(axis=1)
-    low = block[:, -level_rows:].mean(axis=1)
+    # Each level drifts with the row (light falling off towards the band's
+    # inside, a glow): its slope, from the median over the columns, carries
+    # each column's mean level to the window's rows.
+    median = np.median(block, axis=0)
+    rel = np.arange(level_rows) - 0.5 * (level_rows - 1)
+    slope_top = float(np.polyfit(rel, median[:level_rows], 1)[0])
+    slope_low = float(np.polyfit(rel, median[-level_rows:], 1)[0])
+    inner = np.arange(1, 2 * w + 2)  # the window's rows, counted from the top level rows
+    top = block[:, :level_rows].mean(axis=1)[:, None] + slope_top * (
+        inner + 0.5 * (level_rows - 1)
+    )
+    low = block[:, -level_rows:].mean(axis=1)[:, None] - slope_low * (
+        2 * w + 2 - inner + 0.5 * (level_rows - 1)
+    )
     span = top - low
     window = block[:, level_rows:-level_rows]
-    good = span > 0.25 * max(float(np.median(span)), 1e-6)
-    u = (window - low[:, None]) / np.where(good, span, 1.0)[:, None]
+    good = span.min(axis=1) > 0.25 * max(float(np.median(span)), 1e-6)
+    u = (window - low) / np.where(good[:, None], span, 1.0)
     edge = a - 0.5 + u.sum(axis=1)
     # A refined row far from the guess means something else lies in the window.
     good &= np.abs(edge - rows[fits]) < 1.5
