@@ -8,6 +8,7 @@ import numpy as np
 import pytest
 import tifffile
 from click.testing import CliRunner
+from PIL import Image
 
 from dropkin.cli import main
 from dropkin.cli._synth import law_choices, synth_command
@@ -209,3 +210,21 @@ def test_synth_refuses_coalescence_options_for_spreading(tmp_path, extra):
     result = _run(str(tmp_path / "x"), *SMALL, "--geometry", "spreading", *extra)
     assert result.exit_code != 0
     assert "applies only to coalescence" in result.output
+
+
+def test_synth_drop_lowered_onto_a_mirror_with_the_surface_inside_a_pixel(tmp_path):
+    # The plate's surface a quarter of a pixel into row 33: the rows above it
+    # are background, the row holding it partly plate (coverage 0.75 of a
+    # pixel: dropkin.synth computes exact pixel areas).
+    out = tmp_path / "m"
+    args = [str(out), *SMALL, "--geometry", "spreading", "--reflectivity", "0.5"]
+    args += ["--drop-radius", "0.2 mm", "--noise", "0", "--blur", "0"]
+    result = _run(*args, "--substrate-row", "32.75")
+    assert result.exit_code == 0, result.output
+    frame = np.asarray(Image.open(out / "frame_00000.png"), dtype=np.float64)
+    column = frame[:, 2]  # far from the drop
+    top, plate = column[31], column[35]
+    assert plate < top
+    assert (column[33] - plate) / (top - plate) == pytest.approx(0.25, abs=0.02)
+    bad = _run(str(tmp_path / "b"), *SMALL, "--substrate-row", "10")
+    assert bad.exit_code != 0 and "--substrate-row" in bad.output

@@ -3,6 +3,7 @@
 import math
 
 import numpy as np
+import pytest
 
 from dropkin.contact import (
     ContactEstimate,
@@ -21,6 +22,8 @@ def test_record_round_trips_through_its_file_form():
         "contact_time_err_s": 1.5e-6,
         "contact_bracket_s": [2.0e-5, 3.0e-5],
         "contact_method": "gap closure over 5 frames",
+        "contact_signals": {},
+        "contact_disagreement": None,
     }
     back = ContactEstimate.from_dict(fields)
     assert back == ContactEstimate(2.5e-5, 1.5e-6, (2.0e-5, 3.0e-5), None, contact.method)
@@ -88,3 +91,69 @@ def test_default_bracket_and_the_cut_before_the_first_point():
     lo, hi = bracket_before_first_point(4e-6, 8e-6, np.array([3e-6, 5.5e-6]), frames)
     assert lo == 4e-6 and math.isclose(hi, 5.5e-6 - 0.02e-6)
     assert bracket_before_first_point(4e-6, 4e-6, np.array([5.5e-6]), frames) == (4e-6, 4e-6)
+
+
+def _closing_then_neck(t0_frame, *, leak, speed=2.0, growth=0.6, frames=40):
+    """A synthetic fixture in pixels and frames (invented): a gap closing at
+    `speed` px/frame onto contact at `t0_frame`, after which blur still
+    carries `leak` px of light onto the axis beside a neck narrower than the
+    blur (frames ``unresolved``), and from r = 12 px a measured neck growing
+    linearly at `growth` px/frame (``ok``)."""
+    t = np.arange(frames, dtype=np.float64)
+    since = t - t0_frame
+    gap = np.where(since < 0, -speed * since + leak, leak * np.exp(-np.maximum(since, 0) / 20))
+    r = np.where(since > 0, growth * since, np.nan)
+    status = np.where(since < -0.8, "before-contact", np.where(r >= 12.0, "ok", "unresolved"))
+    r[status != "ok"] = np.nan
+    gap[status == "ok"] = 0.01 * np.cos(t[status == "ok"])  # no light beside a wide neck
+    return t, r, np.full(frames, 0.1), list(status), gap
+
+
+def test_a_neck_below_the_blur_is_not_a_gap():
+    # Frames just after contact read a small gap (light carried beside a
+    # sub-pixel neck, ~sigma^2/R: 0.1-0.25 px on dropkin.synth recordings with
+    # sigma = 2-3 px); above the fixed 0.1 px floor they used to count as open
+    # and clamp t0 up to 13 frames late.
+    for leak in (0.0, 0.05, 0.25, 0.6):
+        t, r, err, status, gap = _closing_then_neck(4.85, leak=leak)
+        contact = estimate_contact(t, r, err, status, gap=gap, early_radius=20.0, gap_floor=0.1)
+        assert abs(contact.time - 4.85) < 0.1, (leak, contact)
+        assert contact.bracket[0] <= 4.85 <= contact.bracket[1]
+        light = contact.signals["light_on_axis"]
+        assert light["last_open_s"] == 4.0 and light["first_closed_s"] == 5.0
+        assert contact.to_dict()["contact_signals"]["gap_closure"]["time_s"] == pytest.approx(
+            4.85, abs=0.1
+        )
+
+
+def test_the_statuses_give_way_to_the_light_on_the_axis():
+    # A frame called before-contact whose gap reads at the level of contact
+    # shows a neck below the blur: the bracket starts before it.
+    t, r, err, status, gap = _closing_then_neck(4.5, leak=0.3)
+    status[5] = "before-contact"
+    contact = estimate_contact(t, r, err, status, gap=gap, early_radius=20.0, gap_floor=0.1)
+    assert contact.bracket[0] == 4.0 and abs(contact.time - 4.5) < 0.1
+
+
+def test_disagreeing_signals_are_reported_and_a_mirror_meeting_is_not_contact():
+    # The gap reaches zero 2.5 frames before the radius starts to grow (as
+    # when the drop meets its mirror image on a reflective plate before it
+    # touches the plate): the disagreement is said, and with a mirror the
+    # radius, which only contact makes grow, is kept.
+    t = np.arange(40, dtype=np.float64)
+    t_touch = 7.3
+    gap = np.where(t < t_touch - 2.5, 0.5 * (t_touch - 2.5 - t), 0.0)
+    r = np.where(t > t_touch, 3.0 * np.sqrt(np.maximum(t - t_touch, 0)), np.nan)
+    status = ["before-contact"] * 4 + ["unresolved"] * 4 + ["ok"] * 32
+    r[:8] = np.nan
+    err = np.full(40, 0.05)
+    for mirror, kept in ((True, "radius extrapolation"), (False, "gap closure")):
+        contact = estimate_contact(t, r, err, status, gap=gap, early_radius=20.0, mirror=mirror)
+        assert contact.disagreement and f"the {kept} was kept" in contact.disagreement
+        assert contact.to_dict()["contact_disagreement"] == contact.disagreement
+        signals = contact.signals
+        assert signals["gap_closure"]["time_s"] == pytest.approx(t_touch - 2.5, abs=0.2)
+        assert signals["radius_extrapolation"]["time_s"] == pytest.approx(t_touch, abs=0.3)
+    assert abs(contact.time - (t_touch - 2.5)) < 0.2  # without a mirror: the gap
+    mirrored = estimate_contact(t, r, err, status, gap=gap, early_radius=20.0, mirror=True)
+    assert abs(mirrored.time - t_touch) < 0.3

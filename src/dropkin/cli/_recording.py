@@ -95,11 +95,13 @@ def measure_summary(series, out) -> str:
         if lossy.get("compression")
         else ""
     )
+    disagreement = series.details.get("contact_disagreement")
     return (
         f"{len(series)} frames: {summary}; measured contact t_c = "
         f"{time_text(series.contact_time, 4)} ± {time_text(series.contact_time_err, 2)} "
         f"after the first frame (radius.csv's since_contact_s counts from it); "
         f"wrote {out / 'radius.csv'}{caution}"
+        + (f"\nwarning: the contact signals disagree: {disagreement}" if disagreement else "")
     )
 
 

@@ -155,6 +155,13 @@ def _size(ctx, param, value):
     show_default=True,
     help="Spreading, side view: 0 for an opaque plate, else the drop's mirror image shows.",
 )
+@click.option(
+    "--substrate-row",
+    type=FINITE_FLOAT,
+    help="Spreading, side view: row of the plate's surface, anywhere inside a pixel (default:"
+    " on a pixel edge 70 % down the frame). With --reflectivity and a law that spreads to a"
+    " few drop radii, a drop lowered onto a mirror at small angles.",
+)
 @click.option("--needle-width", type=positive("m"), help="A needle into the upper drop.")
 @click.option(
     "--dust",
@@ -215,6 +222,8 @@ def _setup(o):
     from .. import synth
 
     if o["geometry"] == "coalescence":
+        if o["substrate_row"] is not None:
+            raise ExperimentError("applies only to spreading", key="--substrate-row")
         return synth.Coalescence(
             view=o["view"],
             drop_radius=o["drop_radius"],
@@ -230,11 +239,15 @@ def _setup(o):
         raise ExperimentError("applies only to coalescence", key="--ringing-at")
     if o["second_radius"] is not None:
         raise ExperimentError("applies only to coalescence", key="--second-radius")
+    row = o["substrate_row"]
+    if row is not None and not 0.0 < row < o["size"][0] - 2:
+        raise ExperimentError("must lie inside the frame", key="--substrate-row", value=row)
     return synth.Spreading(
         view=o["view"],
         drop_radius=o["drop_radius"],
         reflectivity=o["reflectivity"],
         approach_speed=o["approach_speed"],
+        substrate_row_px=row,
     )
 
 

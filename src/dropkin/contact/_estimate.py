@@ -29,12 +29,13 @@ only the bracket (width over sqrt(12), a uniform distribution).
 from __future__ import annotations
 
 import math
-from dataclasses import dataclass
+from dataclasses import dataclass, field
 
 import numpy as np
 
 from ..status import IN_CONTACT
-from ._extrapolate import from_gap, from_radius
+from ._extrapolate import from_radius
+from ._gap import gap_estimate
 
 __all__ = ["ContactEstimate", "estimate_contact"]
 
@@ -65,6 +66,16 @@ class ContactEstimate:
         file form: :meth:`from_dict` gives None.
     method : str
         How `time` was obtained, in a sentence. ``contact_method``.
+    signals : dict
+        What each signal of the frames says on its own (s): ``gap_closure``
+        and ``radius_extrapolation`` (``{"time_s", "err_s"}``),
+        ``light_on_axis`` (``{"last_open_s", "first_closed_s"}``: the last
+        frame whose gap is open, the first at the level of contact) and
+        ``first_radius_s`` (the first measured radius); those that could not
+        be read are left out. ``contact_signals``.
+    disagreement : str
+        Empty when the signals agree; else what disagrees, and which was kept,
+        in a sentence. ``contact_disagreement`` (None when empty).
     """
 
     time: float | None
@@ -72,6 +83,8 @@ class ContactEstimate:
     bracket: tuple[float, float] | None
     first_index: int | None
     method: str
+    signals: dict = field(default_factory=dict, compare=False)
+    disagreement: str = ""
 
     def __bool__(self) -> bool:
         return self.time is not None
@@ -90,6 +103,8 @@ class ContactEstimate:
             "contact_time_err_s": self.err,
             "contact_bracket_s": None if self.bracket is None else list(self.bracket),
             "contact_method": self.method,
+            "contact_signals": dict(self.signals),
+            "contact_disagreement": self.disagreement or None,
         }
 
     @classmethod
@@ -98,8 +113,9 @@ class ContactEstimate:
 
         Examples
         --------
-        >>> ContactEstimate.from_dict({"contact_time_s": 2e-5, "contact_bracket_s": [1e-5, 3e-5]})
-        ContactEstimate(time=2e-05, err=None, bracket=(1e-05, 3e-05), first_index=None, method='')
+        >>> fields = {"contact_time_s": 2e-5, "contact_bracket_s": [1e-5, 3e-5]}
+        >>> ContactEstimate.from_dict(fields).bracket
+        (1e-05, 3e-05)
         """
         bracket = fields.get("contact_bracket_s")
         return cls(
@@ -108,34 +124,9 @@ class ContactEstimate:
             bracket=None if bracket is None else (bracket[0], bracket[1]),
             first_index=None,
             method=fields.get("contact_method") or "",
+            signals=dict(fields.get("contact_signals") or {}),
+            disagreement=fields.get("contact_disagreement") or "",
         )
-
-
-def _gap_estimate(time, gap, ok, first_ok, lo, gap_frames, gap_floor):
-    """The gap closure: (lo narrowed to the last open gap, (t0, err) or None, method)."""
-    gap = np.asarray(gap, dtype=np.float64)
-    # The gaps of the frames in contact give the noise floor.
-    floor_values = gap[ok & np.isfinite(gap)]
-    noise = 1.4826 * float(np.median(np.abs(floor_values))) if floor_values.size else 0.0
-    # A gap counts as open above three noise levels and above `gap_floor`
-    # (blur lets a barely formed neck add a little light on the axis).
-    floor = max(3.0 * noise, gap_floor)
-    open_ = np.isfinite(gap) & (gap > floor) & (np.arange(len(ok)) < first_ok)
-    open_idx = np.nonzero(open_)[0]
-    if not open_idx.size:
-        return lo, None, ""
-    lo = max(lo, float(time[open_idx[-1]]))
-    idx = open_idx[-gap_frames:]
-    t0, err = from_gap(time[idx], gap[idx])
-    if t0 is not None and err is not None:
-        # Allow for a bias of the measured gap of `gap_floor / 2` (on
-        # synthetic frames the smallest gaps read a few hundredths of
-        # a pixel wide), converted to time by the closing speed.
-        speed = abs(np.polyfit(time[idx], gap[idx], 1)[0])
-        err = math.hypot(err, 0.5 * gap_floor / speed) if speed > 0 else err
-    if t0 is not None and err is not None and err > 0:
-        return lo, (t0, err), f"gap closure over {len(idx)} frames"
-    return lo, None, ""
 
 
 def _radius_estimate(time, radius, radius_err, ok, lo, hi, early_radius, fit_frames):
@@ -162,9 +153,34 @@ def _radius_estimate(time, radius, radius_err, ok, lo, hi, early_radius, fit_fra
     return None, ""
 
 
-def _combine(estimates, methods, lo, hi, first) -> ContactEstimate:
+def _disagree(estimates, methods, mirror):
+    """Two estimates that disagree: (the ones kept, their methods, what was said)."""
+    (tg, eg), (tr, er) = estimates
+    if abs(tg - tr) <= 3.0 * math.hypot(eg, er):
+        return estimates, methods, ""
+    said = (
+        f"the gap closure ({tg:.6g} s) and the radius extrapolation ({tr:.6g} s) differ by"
+        f" {abs(tg - tr) / math.hypot(eg, er):.1f} combined standard errors"
+    )
+    if mirror and tg < tr:
+        # The drop meets its mirror image when the gap to the plate is below
+        # the blur, before it touches: the radius, which only contact makes
+        # grow, is kept.
+        return (
+            estimates[1:],
+            methods[1:],
+            said + "; the drop may have met its mirror image first: the radius extrapolation"
+            " was kept",
+        )
+    # The gap closure observes the contact directly; the extrapolation rests
+    # on the shape of a power law.
+    return estimates[:1], methods[:1], said + "; the gap closure was kept"
+
+
+def _combine(estimates, methods, lo, hi, first, *, mirror=False, signals=None):
     """The estimates weighted by their uncertainties, inside the bracket (lo, hi)."""
     uniform = (hi - lo) / math.sqrt(12.0)
+    signals = signals or {}
     if not estimates:
         return ContactEstimate(
             0.5 * (lo + hi),
@@ -172,16 +188,11 @@ def _combine(estimates, methods, lo, hi, first) -> ContactEstimate:
             (lo, hi),
             first,
             "midpoint of the bracket (too few frames to extrapolate)",
+            signals,
         )
-    note = ""
+    said = ""
     if len(estimates) == 2:
-        (tg, eg), (tr, er) = estimates
-        if abs(tg - tr) > 3.0 * math.hypot(eg, er):
-            # They disagree: the gap closure observes the contact directly,
-            # the extrapolation rests on the shape of a power law.
-            estimates = estimates[:1]
-            note = f"; the radius extrapolation ({tr:.6g} s) disagreed and was set aside"
-            methods = methods[:1]
+        estimates, methods, said = _disagree(estimates, methods, mirror)
     weights = np.array([1.0 / e**2 for _, e in estimates])
     values = np.array([v for v, _ in estimates])
     mean = float(np.sum(weights * values) / weights.sum())
@@ -193,19 +204,11 @@ def _combine(estimates, methods, lo, hi, first) -> ContactEstimate:
         err *= math.sqrt(max(chi2, 1.0))
     t0 = float(np.clip(mean, lo, hi))
     err = min(err, uniform)
-    return ContactEstimate(
-        t0,
-        err,
-        (lo, hi),
-        first,
-        (
-            " and ".join(methods) + ", weighted by their uncertainties"
-            if len(methods) > 1
-            else methods[0]
-        )
-        + ", inside the bracket"
-        + note,
+    joined = " and ".join(methods) + (
+        ", weighted by their uncertainties" if len(methods) > 1 else ""
     )
+    method = joined + ", inside the bracket" + (f"; {said}" if said else "")
+    return ContactEstimate(t0, err, (lo, hi), first, method, signals, said)
 
 
 def estimate_contact(
@@ -219,6 +222,7 @@ def estimate_contact(
     fit_frames: int = 30,
     gap_frames: int = 6,
     gap_floor: float = 0.0,
+    mirror: bool = False,
 ) -> ContactEstimate:
     """Estimate the contact instant of a radius series.
 
@@ -239,8 +243,12 @@ def estimate_contact(
     fit_frames, gap_frames : int, optional
         At most this many frames enter each estimate.
     gap_floor : float, optional
-        Gaps below this count as closed (in the unit of `gap`), whatever the
-        noise.
+        Gaps below this above the level of contact count as closed (in the
+        unit of `gap`), whatever the noise.
+    mirror : bool, optional
+        The drop faces its mirror image (a reflective plate): when the gap
+        closure comes before the radius extrapolation beyond their errors,
+        the gap may have closed onto the mirror image, and the radius is kept.
 
     Returns
     -------
@@ -261,29 +269,37 @@ def estimate_contact(
         )
     ok = np.array([s == "ok" for s in status], dtype=bool) & np.isfinite(radius)
     ok &= np.arange(len(status)) >= first
-    last_gap = int(np.nonzero(before[:first])[0][-1])
-    lo = float(time[last_gap])
-    if not ok.any():
-        hi = float(time[first])
-        return ContactEstimate(
-            0.5 * (lo + hi),
-            (hi - lo) / math.sqrt(12.0),
-            (lo, hi),
-            first,
-            "midpoint of the bracket (no frame after contact could be measured)",
-        )
-    first_ok = int(np.nonzero(ok)[0][0])
-    hi = float(time[first_ok])
-    estimates, methods = [], []
+    lo = float(time[int(np.nonzero(before[:first])[0][-1])])
+    first_ok = int(np.nonzero(ok)[0][0]) if ok.any() else len(status)
+    signals, estimates, methods = {}, [], []
+    light = None
     if gap is not None:
-        lo, found, method = _gap_estimate(time, gap, ok, first_ok, lo, gap_frames, gap_floor)
+        lo, found, method, light = gap_estimate(time, gap, ok, first_ok, lo, gap_frames, gap_floor)
+        if light is not None:
+            signals["light_on_axis"] = {"last_open_s": light[0], "first_closed_s": light[1]}
         if found is not None:
             estimates.append(found)
             methods.append(method)
+            signals["gap_closure"] = {"time_s": found[0], "err_s": found[1]}
+    if not ok.any():
+        hi = float(time[first]) if light is None else max(light[1], float(time[first]))
+        if not estimates:
+            return ContactEstimate(
+                0.5 * (lo + hi),
+                (hi - lo) / math.sqrt(12.0),
+                (lo, hi),
+                first,
+                "midpoint of the bracket (no frame after contact could be measured)",
+                signals,
+            )
+        return _combine(estimates, methods, lo, hi, first, signals=signals)
+    hi = float(time[first_ok])
+    signals["first_radius_s"] = hi
     found, method = _radius_estimate(
         time, radius, radius_err, ok, lo, hi, early_radius, fit_frames
     )
     if found is not None:
         estimates.append(found)
         methods.append(method)
-    return _combine(estimates, methods, lo, hi, first)
+        signals["radius_extrapolation"] = {"time_s": found[0], "err_s": found[1]}
+    return _combine(estimates, methods, lo, hi, first, mirror=mirror, signals=signals)

@@ -130,6 +130,7 @@ def measure(
         gap=gap,
         early_radius=_drop_radii_px(prep).min() / 3.0,
         gap_floor=0.1,
+        mirror=bool(getattr(prep.spreading or prep.sessile, "mirror", False)),
     )
     status, early = relabel_before_contact(recording.times, status_names(px.codes), contact.time)
     end = _growth_end(recording, prep, px, status, contact)
@@ -283,6 +284,8 @@ def _details(recording, experiment, prep, options, contact, pixel: float, end) -
         "drop_radius_origin": "experiment file" if experiment.drops.radius else "circle fit",
         "contact_bracket_s": own["contact_bracket_s"],
         "contact_method": own["contact_method"],
+        "contact_signals": own["contact_signals"],
+        "contact_disagreement": own["contact_disagreement"],
         "contrast": prep.contrast,
         "contrast_origin": prep.contrast_origin,
         "edge_level": options.level,

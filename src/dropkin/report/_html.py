@@ -242,6 +242,7 @@ def _measurement_rows(series, verdict) -> list[tuple[str, str]]:
         ("status counts", ", ".join(f"{k}: {v}" for k, v in counts.items()) or "—"),
         ("contact time t_c (measured)", measured),
         ("contact method", str(series.details.get("contact_method", "—"))),
+        ("contact signals disagree", str(series.details.get("contact_disagreement") or "no")),
         ("contact time t₀ (fit)", fitted),
         ("time origin", origin_sentence(time_origin(series, verdict))),
         ("unresolved criterion", str(series.details.get("unresolved_criterion", "—"))),
