@@ -351,9 +351,12 @@ def _measure_side_chunk(frames, setup, **settings):
         )
 
     probe = run(frames[-1:], None)
-    ext = probe.extent[0]
-    if np.all(np.isfinite(ext)):
-        half = max(setup.axis_col - ext[0], ext[1] - setup.axis_col)
+    # The outline's outermost points in the fit window, or the contact points
+    # if further out (at small angles the window's lowest row meets the
+    # outline many pixels inside them).
+    ext = np.concatenate([probe.extent[0], probe.edges[0, :, 1]])
+    if np.all(np.isfinite(ext[:2])):
+        half = np.nanmax(np.abs(ext - setup.axis_col))
     else:
         half = setup.drop_radius
     half += 3.0 * sigma + 8.0
