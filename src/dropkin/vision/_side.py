@@ -130,7 +130,7 @@ def measure_side(
     # slope (the step over sigma sqrt(2 pi)).
     step = np.maximum(np.stack([bg_left, bg_right], axis=1) - float(setup.drop_level), 1e-6)
     floor = noise * sigma * np.sqrt(2 * np.pi) / step
-    sides, limits, extent = _sides_at(strip, thr_map, line, setup, wedge_distance, floor)
+    sides, limits, extent = _sides_at(strip, thr_map, line, setup, wedge_distance, floor, level)
     has_dark, before, gap = axis_contact(
         frames, illumination, dark, line, setup, 0.5 * (bg_left + bg_right), level
     )
@@ -151,18 +151,26 @@ def measure_side(
     others = np.full((k, len(levels)), np.nan)
     for i, other in enumerate(levels):
         thr_other = edge_levels(strip, setup, float(other))[0]
-        at_other = _sides_at(strip, thr_other, line, setup, wedge_distance, floor)[0]
+        at_other = _sides_at(strip, thr_other, line, setup, wedge_distance, floor, float(other))[0]
         others[:, i] = np.where(measured, at_other.radius, np.nan)
     return SideChunk(
         radius, radius_err, edges, status, gap, angles, sides.wedge, extent, limits, others
     )
 
 
-def _sides_at(strip, thr_map, line, setup, wedge_distance, floor):
+def _sides_at(strip, thr_map, line, setup, wedge_distance, floor, level):
     """The outline's crossings of the edge levels `thr_map` and the circles fitted
     to them: (_Sides, limits, extent) (see :func:`_fit_sides`)."""
     points, limits, extent, inner = row_crossings(strip, thr_map, line)
-    points.append(column_crossings(strip, thr_map, float(setup.centre[1]), inner))
+    points.append(
+        column_crossings(
+            strip,
+            thr_map,
+            float(setup.centre[1]),
+            inner,
+            edge=(float(setup.drop_level), level, float(setup.blur)),
+        )
+    )
     return _fit_sides(line, points, wedge_distance, floor), limits, extent
 
 
