@@ -105,7 +105,7 @@ def stream(recording, prep, options, progress):
     n = len(recording)
     # a chunk of large frames is cut to what may be held at once (recording/_limits.py)
     size = frames_at_once(
-        recording.shape, recording.dtype.itemsize, max(int(options.chunk_size), 1)
+        recording.frame_shape, recording.dtype.itemsize, max(int(options.chunk_size), 1)
     )
     if options.jobs <= 1:
         hint = None
