@@ -37,8 +37,9 @@ the load): at load 5-7, (a) 12.8 s / 3.3 s = 3.9; (b) marginal 5,800
 frames/s against a read-and-hash floor of 1,800 (0.31 x the floor's time per
 frame: the neck search reads a band of each frame and the hash runs on
 another core) and 23 x the per-frame script; (d) 146 ms / 84 ms = 1.7
-(before the lazy imports about 0.5-0.6 s at load 0.2); (e) 350 MB (211 MB
-with ``--chunk-size 16``: a chunk of 64 whole frames sets it). (c) at load 7-8:
+(before the lazy imports about 0.5-0.6 s at load 0.2); (e) 206 MB at load
+5.8, with chunks sized in bytes (16 frames of 1024 x 1024, a map of 32;
+571 MB with chunks of 64 frames and a map of 256, the map's pages resident). (c) at load 7-8:
 32.9 recordings/min at ``--jobs 1``, 30.1 at ``--jobs 2`` (0.92 x: no idle
 core for the second worker); at load 22, 5.4 and 11.9 (2.2 x) - on this
 shared machine (c) says little either way. Where

@@ -44,17 +44,21 @@ OLD_PREFIX = ".old-"
 
 
 def input_fingerprint(source) -> list:
-    """Name, size and modification time of every file of a recording.
+    """Name, size, modification and change times, device and inode of every file
+    of a recording.
 
     A cheap stand-in for reading the whole recording: when it is unchanged, the
-    input hash stored in the catalogue is reused.
+    input hash stored in the catalogue is reused. The change time and the inode
+    cannot be set back by a user (``touch -r`` and ``cp -p`` set only the
+    modification time), so a file rewritten with its size and modification
+    time kept is hashed again; any other difference only costs that hash.
     """
     path = Path(source)
     files = sorted(p for p in path.iterdir() if p.is_file()) if path.is_dir() else [path]
     out = []
     for f in files:
         st = f.stat()
-        out.append([f.name, st.st_size, st.st_mtime_ns])
+        out.append([f.name, st.st_size, st.st_mtime_ns, st.st_ctime_ns, st.st_dev, st.st_ino])
     return out
 
 

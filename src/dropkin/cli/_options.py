@@ -206,7 +206,8 @@ def measure_options(command):
             type=click.IntRange(1, 4096),
             default=64,
             show_default=True,
-            help="Frames per chunk.",
+            help="Most frames measured at once; large frames go fewer at a time "
+            "(a chunk holds at most 96 MiB of frames and work arrays).",
         ),
         click.option(
             "--overlays",

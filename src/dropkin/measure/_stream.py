@@ -14,7 +14,7 @@ from concurrent.futures import ProcessPoolExecutor
 import numpy as np
 
 from .. import vision
-from ..recording import frames_at_once
+from ..recording import frames_at_once, frames_mapped
 from ._options import crop
 
 __all__ = ["stream"]
@@ -79,15 +79,17 @@ def _last_radius(result, previous):
 def _sequential_chunks(recording, size):
     """(start, frames) over the recording: memory-mapped when the file allows.
 
-    A memory-mapped stack is handed over four chunks at a time, each mapped
-    on its own and unmapped when dropped: the band sampling reads only the
-    pages it touches, and resident memory stays at a chunk's pages.
+    A memory-mapped stack is handed over a few chunks at a time (four, or
+    fewer when that would map more than ``MAP_BYTES``), each span mapped on
+    its own and unmapped when dropped: the band sampling reads only the pages
+    it touches, and resident memory stays at one span's pages.
     """
     if recording.memmap(0, 1) is None:
         yield from recording.chunks(size)
         return
-    for start in range(0, len(recording), 4 * size):
-        yield start, recording.memmap(start, start + 4 * size)
+    span = frames_mapped(recording.frame_shape, recording.dtype.itemsize, size)
+    for start in range(0, len(recording), span):
+        yield start, recording.memmap(start, start + span)
 
 
 def stream(recording, prep, options, progress):
@@ -103,9 +105,9 @@ def stream(recording, prep, options, progress):
         Called as ``progress(frames_done, frames_total)``.
     """
     n = len(recording)
-    # a chunk of large frames is cut to what may be held at once (recording/_limits.py)
+    # chunks sized in bytes: large frames go a few at a time (recording/_limits.py)
     size = frames_at_once(
-        recording.shape, recording.dtype.itemsize, max(int(options.chunk_size), 1)
+        recording.frame_shape, recording.dtype.itemsize, max(int(options.chunk_size), 1)
     )
     if options.jobs <= 1:
         hint = None

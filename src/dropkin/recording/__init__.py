@@ -21,6 +21,7 @@ from ._base import Recording as Recording
 from ._folder import FRAME_SUFFIXES as FRAME_SUFFIXES
 from ._folder import read_image as read_image
 from ._limits import frames_at_once as frames_at_once
+from ._limits import frames_mapped as frames_mapped
 from ._lossy import CAUTION as LOSSY_CAUTION
 from ._open import RECORDING_SUFFIXES as RECORDING_SUFFIXES
 from ._open import open_recording as open_recording
@@ -32,6 +33,7 @@ __all__ = [
     "open_recording",
     "read_image",
     "frames_at_once",
+    "frames_mapped",
     "FRAME_SUFFIXES",
     "TIFF_SUFFIXES",
     "VIDEO_SUFFIXES",

@@ -24,13 +24,27 @@ which frames dropkin reads. How many frames are held at once is the caller's
 choice (``Recording.chunks(n)``); the readers never decode more than the
 frames asked for.
 
-The frames decoded together are bounded as well: :func:`frames_at_once`
-says how many frames of a recording fit in :data:`MAX_HELD_BYTES` (256 MiB,
-decoded), at least one; the measurement cuts its chunks to that number, so a
-recording of large frames is streamed a few frames at a time whatever
-``--chunk-size`` asks. Both bounds are applied to the sizes the headers
-claim, before any frame is decoded. There is no bound on a recording's
-length: its frames are never all held at once.
+The frames held together are bounded in bytes as well: :func:`frames_at_once`
+says how many frames of a recording one chunk of the measurement holds so
+that the chunk's frames, decoded, plus the analysis' work arrays for them
+stay within :data:`CHUNK_BYTES` (96 MiB), at least one frame and at most the
+``--chunk-size`` asked for. The work arrays are counted as
+:data:`WORK_BYTES_PER_PIXEL` bytes per pixel besides the decoded samples.
+Measured (peak of the arrays allocated while one chunk is analysed, per
+pixel of the chunk's frames, on 1024-column frames): the neck search 0.05
+(median; 1.3 for a chunk searched without a hint), which samples bands of
+a frame; the side-view contact line 0.4; the bottom view 0.2 (1.3 at most);
+the bridge of sessile drops 2.0, which converts a block of rows of every
+frame to one 32-bit float array (4 bytes a pixel of that block, up to the
+whole frame). The 4 bytes a pixel cover that largest case. So 512 x 512
+16-bit frames keep chunks of 64 frames (1.5 MiB a frame) while 1024 x 1024
+16-bit frames go 16 at a time (6 MiB a frame), and a frame of 64 MiB alone.
+A stack read through a memory map is mapped a few chunks at a time, at most
+:data:`MAP_BYTES` (64 MiB, at least one chunk): the pages a band touches stay
+resident while the map lives, and a band across the rows of a frame touches
+most of them. Both bounds are applied to the sizes the headers claim, before
+any frame is decoded. There is no bound on a recording's length: its frames
+are never all held at once.
 
 The number of frames a file claims is checked against its size instead: a
 TIFF stack whose pages would end past the end of the file is refused as
@@ -43,28 +57,76 @@ import math
 
 from ..errors import RecordingError
 
-__all__ = ["MAX_FRAME_BYTES", "MAX_HELD_BYTES", "check_frame_size", "frames_at_once"]
+__all__ = [
+    "CHUNK_BYTES",
+    "MAP_BYTES",
+    "MAX_FRAME_BYTES",
+    "WORK_BYTES_PER_PIXEL",
+    "check_frame_size",
+    "frames_at_once",
+    "frames_mapped",
+]
 
 #: Largest decoded frame dropkin reads, in bytes (see the module docstring).
 MAX_FRAME_BYTES = 64 * 2**20
 
-#: Largest sum of decoded frames held at once, in bytes (see the module docstring).
-MAX_HELD_BYTES = 256 * 2**20
+#: Bytes one chunk of the measurement may hold: its frames decoded plus their
+#: work arrays (see the module docstring).
+CHUNK_BYTES = 96 * 2**20
+
+#: Work-array bytes per pixel of a frame in a chunk, besides its decoded samples
+#: (one 32-bit float copy; see the module docstring).
+WORK_BYTES_PER_PIXEL = 4
+
+#: Most bytes of a memory-mapped stack mapped at once (see the module docstring).
+MAP_BYTES = 64 * 2**20
 
 
-def frames_at_once(shape, itemsize: int, wanted: int) -> int:
-    """How many of `wanted` frames of `shape` and `itemsize` to decode together:
-    at most `wanted`, at least 1, and no more than fit in :data:`MAX_HELD_BYTES`.
+def frames_at_once(frame_shape, itemsize: int, wanted: int) -> int:
+    """How many of `wanted` frames of `frame_shape` and `itemsize` one chunk holds:
+    at most `wanted`, at least 1, and no more than fit in :data:`CHUNK_BYTES`
+    with their work arrays (:data:`WORK_BYTES_PER_PIXEL`).
+
+    Parameters
+    ----------
+    frame_shape : tuple of int
+        (rows, cols) of one frame (not the recording's (frames, rows, cols)).
+    itemsize : int
+        Bytes per decoded sample.
+    wanted : int
+        The chunk size asked for (``--chunk-size``), an upper bound.
 
     Examples
     --------
-    >>> frames_at_once((1024, 1024), 2, 64)
+    >>> frames_at_once((512, 512), 2, 64)
     64
-    >>> frames_at_once((8192, 8192), 1, 64)
-    4
+    >>> frames_at_once((1024, 1024), 2, 64)
+    16
+    >>> frames_at_once((1024, 1024), 2, 8)
+    8
+    >>> frames_at_once((5792, 5792), 2, 64)
+    1
     """
-    frame = max(math.prod(int(s) for s in shape) * int(itemsize), 1)
-    return max(1, min(int(wanted), MAX_HELD_BYTES // frame))
+    pixels = math.prod(int(s) for s in frame_shape)
+    frame = max(pixels * (int(itemsize) + WORK_BYTES_PER_PIXEL), 1)
+    return max(1, min(int(wanted), CHUNK_BYTES // frame))
+
+
+def frames_mapped(frame_shape, itemsize: int, chunk: int) -> int:
+    """How many frames of a memory-mapped stack to map at once for chunks of
+    `chunk` frames: four chunks, cut to :data:`MAP_BYTES`, at least one chunk.
+
+    Examples
+    --------
+    >>> frames_mapped((512, 512), 2, 64)
+    128
+    >>> frames_mapped((1024, 1024), 2, 16)
+    32
+    >>> frames_mapped((4096, 4096), 2, 1)
+    2
+    """
+    frame = max(math.prod(int(s) for s in frame_shape) * int(itemsize), 1)
+    return max(int(chunk), min(4 * int(chunk), MAP_BYTES // frame))
 
 
 def check_frame_size(shape, itemsize: int, *, path, frame: int | None = None) -> None:
