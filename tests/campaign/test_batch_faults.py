@@ -378,3 +378,30 @@ def test_a_worker_that_dies_before_starting_its_task_hands_it_back_once(
     row = next(row for row in read_rows(out) if row["label"] == "cut")
     assert "the process analysing it was killed by SIGKILL" in row["error"]
     assert "Traceback" not in done.stderr and _work_folders(out) == []
+
+
+def test_a_recording_that_crashes_its_dask_workers_is_a_row(
+    viscosity_campaign, tmp_path, monkeypatch
+):
+    # On a Dask cluster the scheduler gives a task whose worker died to another one,
+    # and after `allowed-failures` deaths gives up (KilledWorker): that ended the whole
+    # batch with a traceback. Now it is the recording's failed row.
+    distributed = pytest.importorskip("distributed")
+    import dask
+
+    from dropkin.campaign._task import TEST_CRASH_LABEL
+
+    monkeypatch.setenv(TEST_CRASH_LABEL, "cut")  # the workers' processes inherit it
+    manifest = _manifest(viscosity_campaign, tmp_path / "m", ["cut"])
+    out = tmp_path / "out"
+    with (
+        dask.config.set({"distributed.scheduler.allowed-failures": 0}),
+        distributed.LocalCluster(
+            n_workers=1, threads_per_worker=1, processes=True, dashboard_address=None
+        ) as cluster,
+    ):
+        summary = run_batch(manifest, out, scheduler=cluster.scheduler_address)
+    ((label, error),) = summary.failed
+    assert label == "cut" and "its Dask task failed (KilledWorker" in error
+    (row,) = read_rows(out)
+    assert row["status"] == "failed" and row["error"] == error

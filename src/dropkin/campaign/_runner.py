@@ -35,6 +35,7 @@ from ._manifest import Task, read_manifest
 from ._task import (
     OLD_PREFIX,
     WORK_PREFIX,
+    failed_row,
     input_fingerprint,
     publish_work,
     run_task,
@@ -104,12 +105,23 @@ def _dask_rows(tasks, out_dir, scheduler) -> Iterable[dict]:
             )
             for i, t in enumerate(tasks)
         ]
+        task_of = {future.key: task for future, task in zip(futures, tasks, strict=True)}
         for future in as_completed(futures):
-            yield future.result(), None  # published by the worker
+            yield _dask_row(future, task_of[future.key]), None  # published by the worker
     finally:
         with contextlib.suppress(Exception):
             client.cancel(futures)
         client.close()
+
+
+def _dask_row(future, task: Task) -> dict:
+    """The row a Dask task returned; a failure row when it raised instead (its workers
+    died running it, Dask's ``KilledWorker``: a crash by signal, say)."""
+    try:
+        return future.result()
+    except Exception as exc:  # noqa: BLE001 - one recording must not stop a campaign
+        text = f"{exc}".replace("\n", " ")
+        return failed_row(task, f"its Dask task failed ({type(exc).__name__}: {text})")
 
 
 def _clean_leftovers(out_dir: Path) -> None:
@@ -210,7 +222,8 @@ def run_batch(
     scheduler : str, optional
         Address of a Dask ``distributed`` scheduler (``tcp://host:8786``); the
         work then runs on its workers, which must see `out_dir` and the
-        recordings at the same paths.
+        recordings at the same paths. They publish their recordings' folders
+        themselves and do not die with this process (docs/cluster.md).
     redo : bool
         Analyse every recording again, even those unchanged since a complete row.
     allow_outside : bool
