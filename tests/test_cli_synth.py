@@ -228,3 +228,59 @@ def test_synth_drop_lowered_onto_a_mirror_with_the_surface_inside_a_pixel(tmp_pa
     assert (column[33] - plate) / (top - plate) == pytest.approx(0.25, abs=0.02)
     bad = _run(str(tmp_path / "b"), *SMALL, "--substrate-row", "10")
     assert bad.exit_code != 0 and "--substrate-row" in bad.output
+
+
+def _files(folder):
+    return {p.name: p.read_bytes() for p in sorted(folder.iterdir())}
+
+
+def test_overwrite_replaces_a_folder_whole_and_a_failed_run_leaves_it_as_it_was(
+    tmp_path, monkeypatch
+):
+    # Issue 17: --overwrite removed the old frames, then wrote the new ones one by one,
+    # so a run that failed half-way left neither recording. Now the folder is built
+    # aside and published whole.
+    import cv2
+
+    out = tmp_path / "run"
+    assert _run(str(out), *SMALL).exit_code == 0
+    before = _files(out)
+    calls = []
+    real = cv2.imwrite
+
+    def failing(path, *args):
+        calls.append(path)
+        return False if len(calls) == 3 else real(path, *args)
+
+    monkeypatch.setattr(cv2, "imwrite", failing)
+    result = _run(str(out), *SMALL, "--seed", "1", "--overwrite")
+    monkeypatch.undo()
+    assert result.exit_code == 1 and len(calls) == 3
+    assert _one_line_error(result) == [f"dropkin: error: cannot write {out / 'frame_00002.png'}"]
+    assert _files(out) == before
+    assert sorted(p.name for p in tmp_path.iterdir()) == ["run"]  # no staging folder left
+    # Replaced whole: the frames of the longer run before are gone.
+    result = _run(str(out), *SMALL[2:], "--frames", "3", "--contact-frame", "1", "--overwrite")
+    assert result.exit_code == 0, result.output
+    assert f"to {out} in" in result.output
+    assert sorted(p.name for p in out.iterdir()) == [
+        "experiment.toml",
+        "frame_00000.png",
+        "frame_00001.png",
+        "frame_00002.png",
+        "truth.json",
+    ]
+    assert json.loads((out / "truth.json").read_text())["frames"] == 3
+
+
+def test_a_folder_of_other_files_is_refused_even_with_overwrite(tmp_path):
+    out = tmp_path / "run"
+    out.mkdir()
+    (out / "notes.txt").write_text("mine")
+    for extra in ([], ["--overwrite"]):
+        result = _run(str(out), *SMALL, *extra)
+        assert result.exit_code == 1
+        (line,) = _one_line_error(result)
+        assert line.startswith(f"dropkin: error: {out}: ")
+        assert "notes.txt" in line
+    assert sorted(p.name for p in out.iterdir()) == ["notes.txt"]

@@ -11,8 +11,14 @@ of its own ``radius.csv`` keeps the measurement and replaces an earlier fit.
 
 from __future__ import annotations
 
+import contextlib
 import json
+import os
 import shutil
+import signal
+import subprocess
+import sys
+import time
 from pathlib import Path
 
 import pytest
@@ -171,3 +177,44 @@ def test_the_working_directory_is_not_an_output_folder(tmp_path, monkeypatch):
     result = _run("measure", SAMPLES / "viscous_pair", "-o", ".", "--overwrite")
     assert result.exit_code == 1 and "working directory" in _error(result)
     assert list(here.iterdir()) == []
+
+
+def _stages(folder: Path) -> list[Path]:
+    return sorted(p for p in folder.iterdir() if p.name.startswith(TEMPORARY_PREFIX))
+
+
+@pytest.mark.skipif(not sys.platform.startswith("linux"), reason="POSIX signals")
+def test_the_next_run_removes_a_killed_runs_staging_folder_and_no_live_ones(tmp_path):
+    # Issue 17: a run killed while building its folder left the hidden staging folder
+    # beside the output for good. The next run writing there removes it, but never one
+    # a live process may be building (its process id alive) or one made on another
+    # machine (its process id means nothing here).
+    from dropkin._atomic import _host
+
+    parent = tmp_path / "results"
+    command = [sys.executable, "-m", "dropkin", "-q", "analyze", str(SAMPLES / "viscous_pair")]
+    proc = subprocess.Popen(
+        [*command, "-o", str(parent / "a")],
+        stdout=subprocess.DEVNULL,
+        stderr=subprocess.DEVNULL,
+        start_new_session=True,
+    )
+    try:
+        deadline = time.monotonic() + 60
+        while not (parent.is_dir() and _stages(parent)):
+            assert proc.poll() is None and time.monotonic() < deadline
+            time.sleep(0.01)
+    finally:
+        with contextlib.suppress(ProcessLookupError):
+            os.killpg(proc.pid, signal.SIGKILL)
+        proc.wait(timeout=10)
+    (killed,) = _stages(parent)
+    live = parent / f"{TEMPORARY_PREFIX}b.{os.getpid()}@{_host()}.x1"
+    elsewhere = parent / f"{TEMPORARY_PREFIX}c.{proc.pid}@00000000.x2"
+    for folder in (live, elsewhere):
+        folder.mkdir()
+    result = _run("measure", SAMPLES / "viscous_pair", "-o", parent / "d", "--overlays", "0")
+    assert result.exit_code == 0, result.output
+    assert not killed.exists()
+    assert _stages(parent) == sorted([live, elsewhere])
+    assert sorted(p.name for p in parent.iterdir() if p not in (live, elsewhere)) == ["d"]

@@ -17,9 +17,13 @@ of the same parent (so on the same file system), renamed into place when
 complete by :func:`publish_folder`. A folder that was there is moved aside
 first and removed once the new one is in place, so a reader sees the old
 folder or the new one, never a mixture; between the two renames the name
-is absent for an instant. A run killed while building leaves the hidden
-sibling behind (remove it; dropkin does not, since another run may be
-building it).
+is absent for an instant. The hidden sibling's name carries its owner
+(``.dropkin-tmp.<name>.<pid>@<host>.<random>``: the process id and a short
+digest of the machine's name), so a run killed while building leaves it
+behind only until the next run that makes a folder beside it:
+:func:`remove_stale_folders` removes the ones whose process is gone on this
+machine, never one a live process may be building (a process id still in
+use, or a folder made on another machine, is left).
 
 Examples
 --------
@@ -35,8 +39,10 @@ True
 from __future__ import annotations
 
 import contextlib
+import hashlib
 import os
 import shutil
+import socket
 import tempfile
 from pathlib import Path
 
@@ -45,6 +51,7 @@ __all__ = [
     "staged_folder",
     "publish_folder",
     "new_folder_beside",
+    "remove_stale_folders",
     "atomic_path",
     "is_temporary",
     "remove_temporaries",
@@ -151,14 +158,70 @@ def _umask_mode(mode: int) -> int:
     return mode & ~umask
 
 
+def _host() -> str:
+    """A short digest of this machine's name (names may hold dots, or any character)."""
+    return hashlib.sha256(socket.gethostname().encode("utf-8", "replace")).hexdigest()[:8]
+
+
+def _owner() -> str:
+    """The owner part of a staging folder's name: ``<pid>@<host>``."""
+    return f"{os.getpid()}@{_host()}"
+
+
+def _process_is_gone(pid: int) -> bool:
+    """Whether no process `pid` runs on this machine (one we may not signal is alive)."""
+    try:
+        os.kill(pid, 0)
+    except ProcessLookupError:
+        return True
+    except OSError:  # PermissionError: another user's, alive
+        return False
+    return False
+
+
+def _stale(name: str, host: str) -> bool:
+    """Whether the staging folder `name` was made on this machine by a process now gone."""
+    parts = name.rsplit(".", 2)
+    if len(parts) != 3 or "@" not in parts[1]:
+        return False  # not named by its owner: left alone
+    pid, _, made_on = parts[1].partition("@")
+    if made_on != host or not pid.isdigit() or int(pid) <= 0:
+        return False
+    return _process_is_gone(int(pid))
+
+
+def remove_stale_folders(folder) -> list[Path]:
+    """Remove the staging folders in `folder` that runs killed while building left.
+
+    A staging folder (:func:`new_folder_beside`) is removed only when the
+    process named in it is gone and was on this machine; returns the paths
+    removed. A folder that does not exist holds none.
+    """
+    folder, host, removed = Path(folder), _host(), []
+    try:
+        entries = list(os.scandir(folder))
+    except OSError:
+        return removed
+    for entry in entries:
+        if not entry.name.startswith(TEMPORARY_PREFIX):
+            continue
+        if entry.is_dir(follow_symlinks=False) and _stale(entry.name, host):
+            shutil.rmtree(entry.path, ignore_errors=True)
+            removed.append(Path(entry.path))
+    return removed
+
+
 def new_folder_beside(target, tag: str = "") -> Path:
     """A new, empty hidden folder in `target`'s parent (made if needed), with the
-    permissions the umask gives a new folder (not mkdtemp's private 0700)."""
+    permissions the umask gives a new folder (not mkdtemp's private 0700).
+
+    Its name carries this process's id and machine; the stale staging folders of
+    runs killed there are removed first (:func:`remove_stale_folders`)."""
     target = Path(target)
     target.parent.mkdir(parents=True, exist_ok=True)
-    folder = Path(
-        tempfile.mkdtemp(prefix=f"{TEMPORARY_PREFIX}{tag}{target.name}.", dir=target.parent)
-    )
+    remove_stale_folders(target.parent)
+    prefix = f"{TEMPORARY_PREFIX}{tag}{target.name}.{_owner()}."
+    folder = Path(tempfile.mkdtemp(prefix=prefix, dir=target.parent))
     folder.chmod(_umask_mode(0o777))
     return folder
 

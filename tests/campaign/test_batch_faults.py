@@ -218,7 +218,7 @@ def test_a_second_batch_on_the_same_output_folder_refuses_and_leaves_the_first_a
         second = CliRunner().invoke(main, ["batch", str(manifest), "-o", str(out)])
         assert work.is_dir(), "the second batch removed the first one's work folder"
         assert proc.poll() is None
-        proc.send_signal(signal.SIGTERM)  # jobs 1: the analysis is in the batch's own process
+        proc.send_signal(signal.SIGTERM)
         _, err = proc.communicate(timeout=30)
     assert second.exit_code == 1
     (line,) = second.stderr.strip().splitlines()
@@ -310,3 +310,98 @@ def test_a_full_disk_names_the_file_on_the_command_line(tmp_path):
     assert line.startswith(
         f"dropkin: error: {out / 'catalogue.sqlite'}: cannot be opened or written"
     )
+
+
+def test_a_crash_by_signal_with_one_job_is_a_row_and_the_batch_goes_on(
+    viscosity_campaign, tmp_path
+):
+    # Issue 17, "a recording's failure is a row, never an abort": with --jobs 1 the
+    # analysis ran in the batch's own process, so a crash by signal there (a native
+    # decoder's) ended the whole batch. The test hook makes the analysis of "cut" send
+    # its own process SIGSEGV.
+    from dropkin.campaign._task import TEST_CRASH_LABEL
+
+    manifest = _manifest(viscosity_campaign, tmp_path / "m", ["cut", "mu050"])
+    out = tmp_path / "out"
+    command = [sys.executable, "-m", "dropkin", "-q", "batch", str(manifest), "-o", str(out)]
+    env = {**os.environ, TEST_CRASH_LABEL: "cut"}
+    with _session(
+        subprocess.Popen(
+            command,
+            stdout=subprocess.PIPE,
+            stderr=subprocess.PIPE,
+            text=True,
+            env=env,
+            start_new_session=True,
+        )
+    ) as proc:
+        _, err = proc.communicate(timeout=120)
+    assert proc.returncode == 3, err
+    rows = {row["label"]: row for row in read_rows(out)}
+    assert sorted(rows) == ["cut", "mu050"]
+    assert rows["cut"]["status"] == "failed"
+    assert "cut.tif: the process analysing it was killed by SIGSEGV" in rows["cut"]["error"]
+    assert rows["mu050"]["status"] == "complete", rows["mu050"]["error"]
+    assert "Traceback" not in err and "killed by SIGSEGV" in err
+    assert _published(out) == ["mu050"] and _work_folders(out) == []
+
+
+def test_a_worker_that_dies_before_starting_its_task_hands_it_back_once(
+    viscosity_campaign, tmp_path
+):
+    # A worker that died idle just as it was handed a task gave that task a "killed"
+    # row though it never started. The test hook makes a worker handed a task take a
+    # token file and kill itself with SIGKILL before starting it.
+    from dropkin.campaign._workers import TEST_DIE_ON_HANDOUT
+
+    manifest = _manifest(viscosity_campaign, tmp_path / "m", ["cut", "mu050"])
+    tokens = tmp_path / "tokens"
+    tokens.mkdir()
+    (tokens / "1").touch()
+    out = tmp_path / "out"
+    command = [sys.executable, "-m", "dropkin", "-q", "batch", str(manifest), "-o", str(out)]
+    env = {**os.environ, TEST_DIE_ON_HANDOUT: str(tokens)}
+    done = subprocess.run(
+        [*command, "--jobs", "2"], capture_output=True, text=True, timeout=120, env=env
+    )
+    assert not any(tokens.iterdir())  # the hook did kill a worker
+    assert done.returncode == 3, done.stderr  # cut.tif is damaged: its own failure
+    rows = {row["label"]: row for row in read_rows(out)}
+    assert rows["mu050"]["status"] == "complete", rows["mu050"]["error"]
+    assert "damaged or truncated" in rows["cut"]["error"]
+    assert "killed" not in rows["cut"]["error"]
+    # Handed back once only: a task whose workers die twice before starting is a row.
+    for name in ("1", "2"):
+        (tokens / name).touch()
+    done = subprocess.run(command, capture_output=True, text=True, timeout=120, env=env)
+    assert done.returncode == 3, done.stderr  # mu050 is unchanged: cut alone is run again
+    row = next(row for row in read_rows(out) if row["label"] == "cut")
+    assert "the process analysing it was killed by SIGKILL" in row["error"]
+    assert "Traceback" not in done.stderr and _work_folders(out) == []
+
+
+def test_a_recording_that_crashes_its_dask_workers_is_a_row(
+    viscosity_campaign, tmp_path, monkeypatch
+):
+    # On a Dask cluster the scheduler gives a task whose worker died to another one,
+    # and after `allowed-failures` deaths gives up (KilledWorker): that ended the whole
+    # batch with a traceback. Now it is the recording's failed row.
+    distributed = pytest.importorskip("distributed")
+    import dask
+
+    from dropkin.campaign._task import TEST_CRASH_LABEL
+
+    monkeypatch.setenv(TEST_CRASH_LABEL, "cut")  # the workers' processes inherit it
+    manifest = _manifest(viscosity_campaign, tmp_path / "m", ["cut"])
+    out = tmp_path / "out"
+    with (
+        dask.config.set({"distributed.scheduler.allowed-failures": 0}),
+        distributed.LocalCluster(
+            n_workers=1, threads_per_worker=1, processes=True, dashboard_address=None
+        ) as cluster,
+    ):
+        summary = run_batch(manifest, out, scheduler=cluster.scheduler_address)
+    ((label, error),) = summary.failed
+    assert label == "cut" and "its Dask task failed (KilledWorker" in error
+    (row,) = read_rows(out)
+    assert row["status"] == "failed" and row["error"] == error

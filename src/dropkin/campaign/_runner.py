@@ -2,9 +2,11 @@
 
 :func:`run_batch` reads a manifest (see :mod:`dropkin.campaign._manifest`), skips the
 recordings whose input and settings are unchanged since a complete row of the
-catalogue, and analyses the rest: in this process (one job), in a local
-process pool (``jobs > 1``) or on a Dask ``distributed`` cluster (a scheduler
-address), all through the same :func:`~dropkin.campaign._task.run_task`. Each
+catalogue, and analyses the rest: in `jobs` local worker processes (one job
+too: a recording whose analysis crashes its process by a signal, a native
+decoder's crash say, is then a failure row and not the end of the batch) or
+on a Dask ``distributed`` cluster (a scheduler address), all through the same
+:func:`~dropkin.campaign._task.analyze_task`. Each
 recording's row is written to ``OUT/catalogue.sqlite`` in a transaction of
 its own as soon as it is done, so an interrupted batch keeps every row it
 finished.
@@ -33,9 +35,8 @@ from ._manifest import Task, read_manifest
 from ._task import (
     OLD_PREFIX,
     WORK_PREFIX,
-    analyze_task,
+    failed_row,
     input_fingerprint,
-    make_work_folder,
     publish_work,
     run_task,
     settings_sha256,
@@ -76,18 +77,6 @@ def _pool_rows(tasks, out_dir, jobs) -> Iterable[tuple[dict, Path | None]]:
     return worker_rows(tasks, out_dir, jobs, invocation)
 
 
-def _local_rows(tasks, out_dir: Path) -> Iterable[tuple[dict, Path | None]]:
-    """Analyse `tasks` in this process, one after the other; each row with its work folder."""
-    for task in tasks:
-        work = make_work_folder(out_dir, task.label)
-        try:
-            row = analyze_task(task, work, out_dir)
-        except BaseException:  # interrupted: a partial folder is never published
-            shutil.rmtree(work, ignore_errors=True)
-            raise
-        yield row, work
-
-
 def _dask_rows(tasks, out_dir, scheduler) -> Iterable[dict]:
     try:
         from distributed import Client, as_completed
@@ -116,12 +105,23 @@ def _dask_rows(tasks, out_dir, scheduler) -> Iterable[dict]:
             )
             for i, t in enumerate(tasks)
         ]
+        task_of = {future.key: task for future, task in zip(futures, tasks, strict=True)}
         for future in as_completed(futures):
-            yield future.result(), None  # published by the worker
+            yield _dask_row(future, task_of[future.key]), None  # published by the worker
     finally:
         with contextlib.suppress(Exception):
             client.cancel(futures)
         client.close()
+
+
+def _dask_row(future, task: Task) -> dict:
+    """The row a Dask task returned; a failure row when it raised instead (its workers
+    died running it, Dask's ``KilledWorker``: a crash by signal, say)."""
+    try:
+        return future.result()
+    except Exception as exc:  # noqa: BLE001 - one recording must not stop a campaign
+        text = f"{exc}".replace("\n", " ")
+        return failed_row(task, f"its Dask task failed ({type(exc).__name__}: {text})")
 
 
 def _clean_leftovers(out_dir: Path) -> None:
@@ -217,11 +217,13 @@ def run_batch(
     out_dir : str or os.PathLike
         Gets ``catalogue.sqlite`` and a folder per recording.
     jobs : int
-        Recordings analysed at once on this machine (1: in this process).
+        Recordings analysed at once on this machine, each in a worker process
+        (1 too, so that a crash is the recording's row).
     scheduler : str, optional
         Address of a Dask ``distributed`` scheduler (``tcp://host:8786``); the
         work then runs on its workers, which must see `out_dir` and the
-        recordings at the same paths.
+        recordings at the same paths. They publish their recordings' folders
+        themselves and do not die with this process (docs/cluster.md).
     redo : bool
         Analyse every recording again, even those unchanged since a complete row.
     allow_outside : bool
@@ -265,10 +267,8 @@ def _run_locked(campaign, out_dir: Path, jobs, scheduler, redo, report) -> Batch
                 pending.append(task)
         if scheduler is not None:
             rows = _dask_rows(pending, out_dir, scheduler)
-        elif jobs > 1 and len(pending) > 1:
-            rows = _pool_rows(pending, out_dir, min(jobs, len(pending)))
-        else:
-            rows = _local_rows(pending, out_dir)
+        else:  # one job too: a crash by signal is the recording's row, not the batch's end
+            rows = _pool_rows(pending, out_dir, max(1, min(jobs, len(pending))))
         _catalogue_rows(rows, conn, summary, report, out_dir)
     except KeyboardInterrupt as exc:
         summary.interrupted = True

@@ -15,6 +15,7 @@ import hashlib
 import json
 import os
 import shutil
+import signal
 import tempfile
 import time
 from datetime import UTC, datetime
@@ -41,6 +42,17 @@ __all__ = [
 
 WORK_PREFIX = ".work-"
 OLD_PREFIX = ".old-"
+
+#: For tests only: the label of a recording whose analysis crashes its process by a
+#: signal (SIGSEGV, as a native decoder's crash would), to check that a campaign
+#: records such a crash as the recording's row.
+TEST_CRASH_LABEL = "DROPKIN_TEST_CRASH_LABEL"
+
+
+def _test_crash(label: str) -> None:
+    """The test hook :data:`TEST_CRASH_LABEL` (nothing when it is not set)."""
+    if os.environ.get(TEST_CRASH_LABEL) == label:
+        os.kill(os.getpid(), signal.SIGSEGV)
 
 
 def input_fingerprint(source) -> list:
@@ -184,6 +196,7 @@ def analyze_task(task: Task, work: Path, out_dir: Path, invocation: dict | None 
         "started_utc": start,
     }
     try:
+        _test_crash(task.label)
         row["input_stat"] = input_fingerprint(task.source)
         exp, _ = open_source(
             task.source,

@@ -6,7 +6,9 @@ it waits for ever. Here the parent hands each worker one task over a pipe of
 its own and waits on the pipes and the processes together
 (:func:`multiprocessing.connection.wait`): a worker that dies gives its
 recording a failure row naming the signal, a new worker takes its place, and
-the rest go on.
+the rest go on. A worker says it has started a task before it analyses it: one
+that dies before saying so (it died idle, just as it was handed the task)
+never started the task, and the task goes back to the queue, once.
 
 The workers die with the parent: on Linux the kernel sends them SIGKILL when
 it dies (``prctl(PR_SET_PDEATHSIG)``), elsewhere a thread of each worker
@@ -38,6 +40,24 @@ __all__ = ["worker_rows"]
 
 _PR_SET_PDEATHSIG = 1  # <linux/prctl.h>
 _WATCH_SECONDS = 0.25
+_STARTED = "started"  # what a worker sends when it takes a task, before its row
+
+#: For tests only: a folder of token files. A worker handed a task takes (removes)
+#: one of them, if any, and kills itself with SIGKILL before starting the task.
+TEST_DIE_ON_HANDOUT = "DROPKIN_TEST_DIE_ON_HANDOUT"
+
+
+def _test_die_on_handout() -> None:
+    """The test hook :data:`TEST_DIE_ON_HANDOUT` (nothing when it is not set)."""
+    folder = os.environ.get(TEST_DIE_ON_HANDOUT)
+    if not folder:
+        return
+    for token in sorted(Path(folder).iterdir()):
+        try:
+            token.unlink()
+        except FileNotFoundError:  # another worker took it
+            continue
+        os.kill(os.getpid(), signal.SIGKILL)
 
 
 def _die_with_parent(parent_pid: int) -> None:
@@ -72,8 +92,10 @@ def _worker(conn, parent_pid: int, out_dir: str, invocation) -> None:
         if message is None:
             return
         task, work = message
-        row = analyze_task(task, Path(work), Path(out_dir), invocation)
+        _test_die_on_handout()
         try:
+            conn.send(_STARTED)
+            row = analyze_task(task, Path(work), Path(out_dir), invocation)
             conn.send(row)
         except OSError:  # the parent is gone: nothing to say, nobody to say it to
             os._exit(1)
@@ -90,18 +112,23 @@ class _Slot:
         child.close()
         self.task: Task | None = None
         self.work: Path | None = None
+        self.started = False  # whether the worker said it started `task`
 
     def give(self, task: Task, work: Path) -> None:
         """Send a task (a worker that died meanwhile is seen by :meth:`take`)."""
-        self.task, self.work = task, work
+        self.task, self.work, self.started = task, work, False
         with contextlib.suppress(OSError):
             self.conn.send((task, str(work)))
 
     def take(self) -> dict | None:
-        """The row the worker sent, or None when it died instead."""
+        """The row the worker sent, if it did (None: not yet, or it died instead)."""
         try:
-            if self.conn.poll():
-                return self.conn.recv()
+            while self.conn.poll():
+                message = self.conn.recv()
+                if message == _STARTED:
+                    self.started = True
+                else:
+                    return message
         except (EOFError, OSError):
             pass
         return None
@@ -141,6 +168,7 @@ def worker_rows(tasks, out_dir: Path, jobs: int, invocation) -> Iterator[tuple[d
     context = multiprocessing.get_context()
     pending: deque[Task] = deque(tasks)
     slots: list[_Slot] = []
+    handed_again: set[str] = set()  # labels put back once (their worker died idle)
     try:
         while pending or any(s.task is not None for s in slots):
             _hand_out(pending, slots, jobs, context, out_dir, invocation)
@@ -148,7 +176,9 @@ def worker_rows(tasks, out_dir: Path, jobs: int, invocation) -> Iterator[tuple[d
             ready = set(wait([s.conn for s in busy] + [s.process.sentinel for s in busy]))
             for slot in busy:
                 if slot.conn in ready or slot.process.sentinel in ready:
-                    yield _outcome(slot, slots)
+                    outcome = _outcome(slot, slots, pending, handed_again)
+                    if outcome is not None:
+                        yield outcome
     finally:
         for slot in slots:
             slot.stop()
@@ -167,9 +197,12 @@ def _hand_out(pending: deque, slots: list, jobs: int, context, out_dir: Path, in
             slot.give(task, make_work_folder(out_dir, task.label))
 
 
-def _outcome(slot: _Slot, slots: list) -> tuple[dict, Path | None]:
-    """The row of the task `slot` ran (a failure row when its worker died)."""
+def _outcome(slot: _Slot, slots: list, pending: deque, handed_again: set):
+    """The row of the task `slot` ran (a failure row when its worker died with it); None
+    while it runs, or when its worker died before starting it (the task waits again, once)."""
     task, work, row = slot.task, slot.work, slot.take()
+    if row is None and slot.process.is_alive():
+        return None  # it said it started: the row comes later
     slot.task = slot.work = None
     if row is not None:
         return row, work
@@ -177,4 +210,8 @@ def _outcome(slot: _Slot, slots: list) -> tuple[dict, Path | None]:
     shutil.rmtree(work, ignore_errors=True)
     slots.remove(slot)
     slot.conn.close()
+    if not slot.started and task.label not in handed_again:
+        handed_again.add(task.label)
+        pending.appendleft(task)
+        return None
     return failed_row(task, f"the process analysing it {_death(slot.process.exitcode)}"), None

@@ -33,7 +33,7 @@ def _batch_line(done, total, label, row) -> str:
     type=click.IntRange(1, 256),
     default=1,
     show_default=True,
-    help="Recordings analysed at once on this machine.",
+    help="Recordings analysed at once on this machine, each in a worker process.",
 )
 @click.option(
     "--scheduler",

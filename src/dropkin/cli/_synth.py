@@ -2,6 +2,9 @@
 
 from __future__ import annotations
 
+import dataclasses
+from pathlib import Path
+
 import click
 
 from ..errors import DropkinError, ExperimentError
@@ -292,6 +295,36 @@ def _regime_law(o, setup, name, prefactor):
     )
 
 
+def _write(ctx, recording, out, o):
+    """Render and write `recording` to `out`; a folder of frames is published whole."""
+    from .. import synth
+    from ._synth_folder import is_folder_output, staged_synth_folder
+
+    def write(where, overwrite):
+        with progress_bar(ctx, "rendering", recording.frames) as progress:
+            return synth.write_recording(
+                recording,
+                where,
+                format=o["fmt"],
+                overwrite=overwrite,
+                progress=progress,
+                bit_rate=o["bit_rate"],
+                jpeg_quality=o["jpeg_quality"],
+            )
+
+    if not is_folder_output(out, o["fmt"]):
+        return write(out, o["overwrite"])
+    with staged_synth_folder(out, o["overwrite"]) as stage:
+        written = write(stage, False)
+    folder = Path(out)
+    return dataclasses.replace(
+        written,
+        frames=folder,
+        experiment=folder / written.experiment.name,
+        truth=folder / written.truth.name,
+    )
+
+
 def _synth(ctx, out, o):
     import time
 
@@ -322,16 +355,7 @@ def _synth(ctx, out, o):
         seed=o["seed"],
     )
     start = time.perf_counter()
-    with progress_bar(ctx, "rendering", recording.frames) as progress:
-        written = synth.write_recording(
-            recording,
-            out,
-            format=o["fmt"],
-            overwrite=o["overwrite"],
-            progress=progress,
-            bit_rate=o["bit_rate"],
-            jpeg_quality=o["jpeg_quality"],
-        )
+    written = _write(ctx, recording, out, o)
     elapsed = time.perf_counter() - start
     truth = recording.truth
     rows, cols = o["size"]
