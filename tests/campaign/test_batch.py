@@ -191,7 +191,7 @@ def test_dask_local_cluster_gives_the_same_rows_as_the_pool(
     out_pool, _ = pool_run
     out = tmp_path / "dask"
     with distributed.LocalCluster(
-        n_workers=2, threads_per_worker=1, processes=True, dashboard_address=None
+        n_workers=2, threads_per_worker=1, processes=True, dashboard_address=":0"
     ) as cluster:
         summary = run_batch(manifest, out, scheduler=cluster.scheduler_address)
     assert sorted(summary.done) == GOOD and [f for f, _ in summary.failed] == ["cut"]

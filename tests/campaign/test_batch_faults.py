@@ -397,7 +397,7 @@ def test_a_recording_that_crashes_its_dask_workers_is_a_row(
     with (
         dask.config.set({"distributed.scheduler.allowed-failures": 0}),
         distributed.LocalCluster(
-            n_workers=1, threads_per_worker=1, processes=True, dashboard_address=None
+            n_workers=1, threads_per_worker=1, processes=True, dashboard_address=":0"
         ) as cluster,
     ):
         summary = run_batch(manifest, out, scheduler=cluster.scheduler_address)
