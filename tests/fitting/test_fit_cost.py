@@ -41,7 +41,7 @@ def test_a_hundred_thousand_rows_are_refitted_in_bounded_blocks(monkeypatch):
     t, r, frame = _series(100_000)
     seen = []
 
-    def recording_profile(time, y, s, model, lo, hi, f, loss):
+    def recording_profile(time, y, s, model, lo, hi, f, loss, **options):
         seen.append(y.shape)
         k = y.shape[0]
         return np.full(k, 0.5 * (lo + hi)), np.zeros((k, model.n_linear))

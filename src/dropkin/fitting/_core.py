@@ -301,7 +301,7 @@ def rho(z, f, loss):
     return 2.0 * f * f * (np.sqrt(1.0 + (z / f) ** 2) - 1.0)
 
 
-def solve_linear(x, y, s, f, loss, iterations=8):
+def solve_linear(x, y, s, f, loss, iterations=8, *, start=None, tol=None):
     """Robust weighted least squares ``y ≈ X β``, batched over leading axes.
 
     Parameters
@@ -310,6 +310,15 @@ def solve_linear(x, y, s, f, loss, iterations=8):
     y : (..., N) ndarray
     s : (N,) or (..., N) ndarray
         Uncertainty of each y.
+    iterations : int
+        Most reweighting passes of the robust loss.
+    start : (..., N) ndarray, optional
+        Weights to start the reweighting from (default ``1/s²``, plain least
+        squares): the bootstrap starts each resample from the weights of the
+        residuals it drew, which are already close to its own.
+    tol : float, optional
+        Stop the passes early once no weight moves by more than ``tol`` times
+        its ``1/s²`` in a pass (default: always ``iterations`` passes).
 
     Returns
     -------
@@ -320,18 +329,44 @@ def solve_linear(x, y, s, f, loss, iterations=8):
         Final weights (``ψ(z)/z / s²``).
     """
     w0 = np.broadcast_to(1.0 / s**2, y.shape)
-    w = w0
-    steps = 1 if loss == "linear" else iterations
-    for _ in range(steps):
-        beta = _weighted_solve(x, y, w)
-        z = (y - (x @ beta[..., None])[..., 0]) / s
-        if loss != "linear":
+    if loss == "linear":
+        beta = _weighted_solve(x, y, w0)
+        return beta, (y - (x @ beta[..., None])[..., 0]) / s, w0
+    w = w0 if start is None else np.broadcast_to(start, y.shape)
+    if tol is not None:
+        w = _settle(x, y, s, f, w0, w, iterations, tol)
+    else:
+        for _ in range(iterations):
+            beta = _weighted_solve(x, y, w)
+            z = (y - (x @ beta[..., None])[..., 0]) / s
             w = w0 / np.sqrt(1.0 + (z / f) ** 2)
-    if loss != "linear":
-        # One last solve with the final weights, so beta, z and w agree.
-        beta = _weighted_solve(x, y, w)
-        z = (y - (x @ beta[..., None])[..., 0]) / s
+    # One last solve with the final weights, so beta, z and w agree.
+    beta = _weighted_solve(x, y, w)
+    z = (y - (x @ beta[..., None])[..., 0]) / s
     return beta, z, w
+
+
+def _settle(x, y, s, f, w0, w, iterations, tol):
+    """The robust weights after at most `iterations` passes, each series (leading
+    index) passed again only while one of its weights still moves by more than
+    `tol` times its ``1/s²``."""
+    shape, n = y.shape, y.shape[-1]
+    p = x.shape[-1]
+    xs = np.broadcast_to(x, shape[:-1] + (n, p)).reshape(-1, n, p)
+    ys, ss = y.reshape(-1, n), np.broadcast_to(s, shape).reshape(-1, n)
+    w0s, ws = w0.reshape(-1, n), np.array(w, dtype=float).reshape(-1, n)
+    live = np.arange(len(ys))
+    for _ in range(iterations):
+        xl, yl = xs[live], ys[live]
+        beta = _weighted_solve(xl, yl, ws[live])
+        z = (yl - (xl @ beta[..., None])[..., 0]) / ss[live]
+        new = w0s[live] / np.sqrt(1.0 + (z / f) ** 2)
+        moved = np.max(np.abs(new - ws[live]) / w0s[live], axis=-1)
+        ws[live] = new
+        live = live[moved > tol]
+        if live.size == 0:
+            break
+    return ws.reshape(shape)
 
 
 def _weighted_solve(x, y, w):
