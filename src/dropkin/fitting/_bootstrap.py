@@ -28,7 +28,7 @@ import math
 import numpy as np
 
 from ._core import Series, safe_exp, solve_linear
-from ._linear import LinearModel, profile_many
+from ._linear import SETTLE_PASSES, SETTLED, LinearModel, profile_many
 from ._records import BlendFit, LawFit
 from ._two_laws import TwoLawModel, build_model, least_squares_fit
 
@@ -116,15 +116,29 @@ def _refit_linear(data, fitted, e, model, fit, f_scale, n, rng):
     """
     lo, hi = fit.t0_bracket
     t0s, betas = [np.zeros(0)], [np.zeros((0, model.n_linear))]
+    # Each resample's robust weights start from those of the residuals it drew.
+    w_drawn = 1.0 / (data.s**2 * np.sqrt(1.0 + (e / f_scale) ** 2))
     for k in resample_chunks(n, len(data)):
         idx = rng.integers(0, len(data), size=(k, len(data)))
         y_star = fitted[None, :] + data.s[None, :] * e[idx]
+        start = w_drawn[idx]
         if fit.t0_free:
-            t0, beta = profile_many(data.time, y_star, data.s, model, lo, hi, f_scale, fit.loss)
+            t0, beta = profile_many(
+                data.time, y_star, data.s, model, lo, hi, f_scale, fit.loss, start=start
+            )
         else:
             t0 = np.full(k, fit.t0)
             xb, offb = model.design(np.broadcast_to(data.time - fit.t0, y_star.shape))
-            beta, _, _ = solve_linear(xb, y_star - offb, data.s, f_scale, fit.loss)
+            beta, _, _ = solve_linear(
+                xb,
+                y_star - offb,
+                data.s,
+                f_scale,
+                fit.loss,
+                SETTLE_PASSES,
+                start=start,
+                tol=SETTLED,
+            )
         t0s.append(t0)
         betas.append(beta)
     return np.concatenate(t0s), np.concatenate(betas)

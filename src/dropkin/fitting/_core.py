@@ -23,6 +23,7 @@ from dataclasses import dataclass
 import numpy as np
 
 from ..errors import FitError
+from ._robust import rho, solve_linear  # noqa: F401  (the fits import them from here)
 
 __all__ = ["MIN_POINTS", "MIN_DECADES", "ROBUST_SCALE", "LawShape", "span_problem"]
 
@@ -292,61 +293,6 @@ def solve_log_radius(log_radius, data: Series, x0, bounds, *, loss, f_scale, max
             x_scale="jac",
             max_nfev=max_nfev,
         )
-
-
-def rho(z, f, loss):
-    """The loss of each normalised residual (soft_l1 or squares)."""
-    if loss == "linear":
-        return z * z
-    return 2.0 * f * f * (np.sqrt(1.0 + (z / f) ** 2) - 1.0)
-
-
-def solve_linear(x, y, s, f, loss, iterations=8):
-    """Robust weighted least squares ``y ≈ X β``, batched over leading axes.
-
-    Parameters
-    ----------
-    x : (..., N, p) ndarray
-    y : (..., N) ndarray
-    s : (N,) or (..., N) ndarray
-        Uncertainty of each y.
-
-    Returns
-    -------
-    beta : (..., p) ndarray
-    z : (..., N) ndarray
-        Normalised residuals ``(y - X β)/s``.
-    w : (..., N) ndarray
-        Final weights (``ψ(z)/z / s²``).
-    """
-    w0 = np.broadcast_to(1.0 / s**2, y.shape)
-    w = w0
-    steps = 1 if loss == "linear" else iterations
-    for _ in range(steps):
-        beta = _weighted_solve(x, y, w)
-        z = (y - (x @ beta[..., None])[..., 0]) / s
-        if loss != "linear":
-            w = w0 / np.sqrt(1.0 + (z / f) ** 2)
-    if loss != "linear":
-        # One last solve with the final weights, so beta, z and w agree.
-        beta = _weighted_solve(x, y, w)
-        z = (y - (x @ beta[..., None])[..., 0]) / s
-    return beta, z, w
-
-
-def _weighted_solve(x, y, w):
-    """β of the normal equations ``XᵀWX β = XᵀW y``, batched.
-
-    When a system is singular (the robust weights left fewer effective points
-    than parameters, or all times coincide), the pseudo-inverse gives the
-    minimum-norm solution instead of an exception.
-    """
-    xtw = np.swapaxes(x, -1, -2) * w[..., None, :]
-    a, b = xtw @ x, xtw @ y[..., None]
-    try:
-        return np.linalg.solve(a, b)[..., 0]
-    except np.linalg.LinAlgError:
-        return (np.linalg.pinv(a) @ b)[..., 0]
 
 
 def apparent_exponent(shape: LawShape, tau, w=None) -> float:
