@@ -47,6 +47,7 @@ import tempfile
 from pathlib import Path
 
 __all__ = [
+    "replaceable_target",
     "TEMPORARY_PREFIX",
     "staged_folder",
     "publish_folder",
@@ -240,6 +241,22 @@ def publish_folder(stage, target) -> Path:
     os.replace(stage, target)
     if old is not None:
         shutil.rmtree(old, ignore_errors=True)
+    return target
+
+
+def replaceable_target(out, error) -> Path:
+    """The folder `out` names (a symbolic link followed), if it may be built aside and
+    published in its place; raise `error` (a :class:`~dropkin.errors.DropkinError`
+    class) when `out` is a file, or is or holds the working directory (published in
+    its place, the folder would leave the shell in a removed one)."""
+    target = Path(os.path.abspath(out))
+    if target.is_symlink():
+        target = target.resolve()
+    if target.exists() and not target.is_dir():
+        raise error("exists and is not a folder", path=out)
+    here = Path(os.path.abspath(os.getcwd()))
+    if target.exists() and (here == target or target in here.parents):
+        raise error("is the working directory or holds it; give a folder below it", path=out)
     return target
 
 

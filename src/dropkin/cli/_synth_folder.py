@@ -15,7 +15,7 @@ import os
 import re
 from pathlib import Path
 
-from .._atomic import TEMPORARY_PREFIX, staged_folder
+from .._atomic import TEMPORARY_PREFIX, replaceable_target, staged_folder
 from ..errors import ExperimentError
 
 __all__ = ["is_folder_output", "staged_synth_folder"]
@@ -31,16 +31,7 @@ def is_folder_output(out, fmt: str | None) -> bool:
 
 def _claim(out, overwrite: bool) -> Path:
     """The folder to publish `out` as; refuse one a new synthetic recording may not replace."""
-    target = Path(os.path.abspath(out))
-    if target.is_symlink():
-        target = target.resolve()
-    if target.exists() and not target.is_dir():
-        raise ExperimentError("exists and is not a folder", path=out)
-    here = Path(os.path.abspath(os.getcwd()))
-    if target.exists() and (here == target or target in here.parents):
-        raise ExperimentError(
-            "is the working directory or holds it; give a folder below it", path=out
-        )
+    target = replaceable_target(out, ExperimentError)
     names = (
         sorted(n for n in os.listdir(target) if not n.startswith(TEMPORARY_PREFIX))
         if target.is_dir()

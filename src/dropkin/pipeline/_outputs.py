@@ -25,7 +25,7 @@ from contextlib import contextmanager
 from pathlib import Path
 from typing import TYPE_CHECKING
 
-from .._atomic import TEMPORARY_PREFIX, staged_folder, write_text_atomic
+from .._atomic import TEMPORARY_PREFIX, replaceable_target, staged_folder, write_text_atomic
 from .._provenance import resolve_named
 from ..errors import DropkinError, with_path
 from ..series import read_series
@@ -79,17 +79,7 @@ def claim_output_folder(out, *, overwrite: bool = False, keep=(), replaced=()) -
     DropkinError
         Naming the folder and what it holds.
     """
-    target = Path(os.path.abspath(out))
-    if target.is_symlink():
-        target = target.resolve()
-    if target.exists() and not target.is_dir():
-        raise DropkinError("is not a folder", path=out)
-    here = Path(os.path.abspath(os.getcwd()))
-    if target.exists() and (here == target or target in here.parents):
-        # published in its place, the folder would leave the shell in a removed one
-        raise DropkinError(
-            "is the working directory or holds it; give a folder below it (-o out)", path=out
-        )
+    target = replaceable_target(out, DropkinError)
     mine = {*keep, *replaced, "datapackage.json"}
     others = [e for e in _entries(target) if e not in mine]
     if not others:

@@ -21,6 +21,20 @@ __all__ = ["write_mp4", "write_jpeg_frames", "PLAYBACK_FPS"]
 PLAYBACK_FPS = 30.0
 
 
+def frames_folder(out: Path, overwrite: bool, pattern: str) -> None:
+    """Make `out` ready for a folder of frames named like `pattern`: refuse a file, or
+    frames already there unless `overwrite`, which removes them."""
+    if out.exists() and not out.is_dir():
+        raise ExperimentError("exists and is not a folder", path=out)
+    if not overwrite and out.is_dir() and any(out.glob(pattern)):
+        raise ExperimentError(
+            "already holds frames", path=out, expected="an empty or new folder, or --overwrite"
+        )
+    out.mkdir(parents=True, exist_ok=True)
+    for stale in out.glob(pattern) if overwrite else ():
+        stale.unlink()
+
+
 def _check_8bit(recording, what: str) -> None:
     if recording.sensor.bit_depth != 8:
         raise ExperimentError(
@@ -110,15 +124,7 @@ def write_jpeg_frames(recording, out: Path, *, overwrite: bool, quality: int, pr
     _check_8bit(recording, "jpeg")
     if not 1 <= quality <= 100:
         raise ExperimentError("must be from 1 to 100", key="quality", value=quality)
-    if out.exists() and not out.is_dir():
-        raise ExperimentError("exists and is not a folder", path=out)
-    if not overwrite and out.is_dir() and any(out.glob("frame_*.*")):
-        raise ExperimentError(
-            "already holds frames", path=out, expected="an empty or new folder, or --overwrite"
-        )
-    out.mkdir(parents=True, exist_ok=True)
-    for stale in out.glob("frame_*.*") if overwrite else ():
-        stale.unlink()
+    frames_folder(out, overwrite, "frame_*.*")
     total = recording.frames
     for index, frame in enumerate(recording.iter_frames()):
         path = out / f"frame_{index:05d}.jpg"

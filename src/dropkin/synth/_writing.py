@@ -27,7 +27,7 @@ from pathlib import Path
 from .._atomic import atomic_path, write_text_atomic
 from .._version import __version__
 from ..errors import ExperimentError
-from ._lossy import write_jpeg_frames, write_mp4
+from ._lossy import frames_folder, write_jpeg_frames, write_mp4
 from ._recording import SyntheticRecording
 from ._setups import scene_at
 
@@ -300,15 +300,7 @@ def _write_png_frames(recording, out: Path, overwrite, png_compression, progress
     import cv2
 
     total = recording.frames
-    if out.exists() and not out.is_dir():
-        raise ExperimentError("exists and is not a folder", path=out)
-    if not overwrite and out.is_dir() and any(out.glob("frame_*.png")):
-        raise ExperimentError(
-            "already holds frames", path=out, expected="an empty or new folder, or --overwrite"
-        )
-    out.mkdir(parents=True, exist_ok=True)
-    for stale in out.glob("frame_*.png") if overwrite else ():
-        stale.unlink()
+    frames_folder(out, overwrite, "frame_*.png")
     for index, frame in enumerate(recording.iter_frames()):
         path = out / f"frame_{index:05d}.png"
         with atomic_path(path) as tmp:
