@@ -32,19 +32,17 @@ of one 60-frame 256 x 256 recording (each a recording of its own to batch).
 
     python benchmarks/whole_job.py [--keep DIR] [--repeat 2] [--only abcde]
 
-Last measured (2-core machine shared with other jobs; the figures move with
-the load): at load 5-7, (a) 12.8 s / 3.3 s = 3.9; (b) marginal 5,800
-frames/s against a read-and-hash floor of 1,800 (0.31 x the floor's time per
-frame: the neck search reads a band of each frame and the hash runs on
-another core) and 23 x the per-frame script; (d) 146 ms / 84 ms = 1.7
-(before the lazy imports about 0.5-0.6 s at load 0.2); (e) 206 MB at load
-5.8, with chunks sized in bytes (16 frames of 1024 x 1024, a map of 32;
-571 MB with chunks of 64 frames and a map of 256, the map's pages resident). (c) at load 7-8:
-32.9 recordings/min at ``--jobs 1``, 30.1 at ``--jobs 2`` (0.92 x: no idle
-core for the second worker); at load 22, 5.4 and 11.9 (2.2 x) - on this
-shared machine (c) says little either way. Where
-(a) goes: the fit's bootstrap (t0 refitted in 200 resamples of five linear
-laws, about 6 s under a profiler) and the figures (about 4.7 s).
+Last measured on this 2-core machine with nothing else running (load 0.65
+before, 1.39 after), 2026-12-05: (a) analyze 6.29 s / measure 1.52 s = 4.14
+(missed: the fit's bootstrap and the figures take the 4.8 s between them);
+(b) marginal 5,864 frames/s against a read-and-hash floor of 3,877 (0.66 x
+the floor's time per frame: the neck search reads a band of each frame and
+the hash runs on another core) and 12.0 x the per-frame script (489
+frames/s); (c) 69.0 recordings/min at ``--jobs 1``, 129.0 at ``--jobs 2``
+(1.87 x); (d) 64 ms / 38 ms = 1.70; (e) 205 MB peak RSS in 2.7 s (chunks
+sized in bytes: 16 frames of 1024 x 1024). Under other jobs' load the
+figures move a lot: at load 7-8 (c) fell to 0.92 x (no idle core for the
+second worker).
 """
 
 from __future__ import annotations
