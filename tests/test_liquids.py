@@ -4,7 +4,7 @@ Oracles: CoolProp 8.0.0 (IAPWS-95 density, IAPWS 2008 viscosity, Mulero 2012
 surface tension) for water, ethanol and air; the check values of docs/physics.md
 §5 with their own sources and status labels; tabulated glycerol data (Dow,
 via docs/physics.md §5.5, V); the measured viscosities of Ind. Eng. Chem. 43,
-2117 (1951) (V, two public transcriptions); the glycerol surface-tension fit of
+2117 (1951) (V, two public copies of the table); the glycerol surface-tension fit of
 the VDI Heat Atlas, 2nd ed. (2010), as the chemicals 1.5.2 library evaluates it.
 """
 
@@ -113,8 +113,8 @@ def test_cheng_viscosity_against_physics_table(fraction, celsius, mpa_s):
 
 # Viscosity of aqueous glycerol (mPa s) at 0, 10, 20, 30, 40 °C, glycerol wt % as keys:
 # the measurements of Ind. Eng. Chem. 43, 2117 (1951), as reproduced in the
-# glycerine producers' viscosity table (values transcribed from a public copy
-# of that table). A second, independent public transcription (an open
+# glycerine producers' viscosity table (values read from a public copy
+# of that table). A second, independent copy of the table (an open
 # fluid-property data set, BSD-3 licensed; no 0 °C column and no 67 wt % row)
 # attributes its table to that paper by DOI (10.1021/ie50501a040), so the
 # attribution is checked (V), and agrees at 59 of the 60 values it shares with

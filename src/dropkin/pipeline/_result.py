@@ -340,9 +340,6 @@ def write_result(
         The same result, its series (and measurement) with the provenance
         of the files written.
     """
-    from .._atomic import remove_temporaries
-    from ..report import write_analysis_report
-
     out = Path(out)
     copy = None
     if experiment_copy:
@@ -363,17 +360,39 @@ def write_result(
         return replace(result, series=series)
     measurement = replace(result.measurement, series=series, path=out / "radius.csv")
     fit = result.settings.fit_settings()
-    remove_temporaries(out, out / "plots")  # left by a run that was killed
-    provenance = fit_provenance(measurement, out, published_dir, copy, fit)
+    write_verdict(result.verdict, measurement, out, published_dir, copy, fit)
+    write_report(out, measurement, result.verdict, result.settings.plot_formats)
+    return replace(result, series=series, measurement=measurement)
+
+
+def write_verdict(verdict, measurement, out, published_dir, experiment_file, fit: dict) -> None:
+    """``OUT/fit.json`` of a verdict; the provenance's paths are relative to
+    `published_dir` (default: `out`) and name `experiment_file` (default: the
+    measurement's); `fit` holds the fit's settings as given."""
+    from .._atomic import remove_temporaries
+
+    remove_temporaries(out, Path(out) / "plots")  # left by a run that was killed
+    provenance = fit_provenance(measurement, out, published_dir, experiment_file, fit)
     sample = measurement.sample_record()
-    write_fit(result.verdict, out, series=series, sample=sample, provenance=provenance)
-    write_analysis_report(
+    write_fit(verdict, out, series=measurement.series, sample=sample, provenance=provenance)
+
+
+def write_report(out, measurement, verdict, plot_formats=("png",)) -> Path:
+    """``OUT/plots/`` and ``OUT/report.html`` for a verdict, whether it succeeded or not,
+    then the folder's ``datapackage.json``; return the report's path.
+
+    A failed or undecided fit still gets the radius plot and a report that
+    says why. The overlay frames are those beside the measurement's ``radius.csv``.
+    """
+    from ..report import write_analysis_report
+
+    report = write_analysis_report(
         out,
-        series=series,
-        verdict=result.verdict,
+        series=measurement.series,
+        verdict=verdict,
         experiment=measurement.experiment,
-        overlays_dir=out / "overlays",
-        formats=result.settings.plot_formats,
+        overlays_dir=Path(measurement.path).parent / "overlays",
+        formats=plot_formats,
     )
     write_datapackage(out)
-    return replace(result, series=series, measurement=measurement)
+    return report

@@ -24,15 +24,15 @@ from pathlib import Path
 
 from ..errors import MeasurementError
 from ._fit import fit_measurement, load_measurement
-from ._outputs import write_fit
 from ._package import write_datapackage
-from ._record import fit_provenance
 from ._result import (
     analyze_in_memory,
     measure_series,
     open_source,
     write_measured,
+    write_report,
     write_result,
+    write_verdict,
 )
 from ._settings import AnalysisSettings, parse_roi
 
@@ -131,44 +131,6 @@ def measure_into(
     return series, extras["contact"].method
 
 
-def _fit_and_write(measurement, out, published_dir=None, experiment_file=None, **fit):
-    """The verdict of a measurement, written to ``OUT/fit.json``; the verdict and the numbers.
-
-    `fit` holds the keywords of :func:`~dropkin.pipeline._fit.fit_measurement`;
-    the provenance's paths are relative to `published_dir` (default: `out`)
-    and name `experiment_file` (default: the measurement's experiment file).
-    """
-    from .._atomic import remove_temporaries
-
-    verdict, numbers = fit_measurement(measurement, **fit)
-    remove_temporaries(out, Path(out) / "plots")  # left by a run that was killed
-    provenance = fit_provenance(measurement, out, published_dir, experiment_file, fit)
-    sample = measurement.sample_record()
-    write_fit(verdict, out, series=measurement.series, sample=sample, provenance=provenance)
-    return verdict, numbers
-
-
-def _write_report(out, measurement, verdict, plot_formats=("png",)) -> Path:
-    """``OUT/plots/`` and ``OUT/report.html`` for a verdict, whether it succeeded or not.
-
-    A failed or undecided fit still gets the radius plot and a report that
-    says why. The overlay frames are those beside the ``radius.csv``. The
-    folder's ``datapackage.json`` then describes all its files.
-    """
-    from ..report import write_analysis_report
-
-    report = write_analysis_report(
-        out,
-        series=measurement.series,
-        verdict=verdict,
-        experiment=measurement.experiment,
-        overlays_dir=Path(measurement.path).parent / "overlays",
-        formats=plot_formats,
-    )
-    write_datapackage(out)
-    return report
-
-
 def fit_into(
     radius_csv,
     out,
@@ -208,8 +170,9 @@ def fit_into(
         radius_csv, experiment=experiment, overrides=overrides, liquids=liquids
     )
     fit = {"t0": t0, "seed": seed, "bootstrap": bootstrap, "initial_radius": initial_radius}
-    verdict, numbers = _fit_and_write(measurement, out, published_dir=published_dir, **fit)
-    _write_report(out, measurement, verdict, plot_formats)
+    verdict, numbers = fit_measurement(measurement, **fit)
+    write_verdict(verdict, measurement, out, published_dir, None, fit)
+    write_report(out, measurement, verdict, plot_formats)
     return verdict, numbers, measurement
 
 
