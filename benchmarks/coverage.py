@@ -26,12 +26,18 @@ covering, and in ``noCI``. The laws are in published_laws.py.
 
     python benchmarks/coverage.py [--series 40] [--bootstrap 200] [--jobs 2] [--seed 0]
       [--csv rows.csv] [--case inertial|ilv|els|viscous-outer|inertial-spreading|tanner|crossover]
+      [--rate-factor 40]
+
+``--rate-factor K`` films every case at K times its frame rate: the same laws
+in K times as many rows (the long series that are fitted on averaged points,
+docs/physics.md §4.8, "Long series").
 """
 
 from __future__ import annotations
 
 import argparse
 import csv
+import dataclasses
 import math
 import os
 import sys
@@ -265,9 +271,11 @@ def _verdict_right(case, verdict) -> bool:
     return verdict.dominant is not None and verdict.dominant.key == case.sides[0].key
 
 
-def run_one(case_name: str, index: int, seed: int, bootstrap: int) -> list[dict]:
-    """Generate series `index` of a case, fit it twice, and return one row per side."""
+def run_one(case_name: str, index: int, seed: int, bootstrap: int, rate=1.0) -> list[dict]:
+    """Generate series `index` of a case (its frame rate times `rate`), fit it twice,
+    and return one row per side."""
     case = build_cases()[case_name]
+    case = dataclasses.replace(case, fps=case.fps * rate)
     case_index = list(build_cases()).index(case_name)
     s = generate(case, series_rng(seed, case_index, index))
     numbers = sample_numbers(**case.sample)
@@ -356,9 +364,14 @@ def main(argv=None) -> int:
     parser.add_argument("--jobs", type=int, default=1)
     parser.add_argument("--seed", type=int, default=0)
     parser.add_argument("--csv", help="write the per-series rows here")
+    parser.add_argument("--rate-factor", type=float, default=1.0, help="frame rate times this")
     args = parser.parse_args(argv)
     names = args.case or list(build_cases())
-    tasks = [(name, i, args.seed, args.bootstrap) for name in names for i in range(args.series)]
+    tasks = [
+        (name, i, args.seed, args.bootstrap, args.rate_factor)
+        for name in names
+        for i in range(args.series)
+    ]
     start, rows = time.perf_counter(), []
     with ProcessPoolExecutor(max_workers=args.jobs) as pool:
         futures = [pool.submit(run_one, *task) for task in tasks]
@@ -371,7 +384,12 @@ def main(argv=None) -> int:
         with open(args.csv, "w", newline="", encoding="utf-8") as handle:
             (writer := csv.DictWriter(handle, fieldnames=list(rows[0]))).writeheader()
             writer.writerows(rows)
-    print(f"{args.series} series per case, bootstrap {args.bootstrap}, seed {args.seed}")
+    ok_rows = [r["ok_frames"] for r in rows]
+    print(
+        f"{args.series} series per case, bootstrap {args.bootstrap}, seed {args.seed}, "
+        f"frame rate x {args.rate_factor:g}; ok rows per series: median "
+        f"{np.median(ok_rows):.0f}, most {max(ok_rows)}"
+    )
     print("width: exponent, absolute; coefficient, relative to the true C. (t0): true t0 given.")
     print(format_table(summarise(rows)))
     print(f"total time {time.perf_counter() - start:.0f} s with {args.jobs} job(s)")

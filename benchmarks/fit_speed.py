@@ -28,12 +28,14 @@ import numpy as np
 def write_series(folder, measure_json, rows, seed=0):
     """radius.csv of `rows` frames over the sample's first millisecond, and its measure.json."""
     info = json.load(open(measure_json))
-    lo, hi = info["contact_bracket_s"]
+    hi = info["contact_bracket_s"][1]
     t0 = info["contact_time_s"]
     span = 1e-3
     time_s = np.arange(rows) * (span / rows)
     rng = np.random.default_rng(seed)
-    status = np.where(time_s <= lo, "before-contact", np.where(time_s <= hi, "unresolved", "ok"))
+    # Before contact up to t0 (the frames then prove the bracket a frame wide around it),
+    # unresolved up to the sample's bracket end, ok after.
+    status = np.where(time_s <= t0, "before-contact", np.where(time_s <= hi, "unresolved", "ok"))
     tau = time_s - t0
     with np.errstate(invalid="ignore"):
         r = 0.0164 * np.sqrt(tau) * (1.0 + 0.01 * rng.standard_normal(rows))
@@ -49,6 +51,10 @@ def write_series(folder, measure_json, rows, seed=0):
             text = ",".join("" if v != v else repr(v) for v in values)
             out.write(f"{i},{text},{status[i]}\n")
     info["frames"] = rows
+    prov = info.get("provenance", {})
+    if prov.get("experiment_file"):  # relative to the measure.json it came from
+        where = os.path.dirname(os.path.abspath(measure_json))
+        prov["experiment_file"] = os.path.normpath(os.path.join(where, prov["experiment_file"]))
     info["frame_rate_hz"] = rows / span
     counts = {k: int(np.sum(status == k)) for k in ("ok", "before-contact", "unresolved")}
     info["status_counts"] = {**info["status_counts"], **counts}

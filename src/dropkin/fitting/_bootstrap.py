@@ -27,7 +27,7 @@ import math
 
 import numpy as np
 
-from ._core import Series, safe_exp, solve_linear
+from ._core import Series, point_scales, safe_exp, solve_linear
 from ._linear import SETTLE_PASSES, SETTLED, LinearModel, profile_many
 from ._records import BlendFit, LawFit
 from ._two_laws import TwoLawModel, build_model, least_squares_fit
@@ -116,12 +116,12 @@ def _refit_linear(data, fitted, e, model, fit, f_scale, n, rng):
     """
     lo, hi = fit.t0_bracket
     t0s, betas = [np.zeros(0)], [np.zeros((0, model.n_linear))]
-    # Each resample's robust weights start from those of the residuals it drew.
-    w_drawn = 1.0 / (data.s**2 * np.sqrt(1.0 + (e / f_scale) ** 2))
+    f_scale = point_scales(data, f_scale)
     for k in resample_chunks(n, len(data)):
         idx = rng.integers(0, len(data), size=(k, len(data)))
         y_star = fitted[None, :] + data.s[None, :] * e[idx]
-        start = w_drawn[idx]
+        # Each resample's robust weights start from those of the residuals it drew.
+        start = 1.0 / (data.s**2 * np.sqrt(1.0 + (e[idx] / f_scale) ** 2))
         if fit.t0_free:
             t0, beta = profile_many(
                 data.time, y_star, data.s, model, lo, hi, f_scale, fit.loss, start=start
@@ -220,7 +220,9 @@ def bootstrap_blend(series: Series, fit: BlendFit, *, f_scale, n, seed, **spec) 
     x0 = np.clip(best, bounds[0], bounds[1])
     rows = []
     for b in range(n):
-        resampled = Series(data.time, fitted + data.s * e[idx[b]], data.s, data.weighted)
+        resampled = Series(
+            data.time, fitted + data.s * e[idx[b]], data.s, data.weighted, data.rows
+        )
         try:
             res = least_squares_fit(
                 model, resampled, x0, bounds, loss=fit.loss, f_scale=f_scale, max_nfev=200

@@ -129,18 +129,33 @@ class Series:
         Uncertainty of ``ln r`` (``σ_r / r``; 1 where none was given).
     weighted : bool
         Whether per-point uncertainties were given.
+    rows : (N,) ndarray of int, optional
+        How many measured rows each point averages (:mod:`._groups`); None
+        when each point is one row.
     """
 
     time: np.ndarray
     y: np.ndarray
     s: np.ndarray
     weighted: bool
+    rows: np.ndarray | None = None
 
     def __len__(self):
         return len(self.time)
 
+    @property
+    def counts(self) -> np.ndarray:
+        """Rows each point averages (ones for a series of single rows)."""
+        return np.ones(len(self.time), dtype=np.int64) if self.rows is None else self.rows
+
+    @property
+    def n_rows(self) -> int:
+        """How many measured rows the points hold."""
+        return len(self.time) if self.rows is None else int(self.rows.sum())
+
     def subset(self, mask) -> Series:
-        return Series(self.time[mask], self.y[mask], self.s[mask], self.weighted)
+        rows = None if self.rows is None else self.rows[mask]
+        return Series(self.time[mask], self.y[mask], self.s[mask], self.weighted, rows)
 
 
 def as_array(name, value, n=None) -> np.ndarray:
@@ -268,6 +283,29 @@ def span_problem(tau) -> str:
 # ------------------------------------------------------------------ robust solver
 
 
+def point_scales(series: Series, f_scale):
+    """The robust scale of each point: `f_scale` for a row, ``f_scale √k`` for the
+    mean of k rows (:mod:`._groups`).
+
+    With it a point's loss ``ρ(z, f√k)`` is ``k ρ(z/√k, f)``: the loss its k rows
+    would add up to if each lay where their mean does. A stretch the law misses
+    on every row weighs what those rows would, not k times less.
+    """
+    return f_scale if series.rows is None else f_scale * np.sqrt(series.rows)
+
+
+def _rows_loss(rows):
+    """scipy's ``soft_l1`` of each point scaled to its `rows` (a callable loss):
+    ``ρ_k(z) = 2k(√(1 + z/k) - 1)`` of the squared scaled residual z."""
+
+    def loss(z):
+        a = 1.0 + z / rows
+        root = np.sqrt(a)
+        return np.vstack([2.0 * rows * (root - 1.0), 1.0 / root, -0.5 / (rows * a * root)])
+
+    return loss
+
+
 def solve_log_radius(log_radius, data: Series, x0, bounds, *, loss, f_scale, max_nfev=None):
     """scipy's least_squares on the normalised residuals of ``ln r``, for laws not
     linear at a given origin (the law with r0, blends).
@@ -283,6 +321,8 @@ def solve_log_radius(log_radius, data: Series, x0, bounds, *, loss, f_scale, max
         z = (data.y - log_radius(theta, data.time)) / data.s
         return np.where(np.isfinite(z), z, 1e6)
 
+    if loss == "soft_l1" and data.rows is not None:
+        loss = _rows_loss(data.rows.astype(float))
     with np.errstate(over="ignore", invalid="ignore", divide="ignore"):
         return least_squares(
             residuals,

@@ -184,7 +184,9 @@ def bootstrap_initial_radius(series: Series, fit: LawFit, *, f_scale, n, seed) -
     idx = rng.integers(0, len(data), size=(n, len(data)))
     rows = []
     for b in range(n):
-        resampled = Series(data.time, fitted + data.s * e[idx[b]], data.s, data.weighted)
+        resampled = Series(
+            data.time, fitted + data.s * e[idx[b]], data.s, data.weighted, data.rows
+        )
         try:
             res = _solve(
                 resampled,

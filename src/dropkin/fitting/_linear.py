@@ -34,6 +34,7 @@ from ._core import (
     data_problem,
     information,
     normal_ci,
+    point_scales,
     rho,
     safe_exp,
     solve_linear,
@@ -90,6 +91,7 @@ class LinearModel:
 def profile_fit(series: Series, model: LinearModel, lo, hi, f, loss):
     """Best origin in [lo, hi] and the linear parameters there: (t0, beta, z, w)."""
     t, y, s = series.time, series.y, series.s
+    f = point_scales(series, f)
 
     def at(t0s):
         tau = t[None, :] - np.asarray(t0s, dtype=float)[:, None]

@@ -122,7 +122,9 @@ def _expected_exponent(shape, points, t0, f_scale):
     """
     if not shape.logarithmic:
         return float(shape.exponent)
-    exact = Series(points.time, shape.log_shape(points.time - t0), points.s, points.weighted)
+    exact = Series(
+        points.time, shape.log_shape(points.time - t0), points.s, points.weighted, points.rows
+    )
     fit = linear_fit(exact, LinearModel(None), t0, t0, loss="soft_l1", f_scale=f_scale)
     return fit.exponent if fit else apparent_exponent(shape, points.time - t0, 1.0 / points.s**2)
 

@@ -44,8 +44,9 @@ def shifted_series(series: Series, r0: float) -> Series:
     r = np.exp(series.y)
     keep = r > r0
     grow = r[keep] - r0
+    rows = None if series.rows is None else series.rows[keep]
     return Series(
-        series.time[keep], np.log(grow), series.s[keep] * r[keep] / grow, series.weighted
+        series.time[keep], np.log(grow), series.s[keep] * r[keep] / grow, series.weighted, rows
     )
 
 

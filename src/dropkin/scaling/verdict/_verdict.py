@@ -41,6 +41,7 @@ from ...fitting._core import (
     make_series,
     noise_scale,
 )
+from ...fitting._groups import points_to_fit
 from ...fitting._local import LocalExponent
 from ...fitting._windows import AIC_THRESHOLD, EXPONENT_TOLERANCE, ModelScore, search_crossover
 from ..regimes._catalogue import candidates
@@ -327,8 +328,11 @@ def analyze_series(
 def _judged(series, levels, lo, hi, relative, bootstrap, seed, cands, base, initial_radius):
     """(verdict, decisions) on points that can support a fit, t0 in (lo, hi); `base` as given."""
     numbers, geometry = base["numbers"], base["geometry"]
-    data = series.subset(series.time > hi)
-    levels = tuple(s.subset(s.time > hi) for s in levels)
+    rows, data, levels, spread = points_to_fit(series, levels, lo, hi)
+    base = {
+        **base,
+        "settings": {**base["settings"], "points_fitted": len(data), "group_spread": spread},
+    }
     f_scale = ROBUST_SCALE * noise_scale(data)
     shapes = {c.regime.key: _shape(c, numbers) for c in cands}
     search = search_crossover(
@@ -382,8 +386,8 @@ def _judged(series, levels, lo, hi, relative, bootstrap, seed, cands, base, init
         local=result["local"],
         t0=result["t0"],
         t0_ci=result["t0_ci"],
-        n_points=len(data),
-        time_range=(float(data.time[0] - result["t0"]), float(data.time[-1] - result["t0"])),
+        n_points=rows.n_rows,
+        time_range=(float(rows.time[0] - result["t0"]), float(rows.time[-1] - result["t0"])),
         **base,
     )
     return verdict, decisions
