@@ -87,3 +87,42 @@ def test_origin_search_costs_a_bounded_number_of_evaluations_whatever_the_rows(r
         one = make_series(t, np.exp(ys[k]))
         t0, _, _, _ = profile_fit(one, model, lo, hi, f, "soft_l1")
         assert t0s[k] == pytest.approx(t0, abs=1e-4 * (hi - lo))
+
+
+def test_threads_change_no_number(monkeypatch):
+    # The blocks of resamples are refitted on several threads; each resample's
+    # refit is its own, so the intervals are the same to the last digit.
+    import threading
+
+    t, r, frame = _series(2000)
+    threads = set()
+    profile = bootstrap.profile_many
+
+    def noting_thread(*args, **kwargs):
+        threads.add(threading.get_ident())
+        return profile(*args, **kwargs)
+
+    monkeypatch.setattr(bootstrap, "profile_many", noting_thread)
+    fits = []
+    for given in ("1", "3"):
+        monkeypatch.setenv(bootstrap.THREADS_VARIABLE, given)
+        threads.clear()
+        fits.append(fit_power_law(t, r, t0_bracket=(0.0, frame), bootstrap=60, seed=3))
+        assert len(threads) == int(given)
+    one, three = fits
+    assert three.exponent_ci == one.exponent_ci
+    assert three.prefactor_ci == one.prefactor_ci
+    assert three.t0_ci == one.t0_ci
+
+
+def test_the_threads_are_the_environments_or_at_most_two_cores(monkeypatch):
+    import os
+
+    monkeypatch.delenv(bootstrap.THREADS_VARIABLE, raising=False)
+    cores = len(os.sched_getaffinity(0))
+    assert bootstrap.fit_threads(10**7) == min(2, cores)
+    assert bootstrap.fit_threads(100) == 1  # too small to share
+    monkeypatch.setenv(bootstrap.THREADS_VARIABLE, "4")
+    assert bootstrap.fit_threads(10**7) == 4
+    monkeypatch.setenv(bootstrap.THREADS_VARIABLE, "none")
+    assert bootstrap.fit_threads(10**7) == min(2, cores)

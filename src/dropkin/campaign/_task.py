@@ -186,7 +186,11 @@ def analyze_task(task: Task, work: Path, out_dir: Path, invocation: dict | None 
     row with status ``failed`` and the message. The caller publishes `work`
     (:func:`publish_work`): whatever was written, the frames measured before
     a failure say, is kept all the same.
+
+    The fit's bootstrap runs on one thread here, unless ``$DROPKIN_FIT_THREADS``
+    says otherwise: a campaign's recordings are its parallel work.
     """
+    os.environ.setdefault("DROPKIN_FIT_THREADS", "1")
     start, clock = _now(), time.perf_counter()
     row: dict = {
         "label": task.label,

@@ -24,6 +24,7 @@ from __future__ import annotations
 
 import dataclasses
 import math
+import os
 
 import numpy as np
 
@@ -94,13 +95,32 @@ def _std(values) -> float:
 _BLOCK_VALUES = 1 << 22
 
 
-def resample_chunks(n: int, points: int) -> list[int]:
+def resample_chunks(n: int, points: int, threads: int = 1) -> list[int]:
     """Sizes of the blocks of resamples refitted together: at most :data:`_BLOCK_VALUES`
     values per array whatever the number of points (at least one resample a block)."""
     from ._linear import _T0_GRID
 
-    per = max(1, _BLOCK_VALUES // max(1, points * _T0_GRID))
+    per = max(1, _BLOCK_VALUES // max(1, points * _T0_GRID * threads))
+    per = min(per, -(-n // threads))  # at least one block a thread
     return [min(per, n - start) for start in range(0, n, per)]
+
+
+#: Fewest values (resamples × points) worth a second thread.
+_THREADED_VALUES = 1 << 16
+#: The environment variable that sets the bootstrap's threads (a campaign's workers set 1).
+THREADS_VARIABLE = "DROPKIN_FIT_THREADS"
+
+
+def fit_threads(values: int) -> int:
+    """Threads for a bootstrap of `values` resamples × points: the whole number in
+    ``$DROPKIN_FIT_THREADS``, else the usable cores, at most 2; 1 for small ones."""
+    if values < _THREADED_VALUES:
+        return 1
+    given = os.environ.get(THREADS_VARIABLE, "").strip()
+    if given.isdigit() and int(given) >= 1:
+        return int(given)
+    cores = len(os.sched_getaffinity(0)) if hasattr(os, "sched_getaffinity") else 1
+    return max(1, min(2, cores))
 
 
 def _method(refitted) -> str:
@@ -112,35 +132,42 @@ def _refit_linear(data, fitted, e, model, fit, f_scale, n, rng):
     """t0 (n,) and β (n, p) refitted to `n` resamples, a block of them at a time.
 
     The residuals are drawn block by block: the same draws as one (n, N)
-    array, so the result does not depend on the block size.
+    array, so the result does not depend on the block size. The blocks are
+    refitted on :func:`fit_threads` threads (numpy leaves the interpreter
+    lock for its array work): each resample's refit is its own, so the
+    threads change no number either.
     """
     lo, hi = fit.t0_bracket
-    t0s, betas = [np.zeros(0)], [np.zeros((0, model.n_linear))]
     f_scale = point_scales(data, f_scale)
-    for k in resample_chunks(n, len(data)):
-        idx = rng.integers(0, len(data), size=(k, len(data)))
+    threads = fit_threads(n * len(data))
+    blocks = [
+        rng.integers(0, len(data), size=(k, len(data)))
+        for k in resample_chunks(n, len(data), threads)
+    ]
+
+    def refit(idx):
         y_star = fitted[None, :] + data.s[None, :] * e[idx]
         # Each resample's robust weights start from those of the residuals it drew.
         start = 1.0 / (data.s**2 * np.sqrt(1.0 + (e[idx] / f_scale) ** 2))
         if fit.t0_free:
-            t0, beta = profile_many(
+            return profile_many(
                 data.time, y_star, data.s, model, lo, hi, f_scale, fit.loss, start=start
             )
-        else:
-            t0 = np.full(k, fit.t0)
-            xb, offb = model.design(np.broadcast_to(data.time - fit.t0, y_star.shape))
-            beta, _, _ = solve_linear(
-                xb,
-                y_star - offb,
-                data.s,
-                f_scale,
-                fit.loss,
-                SETTLE_PASSES,
-                start=start,
-                tol=SETTLED,
-            )
-        t0s.append(t0)
-        betas.append(beta)
+        xb, offb = model.design(np.broadcast_to(data.time - fit.t0, y_star.shape))
+        beta, _, _ = solve_linear(
+            xb, y_star - offb, data.s, f_scale, fit.loss, SETTLE_PASSES, start=start, tol=SETTLED
+        )
+        return np.full(len(idx), fit.t0), beta
+
+    if threads > 1:
+        from concurrent.futures import ThreadPoolExecutor
+
+        with ThreadPoolExecutor(threads) as pool:
+            done = list(pool.map(refit, blocks))
+    else:
+        done = [refit(idx) for idx in blocks]
+    t0s = [np.zeros(0)] + [t0 for t0, _ in done]
+    betas = [np.zeros((0, model.n_linear))] + [beta for _, beta in done]
     return np.concatenate(t0s), np.concatenate(betas)
 
 

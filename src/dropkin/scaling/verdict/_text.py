@@ -193,6 +193,7 @@ def format_verdict(verdict) -> str:
         f"t0 = {_t(verdict.t0)} [{_t(verdict.t0_ci[0])}, {_t(verdict.t0_ci[1])}] "
         f"from the first frame (bracket {_t(verdict.t0_bracket[0])}–{_t(verdict.t0_bracket[1])}); "
         f"{verdict.n_points} points"
+        + _averaged(verdict.settings)
         + (
             f" ({verdict.n_beyond_validity} beyond r/R = {verdict.validity_ratio:.2g} left out)"
             if verdict.n_beyond_validity
@@ -202,3 +203,13 @@ def format_verdict(verdict) -> str:
     )
     lines += [f"warning [{w.code}]: {w.message}" for w in verdict.warnings]
     return "\n".join(lines)
+
+
+def _averaged(settings) -> str:
+    """How many averaged points a long series was fitted on ("" when row by row)."""
+    if not settings.get("group_spread"):
+        return ""
+    return (
+        f" (fitted as {settings['points_fitted']} averaged points, each within "
+        f"{settings['group_spread']:.2g} of ln τ)"
+    )
