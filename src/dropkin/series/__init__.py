@@ -35,9 +35,9 @@ from ._csv import (
     TRIGGER_COLUMN,
     level_column,
     read_angles,
-    read_columns,
 )
 from ._frame import series_frame
+from ._rows import read_columns
 
 __all__ = [
     "STATUSES",

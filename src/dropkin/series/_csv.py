@@ -1,4 +1,4 @@
-"""The text of ``radius.csv``: its columns, their names, and reading them back.
+"""The text of ``radius.csv``: its columns and their names (read back by :mod:`._rows`).
 
 The first columns are a contract (docs/architecture.md), in this order:
 :data:`CSV_COLUMNS`. After them come the radii at the other edge levels, one
@@ -19,7 +19,6 @@ from pathlib import Path
 import numpy as np
 
 from ..errors import DropkinError
-from ..status import STATUSES
 
 __all__ = [
     "CSV_COLUMNS",
@@ -27,7 +26,7 @@ __all__ = [
     "ANGLE_COLUMNS",
     "level_column",
     "level_of_column",
-    "read_columns",
+    "header_levels",
     "read_angles",
 ]
 
@@ -79,46 +78,7 @@ def _parse_float(text: str, *, path, line: int, column: str) -> float:
     return value
 
 
-def _parse_row(row: list, previous: dict | None, *, path, line: int, width: int) -> dict:
-    """A row's first cells (those of :data:`CSV_COLUMNS`), checked, and against
-    each other and the row before it; `width` is the header's length."""
-    if len(row) != width:
-        raise DropkinError(f"line {line}: has {len(row)} fields", path=path, expected=str(width))
-    try:
-        values = {"frame": int(row[0])}
-    except ValueError:
-        raise DropkinError(
-            f"line {line}: frame is not a whole number", path=path, value=row[0]
-        ) from None
-    for column, text in zip(CSV_COLUMNS[1:5], row[1:5], strict=True):
-        values[column] = _parse_float(text, path=path, line=line, column=column)
-    values["status"] = row[5].strip()
-    if values["status"] not in STATUSES:
-        raise DropkinError(
-            f"line {line}: unknown status",
-            path=path,
-            value=values["status"],
-            expected=" | ".join(STATUSES),
-        )
-    if math.isnan(values["time_s"]):
-        raise DropkinError(f"line {line}: time_s is empty", path=path, expected="a time in s")
-    if values["status"] == "ok" and not values["radius_m"] > 0:
-        raise DropkinError(
-            f"line {line}: status ok without a radius", path=path, expected="radius_m above 0"
-        )
-    for column in ("frame", "time_s") if previous is not None else ():
-        if not values[column] > previous[column]:
-            raise DropkinError(
-                f"line {line}: {column} does not increase (line {line - 1} has "
-                f"{previous[column]!r})",
-                path=path,
-                value=values[column],
-                expected="rows in the order of the frames, one per frame",
-            )
-    return values
-
-
-def _header_levels(header, *, path) -> tuple[list[float], bool]:
+def header_levels(header, *, path) -> tuple[list[float], bool]:
     """The edge levels of the columns after :data:`CSV_COLUMNS` in a header, and
     whether :data:`TRIGGER_COLUMN` ends it."""
     names = tuple(c.strip() for c in header)
@@ -130,49 +90,6 @@ def _header_levels(header, *, path) -> tuple[list[float], bool]:
     if None in levels or len(set(levels)) != len(levels):
         raise DropkinError("has other columns than a radius series", path=path, expected=expected)
     return levels, trigger
-
-
-def read_columns(path: Path) -> dict:
-    """The columns of a ``radius.csv``, checked row by row.
-
-    Returns
-    -------
-    dict
-        Arrays by the names of :data:`CSV_COLUMNS`, and ``level_radii``: the
-        radii (m) at the other edge levels by level (empty without them),
-        and :data:`TRIGGER_COLUMN` when the file has it.
-    """
-    try:
-        text = path.read_text(encoding="utf-8")
-    except (OSError, UnicodeDecodeError) as exc:
-        raise DropkinError(f"cannot be read ({exc})", path=path) from None
-    rows = list(csv.reader(io.StringIO(text)))
-    if not rows:
-        raise DropkinError(
-            "is empty", path=path, expected="a header line " + ",".join(CSV_COLUMNS)
-        )
-    levels, trigger = _header_levels(rows[0], path=path)
-    width = len(CSV_COLUMNS) + len(levels) + trigger
-    parsed, extra, previous = [], [], None
-    for line, row in enumerate(rows[1:], start=2):
-        if row:
-            previous = _parse_row(row, previous, path=path, line=line, width=width)
-            parsed.append(previous)
-            names = [*map(level_column, levels), *[TRIGGER_COLUMN] * trigger]
-            extra.append(
-                [
-                    _parse_float(text, path=path, line=line, column=name)
-                    for name, text in zip(names, row[len(CSV_COLUMNS) :], strict=True)
-                ]
-            )
-    out = {c: np.asarray([v[c] for v in parsed], dtype=np.float64) for c in CSV_COLUMNS[1:5]}
-    out["frame"] = np.asarray([v["frame"] for v in parsed], dtype=np.int64)
-    out["status"] = tuple(v["status"] for v in parsed)
-    values = np.asarray(extra, dtype=np.float64).reshape(len(parsed), len(levels) + trigger)
-    out["level_radii"] = {level: values[:, i] for i, level in enumerate(levels)}
-    if trigger:
-        out[TRIGGER_COLUMN] = values[:, -1]
-    return out
 
 
 ANGLE_COLUMNS = ("frame", "time_s", "angle_left_deg", "angle_right_deg")
