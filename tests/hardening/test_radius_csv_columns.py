@@ -19,7 +19,7 @@ import pytest
 
 from dropkin.errors import DropkinError
 from dropkin.series import CSV_COLUMNS, read_radius_csv
-from dropkin.series._rows import read_columns
+from dropkin.series._rows import read_angles, read_columns
 
 LEVELS = ("radius_level_0.4_m", "radius_level_0.6_m")
 TRIGGER = "time_since_trigger_s"
@@ -216,3 +216,41 @@ def test_a_file_that_is_no_radius_series_is_refused_in_one_line(tmp_path, conten
         read_radius_csv(path)
     assert caught.value.message.startswith(message)
     assert "\n" not in str(caught.value) and str(path) in str(caught.value)
+
+
+def test_angles_are_those_of_csv_reader_and_float_the_last_row_of_a_frame_winning(tmp_path):
+    rng = np.random.default_rng(1)
+    numbers = rng.integers(0, 400, 1000)  # repeated frames, in no order
+    left, right = rng.uniform(0, 180, (2, 1000))
+    lines = ["frame,time_s,angle_left_deg,angle_right_deg"]
+    for i, (f, a, b) in enumerate(zip(numbers, left.tolist(), right.tolist(), strict=True)):
+        cells = ["" if i % 3 == 0 else repr(a), " " if i % 4 == 0 else repr(b)]
+        lines.append(f"{f},{i},{cells[0]},{cells[1]}")
+    text = "\n".join(lines) + "\n"
+    path = tmp_path / "angles.csv"
+    path.write_text(text)
+    expected = {}  # the straightforward reading: row by row, the last row of a frame kept
+    for row in list(csv.reader(io.StringIO(text)))[1:]:
+        expected[int(row[0])] = [_number(row[2]), _number(row[3])]
+    frames = np.arange(-5, 410)
+    want = np.array([expected.get(int(f), [math.nan, math.nan]) for f in frames])
+    assert read_angles(path, frames).tobytes() == want.tobytes()
+
+
+@pytest.mark.parametrize(
+    "row, message",
+    [
+        ("2,0.2,x,1", "line 4: angle_left_deg is not a number"),
+        ("2,0.2,1,-1", "line 4: angle_right_deg is negative"),
+        ("2,0.2,inf,1", "line 4: angle_left_deg is infinite"),
+        ("2,0.2,1,nan", "line 4: angle_right_deg is NaN"),
+        ("2.5,0.2,1,1", "line 4: frame is not a whole number"),
+        ("2,0.2,1", "line 4: has 3 fields"),
+    ],
+)
+def test_a_bad_angles_row_is_refused_naming_its_line(tmp_path, row, message):
+    path = tmp_path / "angles.csv"
+    path.write_text("frame,time_s,angle_left_deg,angle_right_deg\n0,0,1,2\n1,0.1,,\n" + row)
+    with pytest.raises(DropkinError) as caught:
+        read_angles(path, [0, 1, 2])
+    assert caught.value.message == message and str(path) in str(caught.value)

@@ -35,10 +35,9 @@ from ._csv import (
     CSV_COLUMNS,
     TRIGGER_COLUMN,
     level_column,
-    read_angles,
 )
 from ._frame import series_frame
-from ._rows import read_columns
+from ._rows import read_angles, read_columns
 
 __all__ = [
     "STATUSES",

@@ -1,4 +1,4 @@
-"""Reading ``radius.csv``: its rows checked, whole columns at a time.
+"""Reading ``radius.csv`` (and ``angles.csv``): their rows checked, whole columns at a time.
 
 The checks are those of a reading row by row, and the error is the one such
 a reading meets first: the first bad line, and in it the first failed check
@@ -19,9 +19,9 @@ import numpy as np
 from ..errors import DropkinError
 from ..status import STATUSES
 from ._cells import Table, parse_floats, parse_ints, split_table
-from ._csv import CSV_COLUMNS, TRIGGER_COLUMN, header_levels, level_column
+from ._csv import ANGLE_COLUMNS, CSV_COLUMNS, TRIGGER_COLUMN, header_levels, level_column
 
-__all__ = ["read_columns"]
+__all__ = ["read_columns", "read_angles"]
 
 _SIGNED = ("time_s", TRIGGER_COLUMN)  # the columns that may hold negative numbers
 _KNOWN = frozenset(STATUSES)
@@ -66,16 +66,19 @@ def _numbers(checks: _Checks, cells, column: str, empty=None) -> np.ndarray:
     return values
 
 
-def _frames(checks: _Checks, cells) -> np.ndarray:
+def _frames(checks: _Checks, cells, *, in_range: bool = True) -> tuple[np.ndarray, np.ndarray]:
+    """The frame numbers, and the mask of those beyond int64 (refused if `in_range`)."""
     frame, not_whole, out_of_range = parse_ints(cells)
-    for bad, message in ((not_whole, "is not a whole number"), (out_of_range, "is out of range")):
+    refused = [(not_whole, "is not a whole number")]
+    refused += [(out_of_range, "is out of range")] if in_range else []
+    for bad, message in refused:
         checks.add(
             bad,
             lambda i, line, message=message: DropkinError(
                 f"line {line}: frame {message}", path=checks.path, value=cells[i]
             ),
         )
-    return frame
+    return frame, out_of_range
 
 
 def _statuses(checks: _Checks, cells) -> tuple:
@@ -134,21 +137,38 @@ def _checked(table: Table, names: list, path: Path) -> dict:
     checks = _Checks(table, path)
     cells = table.columns or [()] * len(names)
     empty = [None] * len(names) if table.empty is None else list(table.empty.T)
-    columns = {"frame": _frames(checks, cells[0])}
+    columns = {"frame": _frames(checks, cells[0])[0]}
     for k in range(1, 5):
         columns[names[k]] = _numbers(checks, cells[k], names[k], empty[k])
     columns["status"] = _statuses(checks, cells[5])
     _row_checks(checks, columns)
     extra = [_numbers(checks, cells[k], names[k], empty[k]) for k in range(6, len(names))]
     checks.raise_first()
-    if len(table.rows) < np.count_nonzero(table.widths):  # a row of another width
-        record = int(np.flatnonzero((table.widths != len(names)) & (table.widths != 0))[0])
+    _same_widths(table, len(names), path)
+    return {**columns, "extra": extra}
+
+
+def _same_widths(table: Table, width: int, path: Path) -> None:
+    """Refuse the first row of `table` not `width` cells wide (blank lines aside)."""
+    if len(table.rows) < np.count_nonzero(table.widths):
+        record = int(np.flatnonzero((table.widths != width) & (table.widths != 0))[0])
         raise DropkinError(
             f"line {record + 2}: has {int(table.widths[record])} fields",
             path=path,
-            expected=str(len(names)),
+            expected=str(width),
         )
-    return {**columns, "extra": extra}
+
+
+def _table(path: Path) -> Table:
+    """The records of the CSV file `path` (see :func:`~._cells.split_table`)."""
+    try:
+        text = path.read_text(encoding="utf-8")
+    except (OSError, UnicodeDecodeError) as exc:
+        raise DropkinError(f"cannot be read ({exc})", path=path) from None
+    try:
+        return split_table(text)
+    except csv.Error as exc:
+        raise DropkinError(f"cannot be read as CSV ({exc})", path=path) from None
 
 
 def read_columns(path: Path) -> dict:
@@ -162,14 +182,7 @@ def read_columns(path: Path) -> dict:
         level (empty without them), and :data:`TRIGGER_COLUMN` when the file
         has it.
     """
-    try:
-        text = path.read_text(encoding="utf-8")
-    except (OSError, UnicodeDecodeError) as exc:
-        raise DropkinError(f"cannot be read ({exc})", path=path) from None
-    try:
-        table = split_table(text)
-    except csv.Error as exc:
-        raise DropkinError(f"cannot be read as CSV ({exc})", path=path) from None
+    table = _table(path)
     if table.header is None:
         raise DropkinError(
             "is empty", path=path, expected="a header line " + ",".join(CSV_COLUMNS)
@@ -182,3 +195,49 @@ def read_columns(path: Path) -> dict:
     if trigger:
         columns[TRIGGER_COLUMN] = extra[-1]
     return columns
+
+
+def read_angles(path: Path, frames) -> np.ndarray:
+    """The apparent contact angles of ``angles.csv``, one row per frame of `frames`.
+
+    Returns
+    -------
+    (F, 2) ndarray
+        Degrees at the left and right contact points, in the order of
+        `frames`; NaN where the file has no angle (or no row) for a frame
+        (the last of its rows, when it has several).
+
+    Raises
+    ------
+    DropkinError
+        Naming the file and the line, when the header is not
+        :data:`ANGLE_COLUMNS`, a row has other than 4 cells, or a frame is not
+        a whole number, an angle not a number, infinite, NaN or negative
+        (empty cells are allowed: no angle). ``time_s`` is not read.
+    """
+    table = _table(path)
+    if table.header is None or tuple(c.strip() for c in table.header) != ANGLE_COLUMNS:
+        raise DropkinError(
+            "has not the header of an angles file", path=path, expected=",".join(ANGLE_COLUMNS)
+        )
+    checks = _Checks(table, path)
+    cells = table.columns or [()] * len(ANGLE_COLUMNS)
+    empty = [None] * len(cells) if table.empty is None else list(table.empty.T)
+    number, beyond = _frames(checks, cells[0], in_range=False)
+    angles = [_numbers(checks, cells[k], ANGLE_COLUMNS[k], empty[k]) for k in (2, 3)]
+    checks.raise_first()
+    _same_widths(table, len(ANGLE_COLUMNS), path)
+    return _by_frame(number[~beyond], np.column_stack(angles)[~beyond], frames)
+
+
+def _by_frame(numbers: np.ndarray, values: np.ndarray, frames) -> np.ndarray:
+    """The row of `values` for each of `frames` (its last row in `numbers`), NaN if none."""
+    wanted = np.fromiter(map(int, frames), np.int64)
+    out = np.full((len(wanted), values.shape[1]), np.nan)
+    if not len(numbers):
+        return out
+    order = np.argsort(numbers, kind="stable")  # equal frames keep the file's order
+    last = np.searchsorted(numbers[order], wanted, side="right") - 1
+    found = (last >= 0) & (numbers[order][np.maximum(last, 0)] == wanted)
+    out[found] = values[order[last[found]]]
+    return out
