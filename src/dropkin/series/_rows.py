@@ -82,7 +82,9 @@ def _frames(checks: _Checks, cells, *, in_range: bool = True) -> tuple[np.ndarra
 
 
 def _statuses(checks: _Checks, cells) -> tuple:
-    status = tuple(cells) if _KNOWN.issuperset(cells) else tuple(map(str.strip, cells))
+    if _KNOWN.issuperset(cells):
+        return tuple(cells)
+    status = tuple(map(str.strip, cells))
     known = np.fromiter(map(_KNOWN.__contains__, status), bool, len(status))
     checks.add(
         ~known,
