@@ -72,10 +72,10 @@ def frames_bracket(time, status, *, last_apart=None) -> tuple[float, float] | No
     True
     """
     t = np.asarray(time, dtype=np.float64)
-    st = [str(s) for s in status]
-    touching = np.array([s in IN_CONTACT for s in st], dtype=bool)
-    apart = np.array([s == _BEFORE for s in st], dtype=bool) & np.isfinite(t)
-    measured = np.nonzero(np.array([s == IN_CONTACT[0] for s in st], dtype=bool))[0]
+    st = list(map(str, status))
+    touching = np.fromiter(map(frozenset(IN_CONTACT).__contains__, st), bool, len(st))
+    apart = np.fromiter(map(_BEFORE.__eq__, st), bool, len(st)) & np.isfinite(t)
+    measured = np.flatnonzero(np.fromiter(map(IN_CONTACT[0].__eq__, st), bool, len(st)))
     end = int(measured[0]) if len(measured) else len(st)
     before = np.nonzero(apart[:end])[0]
     if not len(before):

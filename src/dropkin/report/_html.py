@@ -18,6 +18,8 @@ import json
 import math
 from pathlib import Path
 
+import numpy as np
+
 from .._atomic import write_text_atomic
 from .._version import __version__
 from .._words import count
@@ -117,12 +119,10 @@ def report_warnings(*, series, verdict) -> list[str]:
     end = _num(dom.window[1]) if dom and dom.window else None
     t0 = _num(verdict.t0) if verdict else None
     if end is not None and t0 is not None:
-        after = [
-            t - t0
-            for t, s in zip(series.time, series.status, strict=False)
-            if s == "at-edge" and _finite(t) and t - t0 >= end * (1 - 1e-9)
-        ]
-        if after:
+        tau = np.asarray(series.time, dtype=np.float64) - t0
+        at_edge = np.fromiter(map("at-edge".__eq__, series.status), bool, len(tau))
+        after = np.flatnonzero(at_edge & np.isfinite(tau) & (tau >= end * (1 - 1e-9)))
+        if len(after):
             out.append(
                 f"The {dom.key} regime may be cut by the field of view: its window "
                 f"ends at τ = {end * 1e3:.3g} ms and "

@@ -152,6 +152,12 @@ def _data_uri(path: Path) -> str:
     return "data:image/png;base64," + base64.b64encode(path.read_bytes()).decode("ascii")
 
 
+def _last_row(frames: np.ndarray, number: int) -> int | None:
+    """The index of the last row of `frames` that is frame `number`, or None."""
+    rows = np.flatnonzero(frames == number)
+    return int(rows[-1]) if len(rows) else None
+
+
 def overlay_frames(overlays_dir, series, verdict) -> list[dict]:
     """The annotated frames in order, each ``name``, ``caption`` and ``uri`` (a data: URI).
 
@@ -160,11 +166,11 @@ def overlay_frames(overlays_dir, series, verdict) -> list[dict]:
     """
     origin = time_origin(series, verdict)
     tau = origin.tau(series.time)
-    where = {int(f): i for i, f in enumerate(np.asarray(series.frame))}
+    numbers = np.asarray(series.frame)
     frames = []
     for path in completed_files(Path(overlays_dir), "*.png"):
         match = _FRAME.fullmatch(path.stem)
-        index = where.get(int(match.group(1))) if match else None
+        index = _last_row(numbers, int(match.group(1))) if match else None
         caption = path.stem
         if index is not None:
             parts = [f"frame {int(series.frame[index])}", str(series.status[index])]

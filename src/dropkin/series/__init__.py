@@ -20,6 +20,7 @@ import csv
 import io
 import json
 import math
+from collections import Counter
 from collections.abc import Mapping
 from dataclasses import dataclass, field, replace
 from pathlib import Path
@@ -34,10 +35,9 @@ from ._csv import (
     CSV_COLUMNS,
     TRIGGER_COLUMN,
     level_column,
-    read_angles,
-    read_columns,
 )
 from ._frame import series_frame
+from ._rows import read_angles, read_columns
 
 __all__ = [
     "STATUSES",
@@ -154,12 +154,13 @@ class RadiusSeries:
     @property
     def ok(self) -> np.ndarray:
         """Boolean mask of the frames with status ``ok``."""
-        return np.array([s == "ok" for s in self.status], dtype=bool)
+        return np.fromiter(map("ok".__eq__, self.status), bool, len(self.status))
 
     @property
     def status_counts(self) -> dict[str, int]:
         """Frames of each status, every status of :data:`STATUSES` in its order."""
-        return {name: int(sum(s == name for s in self.status)) for name in STATUSES}
+        counts = Counter(self.status)
+        return {name: counts[name] for name in STATUSES}
 
 
 # measure.json keys that hold a field of the record; the keys besides these,
