@@ -46,6 +46,10 @@ _STATUS_MARKERS = {
     "after-growth": "d",
 }
 
+#: zlib level of the montage's PNG: its photographs take 3× longer to pack at
+#: the default 6, for 8 % smaller files (the report does not inline it).
+_MONTAGE_PNG_LEVEL = 3
+
 #: Stems of the figures that `write_plots` can write (each in the formats asked for).
 PLOT_NAMES = ("radius", "local_exponent", "residuals", "contact_angle", "overlays")
 
@@ -167,12 +171,11 @@ def _plot_overlays(files):
 
     cols = min(3, len(files))
     rows = math.ceil(len(files) / cols)
-    first = mpimg.imread(files[0])
-    aspect = first.shape[0] / max(first.shape[1], 1)
+    images = [mpimg.imread(path) for path in files]
+    aspect = images[0].shape[0] / max(images[0].shape[1], 1)
     fig = _new_figure(max(1.0, rows * (_WIDTH_IN / cols) * aspect + 0.2 * rows))
-    for k, path in enumerate(files):
+    for k, (path, image) in enumerate(zip(files, images, strict=True)):
         ax = fig.add_subplot(rows, cols, k + 1)
-        image = mpimg.imread(path)
         ax.imshow(image, cmap="gray" if image.ndim == 2 else None, interpolation="nearest")
         ax.set_axis_off()
         ax.set_title(path.stem.replace("_", " "), fontsize=6.5, pad=2)
@@ -256,7 +259,8 @@ def write_plots(out_dir, *, series, verdict, overlays_dir=None, formats=("png",)
         warnings.simplefilter("ignore", UserWarning)
         warnings.simplefilter("ignore", RuntimeWarning)
         for stem, draw in figures.items():
-            written += _save(draw(), plots_dir, stem, formats)
+            level = _MONTAGE_PNG_LEVEL if stem == "overlays" else None
+            written += _save(draw(), plots_dir, stem, formats, png_level=level)
     for stem in set(PLOT_NAMES) - set(figures):
         for ext in PLOT_FORMATS:
             (plots_dir / f"{stem}.{ext}").unlink(missing_ok=True)
