@@ -4,7 +4,8 @@ from __future__ import annotations
 
 import numpy as np
 
-from ._dense import draw_points, place_legend
+from ._dense import draw_points
+from ._legend import place_legend
 from ._origin import time_origin
 from ._style import OKABE_ITO, _log_axis, _new_figure
 
@@ -26,11 +27,11 @@ def plot_contact_angles(series, verdict):
     fig = _new_figure(2.2)
     ax = fig.add_subplot()
     shown = np.isfinite(tau) & (tau > 0) & np.isfinite(angles).any(axis=1)
-    binned = False
+    drawn, binned = [], False
     for side, (label, colour, marker, face) in enumerate(_SIDES):
         sel = shown & np.isfinite(angles[:, side])
         if sel.any():
-            binned |= draw_points(
+            points, grouped = draw_points(
                 ax,
                 tau[sel],
                 angles[sel, side],
@@ -41,10 +42,10 @@ def plot_contact_angles(series, verdict):
                 color=OKABE_ITO[colour],
                 mfc=face if face else OKABE_ITO[colour],
             )
+            drawn, binned = drawn + points, binned or grouped
     if shown.any():
         ax.set_xscale("log")
         _log_axis(ax.xaxis)
-        drawn = [(tau[shown] * 1e3, angles[shown, side]) for side in (0, 1)]
         place_legend(ax, drawn, binned=binned)
     else:
         ax.text(0.5, 0.5, "no contact angle after contact", transform=ax.transAxes, ha="center")

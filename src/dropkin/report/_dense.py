@@ -11,10 +11,6 @@ value of its rows, with a bar from the 16th to the 84th percentile of the
 values (the central 68 %, the spread a Gaussian's ± 1 σ would cover). The
 legend says so and gives the fewest and most rows in a bin. Shorter groups
 are drawn row by row, as they always were.
-
-The legend's corner is chosen from where the points lie (the corner with
-fewest of them), not by matplotlib's ``loc="best"``, which tries every
-corner against every point drawn.
 """
 
 from __future__ import annotations
@@ -23,16 +19,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
-__all__ = [
-    "Binned",
-    "bin_log",
-    "draw_points",
-    "legend_corner",
-    "place_legend",
-    "MAX_DRAWN",
-    "BINS",
-    "BINNED_TITLE",
-]
+__all__ = ["Binned", "bin_log", "draw_points", "MAX_DRAWN", "BINS", "BINNED_TITLE"]
 
 #: Rows of one group drawn one by one; a longer group is binned.
 MAX_DRAWN = 3000
@@ -41,13 +28,9 @@ BINS = 150
 #: The percentiles a binned point's bar spans.
 SPREAD = (16.0, 84.0)
 #: The legend's title of a figure with binned points.
-BINNED_TITLE = "binned: median per log-τ bin, bar 16–84 %"
+BINNED_TITLE = "median of each log-τ bin, bar 16–84 %"
 #: The opacity of a binned point's bar (its marker is opaque).
 _BAR_ALPHA = 0.45
-#: A corner holding more of the points than this share is crowded.
-_CROWDED = 0.02
-#: Rows at most that :func:`legend_corner` counts.
-_COUNTED = 20_000
 
 
 @dataclass(frozen=True)
@@ -78,15 +61,6 @@ class Binned:
     rows: np.ndarray
 
 
-def _quantile(sorted_values, start, size, q):
-    """The `q` quantile of each group ``sorted_values[start:start + size]`` (linear rule)."""
-    pos = start + q * (size - 1)
-    low = np.floor(pos).astype(np.intp)
-    high = np.minimum(low + 1, start + size - 1)
-    frac = pos - low
-    return sorted_values[low] + frac * (sorted_values[high] - sorted_values[low])
-
-
 def bin_log(tau, value, *, bins: int = BINS) -> Binned:
     """Medians and 16–84 % spread of `value` in `bins` log-spaced bins of `tau`.
 
@@ -114,23 +88,27 @@ def bin_log(tau, value, *, bins: int = BINS) -> Binned:
         raise ValueError(f"tau and value must be 1-D of one length ≥ 1, not {tau.shape}")
     if not (np.all(tau > 0) and np.all(np.isfinite(tau)) and np.all(np.isfinite(value))):
         raise ValueError("tau must be positive and finite, value finite")
-    lo, hi = float(tau.min()), float(tau.max())
+    if np.any(np.diff(tau) < 0):  # a series' rows come in time order: no sort then
+        order = np.argsort(tau, kind="stable")
+        tau, value = tau[order], value[order]
+    lo, hi = float(tau[0]), float(tau[-1])
     edges = np.geomspace(lo, hi, bins + 1) if hi > lo else np.array([lo, lo])
-    index = np.clip(np.searchsorted(edges, tau, side="right") - 1, 0, len(edges) - 2)
-    sizes = np.bincount(index, minlength=len(edges) - 1)
-    held = sizes > 0
-    size = sizes[held]
-    start = np.concatenate(([0], np.cumsum(size)[:-1]))
-    # rows grouped by bin, sorted within it: once by τ, once by value
-    by_tau = np.sort(tau)  # τ's order is the bins' order
-    by_value = value[np.lexsort((value, index))]
+    # bin i holds edges[i] <= τ < edges[i + 1]; the last one also τ = its right edge
+    bounds = np.concatenate(([0], np.searchsorted(tau, edges[1:-1], side="left"), [tau.size]))
+    held = [(a, b) for a, b in zip(bounds[:-1], bounds[1:], strict=True) if b > a]
+    stats = np.array(
+        [
+            (np.median(tau[a:b]), *np.percentile(value[a:b], (50.0, *SPREAD)), b - a)
+            for a, b in held
+        ]
+    )
     return Binned(
         edges=edges,
-        tau=_quantile(by_tau, start, size, 0.5),
-        value=_quantile(by_value, start, size, 0.5),
-        lower=_quantile(by_value, start, size, SPREAD[0] / 100),
-        upper=_quantile(by_value, start, size, SPREAD[1] / 100),
-        rows=size,
+        tau=stats[:, 0],
+        value=stats[:, 1],
+        lower=stats[:, 2],
+        upper=stats[:, 3],
+        rows=stats[:, 4].astype(int),
     )
 
 
@@ -174,7 +152,7 @@ def _errorbar(ax, x, y, low, high, *, label, marker, ecolor=None, elinewidth=0.5
 
 def draw_points(
     ax, tau, value, *, err=None, label: str, counted: bool = True, scale: float = 1.0, **style
-) -> bool:
+) -> tuple[list, bool]:
     """Draw one group of points against τ (ms): row by row, or binned when long.
 
     `tau` (s) and `value` are the group's rows, `err` their uncertainties
@@ -183,9 +161,11 @@ def draw_points(
     matplotlib's keywords, with ``marker``. The label is ``"label (N)"``
     (`label` alone unless `counted`); a group of more than :data:`MAX_DRAWN`
     rows is drawn as :func:`bin_log`'s medians with their 16–84 % bars
-    instead (drawn lighter than the markers), its label gives its rows and
-    the rows a bin holds, and True is returned: the legend's title is then
-    :data:`BINNED_TITLE`.
+    instead (drawn lighter than the markers), and its label gives its rows
+    and the rows a bin holds (the legend's title is then :data:`BINNED_TITLE`).
+
+    Returns the (x, y) arrays drawn (the markers and their bars' ends, in the
+    axes' units), for the legend's place, and whether the group was binned.
     """
     tau = np.asarray(tau, dtype=float)
     value = np.asarray(value, dtype=float) * scale
@@ -194,10 +174,11 @@ def draw_points(
         if err is None:
             style.pop("elinewidth", None)
             ax.plot(tau * 1e3, value, ls="none", label=label, **style)
-            return False
+            return [(tau * 1e3, value)], False
         bars = np.where(np.isfinite(err), err, 0.0) * scale
-        _errorbar(ax, tau * 1e3, value, value - bars, value + bars, label=label, **style)
-        return False
+        x, low, high = tau * 1e3, value - bars, value + bars
+        _errorbar(ax, x, value, low, high, label=label, **style)
+        return [(x, value), (x, low), (x, high)], False
     from matplotlib.colors import to_rgba
 
     binned = bin_log(tau, value)
@@ -211,51 +192,5 @@ def draw_points(
         ecolor=to_rgba(style.get("color", "k"), _BAR_ALPHA),
         **style,
     )
-    return True
-
-
-def legend_corner(ax, points) -> str | None:
-    """The corner of `ax` where the fewest of `points` lie, for the legend's ``loc``;
-    None when even that corner holds more than 2 % of them.
-
-    `points` are (x, y) pairs of arrays in data coordinates, as drawn; call
-    it once the axes' limits are set. Each corner is a box of 45 % of the
-    width and 40 % of the height; ties go to the upper left, upper right,
-    lower right, lower left, in that order. Of a long series every k-th row
-    is counted, :data:`_COUNTED` rows at most.
-    """
-    xy = [np.column_stack((np.ravel(x), np.ravel(y))) for x, y in points if np.size(x)]
-    if not xy:
-        return "upper left"
-    xy = np.vstack(xy)
-    xy = xy[:: max(1, len(xy) // _COUNTED)]
-    to_axes = ax.transData + ax.transAxes.inverted()
-    frac = to_axes.transform(xy)
-    frac = frac[np.isfinite(frac).all(axis=1)]
-    left, right = frac[:, 0] < 0.45, frac[:, 0] > 0.55
-    upper, lower = frac[:, 1] > 0.6, frac[:, 1] < 0.4
-    crowd = {
-        "upper left": left & upper,
-        "upper right": right & upper,
-        "lower right": right & lower,
-        "lower left": left & lower,
-    }
-    corner = min(crowd, key=lambda k: int(crowd[k].sum()))
-    return None if crowd[corner].sum() > _CROWDED * len(frac) else corner
-
-
-def place_legend(ax, points, *, binned: bool = False, **options) -> None:
-    """The axes' legend in the corner :func:`legend_corner` chooses, or below the
-    axes (the figure made taller by its height) when every corner is crowded.
-
-    `binned` titles it :data:`BINNED_TITLE`; `options` go to matplotlib's legend.
-    """
-    title = BINNED_TITLE if binned else None
-    corner = legend_corner(ax, points)
-    if corner is not None:
-        ax.legend(loc=corner, title=title, title_fontsize=6.5, **options)
-        return
-    fig = ax.figure
-    legend = fig.legend(loc="outside lower center", title=title, title_fontsize=6.5, **options)
-    lines = len(legend.get_texts()) + (title is not None)
-    fig.set_figheight(fig.get_figheight() + 0.14 * lines + 0.05)
+    x = binned.tau * 1e3
+    return [(x, binned.value), (x, binned.lower), (x, binned.upper)], True

@@ -16,7 +16,8 @@ import numpy as np
 from .._atomic import completed_files
 from ._angles import plot_contact_angles
 from ._curves import _candidate_curve, _dominant, _window, dominant_curve, fit_times
-from ._dense import draw_points, place_legend
+from ._dense import draw_points
+from ._legend import place_legend
 from ._local import plot_local_exponent
 from ._origin import time_origin
 from ._residuals import plot_residuals as _plot_residuals
@@ -57,12 +58,12 @@ PLOT_NAMES = ("radius", "local_exponent", "residuals", "contact_angle", "overlay
 def _plot_points(ax, tau, r, err, status, good):
     """The ok frames with their error bars; the others in grey, a marker per status.
 
-    Returns the (τ in ms, r in mm) of every row drawn and of its error bar's
-    ends, for the legend's corner, and whether a group was binned.
+    Returns the (τ in ms, r in mm) of every marker drawn and of its error
+    bar's ends, for the legend's corner, and whether a group was binned.
     """
     look = {"ms": 2.5, "mfc": "none", "mew": 0.6}
     ok = good & (status == "ok")
-    binned = draw_points(
+    drawn, binned = draw_points(
         ax,
         tau[ok],
         r[ok],
@@ -78,13 +79,11 @@ def _plot_points(ax, tau, r, err, status, good):
     for name, marker in _STATUS_MARKERS.items():
         sel = good & (status == name)
         if sel.any():
-            binned |= draw_points(
+            points, grouped = draw_points(
                 ax, tau[sel], r[sel], label=name, scale=1e3, marker=marker, color=_GREY, **look
             )
-    bar = np.where(np.isfinite(err[ok]), err[ok], 0.0)
-    t = tau[ok] * 1e3
-    ends = [(t, (r[ok] + k * bar) * 1e3) for k in (-1, 1)]
-    return [(tau[good] * 1e3, r[good] * 1e3), *ends], binned
+            drawn, binned = drawn + points, binned or grouped
+    return drawn, binned
 
 
 def _plot_laws(ax, series, verdict):
@@ -241,6 +240,12 @@ def write_plots(out_dir, *, series, verdict, overlays_dir=None, formats=("png",)
     - ``residuals``: r / fit − 1 of the dominant fit for the ok frames.
     - ``contact_angle``: the apparent contact angles, left and right.
     - ``overlays``: a montage of the annotated frames.
+
+    A group of points of more than :data:`~dropkin.report._dense.MAX_DRAWN`
+    rows is drawn binned (:func:`~dropkin.report._dense.draw_points`): the
+    medians of log-spaced τ bins with their 16–84 % spread, said in the
+    legend. Each legend sits in the corner it covers least, or below the axes
+    (:func:`~dropkin.report._legend.place_legend`).
 
     Each file is written atomically.
     """

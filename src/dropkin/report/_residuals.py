@@ -5,7 +5,8 @@ from __future__ import annotations
 import numpy as np
 
 from ._curves import _dominant, _window, dominant_curve
-from ._dense import draw_points, place_legend
+from ._dense import draw_points
+from ._legend import place_legend
 from ._origin import time_origin
 from ._style import _GREY, OKABE_ITO, _log_axis, _new_figure
 
@@ -15,10 +16,11 @@ __all__ = ["plot_residuals"]
 _WINDOW_FILL = "#DCDCDC"
 
 
-def _draw_residuals(ax, tau, rel, rel_err, inside) -> bool:
-    """The residuals in the window (blue, with their bars) and outside (grey); binned?"""
+def _draw_residuals(ax, tau, rel, rel_err, inside) -> tuple[list, bool]:
+    """The residuals in the window (blue, with their bars) and outside (grey):
+    the points drawn, and whether a group was binned (see `draw_points`)."""
     look = {"mfc": "none", "mew": 0.6, "counted": False, "scale": 100}
-    binned = draw_points(
+    drawn, binned = draw_points(
         ax,
         tau[inside],
         rel[inside],
@@ -31,10 +33,11 @@ def _draw_residuals(ax, tau, rel, rel_err, inside) -> bool:
         **look,
     )
     if (~inside).any():
-        binned |= draw_points(
+        points, grouped = draw_points(
             ax, tau[~inside], rel[~inside], label="outside", marker="D", ms=2, color=_GREY, **look
         )
-    return binned
+        drawn, binned = drawn + points, binned or grouped
+    return drawn, binned
 
 
 def plot_residuals(series, verdict):
@@ -67,13 +70,11 @@ def plot_residuals(series, verdict):
                 lw=0.5,
                 label="fit window",
             )
-        binned = _draw_residuals(ax, tau, rel, rel_err, inside)
+        drawn, binned = _draw_residuals(ax, tau, rel, rel_err, inside)
         ax.set_xscale("log")
         _log_axis(ax.xaxis)
-        t_in = tau[inside] * 1e3
-        ends = [(t_in, (rel[inside] + k * rel_err[inside]) * 100) for k in (-1, 1)]
-        place_legend(ax, [(tau * 1e3, rel * 100), *ends], binned=binned)
         ax.set_title(f"residuals of the {dom.key} fit", loc="left")
+        place_legend(ax, drawn, binned=binned)
     ax.set_xlabel(origin.axis_label)
     ax.set_ylabel("r / fit − 1 (%)")
     return fig
