@@ -16,7 +16,7 @@ import pytest
 from scipy.stats import binned_statistic
 
 from dropkin.report import analysis_figures
-from dropkin.report._dense import BINNED_TITLE, BINS, MAX_DRAWN, bin_log
+from dropkin.report._dense import BINNED_TITLE, BINS, MAX_DRAWN, bin_log, draw_points
 from dropkin.scaling import analyze_series, regime, sample_numbers
 from dropkin.series import RadiusSeries
 
@@ -134,6 +134,23 @@ def test_bin_log_refuses_what_it_cannot_bin():
         bin_log([0.0, 1.0], [1.0, 2.0])
     with pytest.raises(ValueError, match="one length"):
         bin_log([1.0, 2.0], [1.0])
+
+
+def test_rows_that_cannot_be_drawn_are_left_out_of_the_bins():
+    """Infinite or missing values (a law that underflows to 0, say) are skipped, as
+    matplotlib skips them, not an error: the bins hold the other rows."""
+    from matplotlib.figure import Figure
+
+    rng = np.random.default_rng(5)
+    tau = np.geomspace(1e-6, 1e-3, 2 * MAX_DRAWN)
+    value = 1 + 0.01 * rng.standard_normal(tau.size)
+    value[::7], value[1::7] = np.inf, np.nan
+    ax = Figure().add_subplot()
+    _, binned = draw_points(ax, tau, value, label="ok", marker="o")
+    (container,) = ax.containers
+    good = np.isfinite(value)
+    assert binned and container.get_label().startswith(f"ok ({good.sum()}, ")
+    np.testing.assert_allclose(container[0].get_ydata(), bin_log(tau[good], value[good]).value)
 
 
 def test_a_long_series_is_drawn_with_a_bounded_number_of_points(long_run):

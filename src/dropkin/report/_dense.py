@@ -181,14 +181,17 @@ def draw_points(
         return [(x, value), (x, low), (x, high)], False
     from matplotlib.colors import to_rgba
 
-    binned = bin_log(tau, value)
+    keep = np.isfinite(tau) & (tau > 0) & np.isfinite(value)  # as matplotlib skips them
+    if not keep.any():
+        return [], False
+    binned = bin_log(tau[keep], value[keep])
     _errorbar(
         ax,
         binned.tau * 1e3,
         binned.value,
         binned.lower,
         binned.upper,
-        label=_binned_label(label, tau.size, binned),
+        label=_binned_label(label, int(keep.sum()), binned),
         ecolor=to_rgba(style.get("color", "k"), _BAR_ALPHA),
         **style,
     )
