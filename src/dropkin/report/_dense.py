@@ -121,8 +121,9 @@ def _binned_label(label: str, rows: int, binned: Binned) -> str:
 def _errorbar(ax, x, y, low, high, *, label, marker, ecolor=None, elinewidth=0.5, **style):
     """Markers at (x, y) with vertical bars from `low` to `high`, as ``ax.errorbar``
     draws them (the same legend entry), but the bars as one path of line
-    pieces: a collection of a segment per point is transformed point by point,
-    a cost of the order of a second per 10⁴ points on a log axis.
+    pieces: a collection of a segment per point is transformed segment by
+    segment, about half a second per 10⁴ points on a log axis (measured with
+    cProfile on a 2,000-frame analysis).
     """
     from matplotlib.collections import LineCollection
     from matplotlib.container import ErrorbarContainer
