@@ -4,6 +4,8 @@ from __future__ import annotations
 
 import numpy as np
 
+from ._dense import draw_points
+from ._legend import place_legend
 from ._origin import time_origin
 from ._style import OKABE_ITO, _log_axis, _new_figure
 
@@ -25,24 +27,26 @@ def plot_contact_angles(series, verdict):
     fig = _new_figure(2.2)
     ax = fig.add_subplot()
     shown = np.isfinite(tau) & (tau > 0) & np.isfinite(angles).any(axis=1)
+    drawn, binned = [], False
     for side, (label, colour, marker, face) in enumerate(_SIDES):
         sel = shown & np.isfinite(angles[:, side])
         if sel.any():
-            ax.plot(
-                tau[sel] * 1e3,
+            points, grouped = draw_points(
+                ax,
+                tau[sel],
                 angles[sel, side],
-                ls="none",
+                label=label,
                 marker=marker,
                 ms=3,
                 mew=0.7,
                 color=OKABE_ITO[colour],
                 mfc=face if face else OKABE_ITO[colour],
-                label=f"{label} ({int(sel.sum())})",
             )
+            drawn, binned = drawn + points, binned or grouped
     if shown.any():
         ax.set_xscale("log")
         _log_axis(ax.xaxis)
-        ax.legend(loc="best")
+        place_legend(ax, drawn, binned=binned)
     else:
         ax.text(0.5, 0.5, "no contact angle after contact", transform=ax.transAxes, ha="center")
     ax.set_xlabel(origin.axis_label)

@@ -23,6 +23,7 @@ import numpy as np
 from .._atomic import write_text_atomic
 from .._version import __version__
 from .._words import count
+from ._dense import BINS, MAX_DRAWN
 from ._origin import origin_sentence, time_origin
 from ._plots import PLOT_NAMES, write_plots
 from ._sections import glossary, law_references, overlay_frames
@@ -33,15 +34,22 @@ __all__ = ["write_report", "write_analysis_report", "report_warnings", "FEW_OK_P
 #: Fewer ok frames than this earn a warning.
 FEW_OK_POINTS = 15
 
+#: Said under each figure of points: how a long group of points is drawn.
+_BINNED_NOTE = (
+    f" A group of more than {MAX_DRAWN} frames is drawn binned: the median of each of {BINS} "
+    "log-spaced τ bins, its bar from the 16th to the 84th percentile of the bin's rows."
+)
 _PLOT_CAPTIONS = {
     "radius": "Radius against τ (log-log). Solid: dominant fit over its window; dashed: "
-    "consistent candidate laws; grey: frames not measured as ok, a marker per status.",
+    "consistent candidate laws; grey: frames not measured as ok, a marker per status."
+    + _BINNED_NOTE,
     "local_exponent": "Local exponent d ln r / d ln τ with its band; horizontal lines at the "
     "power laws' exponents, and the logarithmic laws' own local exponent "
     "1 + 1/ln(γτ/(ηR)) as a curve; the legend below names every regime of each.",
-    "residuals": "Relative residuals of the dominant fit for the ok frames; shaded: its window.",
+    "residuals": "Relative residuals of the dominant fit for the ok frames; shaded: its window."
+    + _BINNED_NOTE,
     "contact_angle": "Apparent contact angles at the left and right contact points, from a "
-    "local fit of the outline (angles.csv).",
+    "local fit of the outline (angles.csv)." + _BINNED_NOTE,
 }
 #: The figures the report shows (the overlay montage is in plots/ for a paper;
 #: the report steps through the frames themselves).

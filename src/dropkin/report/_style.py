@@ -137,21 +137,29 @@ def _new_figure(height):
     return Figure(figsize=(_WIDTH_IN, height), dpi=_DPI, layout="constrained")
 
 
-def _save(fig, plots_dir: Path, stem: str, formats=("png",)) -> list[Path]:
+def _save(fig, plots_dir: Path, stem: str, formats=("png",), *, png_level=None) -> list[Path]:
     """Write `fig` as ``stem.<format>`` for each of `formats`; the files written.
 
-    The figure is laid out once (its constrained layout, then frozen), so each
-    further format costs one rendering only. The files of the other formats
+    `png_level` is the PNG's zlib level (None: Pillow's default, 6).
+
+    The figure is laid out once (its constrained layout, then frozen; the
+    layout needs the texts' sizes only, not a drawing of every artist), so
+    each format costs one rendering. The files of the other formats
     of :data:`PLOT_FORMATS` are removed: a folder never mixes figures of two
     runs.
     """
-    fig.draw_without_rendering()
+    engine = fig.get_layout_engine()
+    if engine is not None:
+        engine.execute(fig)
     fig.set_layout_engine("none")
     written = []
     for ext in formats:
         path = plots_dir / f"{stem}.{ext}"
         with atomic_path(path) as tmp:
-            fig.savefig(tmp, format=ext, dpi=_DPI, metadata=_METADATA[ext])
+            extra = (
+                {"pil_kwargs": {"compress_level": png_level}} if ext == "png" and png_level else {}
+            )
+            fig.savefig(tmp, format=ext, dpi=_DPI, metadata=_METADATA[ext], **extra)
         written.append(path)
     for ext in set(PLOT_FORMATS) - set(formats):
         (plots_dir / f"{stem}.{ext}").unlink(missing_ok=True)
