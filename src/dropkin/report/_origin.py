@@ -19,7 +19,14 @@ import numpy as np
 
 from ._style import _num
 
-__all__ = ["TimeOrigin", "time_origin", "time_text", "origin_sentence", "origin_dict"]
+__all__ = [
+    "TimeOrigin",
+    "time_origin",
+    "time_text",
+    "origin_sentence",
+    "origin_dict",
+    "series_arrays",
+]
 
 
 @dataclass(frozen=True)
@@ -130,3 +137,12 @@ def origin_dict(origin: TimeOrigin) -> dict:
         "measured_contact_err_s": origin.measured_err,
         "since_contact_minus_tau_s": origin.shift,
     }
+
+
+def series_arrays(series, verdict):
+    """τ on the figures' axis (from :func:`time_origin`), r, σ_r and the statuses of
+    every frame, as arrays (floats; the statuses as objects)."""
+    tau = time_origin(series, verdict).tau(series.time)
+    r = np.asarray(series.radius, dtype=float)
+    err = np.asarray(series.radius_err, dtype=float)
+    return tau, r, err, np.asarray(series.status, dtype=object)

@@ -19,7 +19,7 @@ from ._curves import _candidate_curve, _dominant, _window, dominant_curve, fit_t
 from ._dense import draw_points
 from ._legend import place_legend
 from ._local import plot_local_exponent
-from ._origin import time_origin
+from ._origin import series_arrays, time_origin
 from ._residuals import plot_residuals as _plot_residuals
 from ._style import (
     _CYCLE,
@@ -140,11 +140,7 @@ def _plot_crossovers(ax, verdict):
 
 
 def _plot_radius(series, verdict):
-    origin = time_origin(series, verdict)
-    tau = origin.tau(series.time)
-    r = np.asarray(series.radius, dtype=float)
-    err = np.asarray(series.radius_err, dtype=float)
-    status = np.asarray(series.status, dtype=object)
+    tau, r, err, status = series_arrays(series, verdict)
     good = np.isfinite(tau) & np.isfinite(r) & (tau > 0) & (r > 0)
     fig = _new_figure(2.6)
     ax = fig.add_subplot()
@@ -158,7 +154,7 @@ def _plot_radius(series, verdict):
         _log_axis(ax.yaxis)
     else:
         ax.text(0.5, 0.5, "no radius after contact", transform=ax.transAxes, ha="center")
-    ax.set_xlabel(origin.axis_label)
+    ax.set_xlabel(time_origin(series, verdict).axis_label)
     ax.set_ylabel("radius r (mm)")
     if ax.get_legend_handles_labels()[0]:
         place_legend(ax, drawn, binned=binned, handlelength=2.2)

@@ -7,7 +7,7 @@ import numpy as np
 from ._curves import _dominant, _window, dominant_curve
 from ._dense import draw_points
 from ._legend import place_legend
-from ._origin import time_origin
+from ._origin import series_arrays, time_origin
 from ._style import _GREY, OKABE_ITO, _log_axis, _new_figure
 
 __all__ = ["plot_residuals"]
@@ -42,11 +42,7 @@ def _draw_residuals(ax, tau, rel, rel_err, inside) -> tuple[list, bool]:
 
 def plot_residuals(series, verdict):
     """r / fit − 1 (%) of the ok frames against τ, the dominant fit's window shaded."""
-    origin = time_origin(series, verdict)
-    tau = origin.tau(series.time)
-    r = np.asarray(series.radius, dtype=float)
-    err = np.asarray(series.radius_err, dtype=float)
-    status = np.asarray(series.status, dtype=object)
+    tau, r, err, status = series_arrays(series, verdict)
     ok = np.isfinite(tau) & np.isfinite(r) & (tau > 0) & (status == "ok")
     fig = _new_figure(1.9)
     ax = fig.add_subplot()
@@ -75,6 +71,6 @@ def plot_residuals(series, verdict):
         _log_axis(ax.xaxis)
         ax.set_title(f"residuals of the {dom.key} fit", loc="left")
         place_legend(ax, drawn, binned=binned)
-    ax.set_xlabel(origin.axis_label)
+    ax.set_xlabel(time_origin(series, verdict).axis_label)
     ax.set_ylabel("r / fit − 1 (%)")
     return fig
