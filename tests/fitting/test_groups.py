@@ -17,6 +17,7 @@ from dropkin.fitting._groups import MOST_POINTS, WIDEST_SPREAD, group_close_poin
 from dropkin.fitting._linear import LinearModel, linear_fit
 from dropkin.fitting._two_laws import blend_fit
 from dropkin.scaling import analyze_series, sample_numbers
+from dropkin.scaling.verdict._text import format_verdict
 
 sm = pytest.importorskip("statsmodels.api")
 
@@ -116,6 +117,9 @@ def test_a_verdict_on_a_hundred_thousand_rows_fits_a_bounded_number_of_points(mo
     assert v, v.reason
     assert seen and max(seen) <= MOST_POINTS
     assert v.n_points == int(np.sum(time > t0)) and v.settings["points_fitted"] <= MOST_POINTS
+    assert 0.0 < v.settings["group_spread"] <= WIDEST_SPREAD
+    shown = format_verdict(v)
+    assert f"{v.n_points} points (fitted as {v.settings['points_fitted']} averaged points" in shown
     ok = time > t0
     ref = sm.WLS(np.log(radius[ok]), sm.add_constant(np.log(time[ok] - t0)), weights=1 / 0.01**2)
     ref = ref.fit()
