@@ -51,10 +51,10 @@ def _count(u, spread) -> int:
     return 1 + int(np.count_nonzero(np.diff(label)))
 
 
-def spread_for(series: Series, origin: float, most: int = MOST_POINTS) -> float:
+def spread_for(series: Series, origin: float, most: int | None = None) -> float:
     """The narrowest spread of ``ln(t - origin)`` that leaves at most `most` points
-    (0.0 when the series has no more than that; :data:`WIDEST_SPREAD` when even it
-    leaves more).
+    (default :data:`MOST_POINTS`; 0.0 when the series has no more than that;
+    :data:`WIDEST_SPREAD` when even it leaves more).
 
     Examples
     --------
@@ -65,6 +65,7 @@ def spread_for(series: Series, origin: float, most: int = MOST_POINTS) -> float:
     >>> [len(group_close_points(s, 0.0, 0.0, f * spread)) <= 2048 for f in (1.0, 0.99)]
     [True, False]
     """
+    most = MOST_POINTS if most is None else most
     if len(series) <= most:
         return 0.0
     u = np.log(series.time - origin)
