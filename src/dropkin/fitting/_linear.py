@@ -45,6 +45,8 @@ from ._records import LawFit
 __all__ = ["LinearModel", "profile_fit", "profile_many", "linear_fit"]
 
 _T0_GRID = 17
+#: Robust passes at each origin of the bootstrap's grid, which only ranks them.
+_SCAN_PASSES = 1
 #: Width of the interval at which the batched search stops, in units of the bracket
 #: (the golden section it replaced stopped at about 1e-5 of the bracket).
 _T0_TOL = 1e-5
@@ -139,25 +141,35 @@ def profile_many(time, y, s, model: LinearModel, lo, hi, f, loss, *, start=None,
     beta : (B, p) ndarray
     """
 
+    warm = None if start is None else np.array(start, dtype=float)
+
     def cost(t0s, rows=slice(None), passes=SETTLE_PASSES):  # t0s (b, G) -> beta, cost (b, G)
         if counter is not None:
             counter.append(t0s.size)
         tau = time[None, None, :] - t0s[..., None]
         x, off = model.design(tau)
-        w = None if start is None else start[rows][:, None, :]
-        beta, z, _ = solve_linear(
+        w = None if warm is None else warm[rows][:, None, :]
+        beta, z, w = solve_linear(
             x, y[rows][:, None, :] - off, s, f, loss, passes, start=w, tol=SETTLED
         )
+        if warm is not None and t0s.shape[1] == 1:
+            # one origin a series: its weights start the series' next, nearby one
+            warm[rows] = w[:, 0, :]
         c = rho(z, f, loss).sum(axis=-1)
         return beta, np.where(np.isfinite(c), c, np.inf)
 
-    n = y.shape[0]
+    n, every = y.shape[0], np.arange(y.shape[0])
     grid = np.linspace(lo, hi, _T0_GRID)
-    # The search only ranks origins: at most the fit's own 8 passes there; the
-    # linear parameters at the origin found are settled (:data:`SETTLE_PASSES`).
-    _, c_grid = cost(np.broadcast_to(grid, (n, _T0_GRID)), passes=8)
-    i = np.argmin(c_grid, axis=1)
-    best, f_best = grid[i], c_grid[np.arange(n), i]
+    # The grid only ranks origins: one robust pass from the drawn weights there,
+    # then the best and its two neighbours with the fit's own 8 passes (the
+    # costs the search goes on from); the linear parameters at the origin
+    # found are settled (:data:`SETTLE_PASSES`).
+    _, c_scan = cost(np.broadcast_to(grid, (n, _T0_GRID)), passes=_SCAN_PASSES)
+    near = np.clip(np.argmin(c_scan, axis=1)[:, None] + np.arange(-1, 2), 0, _T0_GRID - 1)
+    _, c_near = cost(grid[near], passes=8)
+    j = np.argmin(c_near, axis=1)
+    i = near[every, j]
+    best, f_best = grid[i], c_near[every, j]
     a, b = grid[np.maximum(i - 1, 0)], grid[np.minimum(i + 1, _T0_GRID - 1)]
     t0 = _refine(lambda v, rows: cost(v[:, None], rows, 8)[1][:, 0], a, b, best, f_best, hi - lo)
     beta, _ = cost(t0[:, None])

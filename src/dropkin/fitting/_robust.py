@@ -67,8 +67,10 @@ def solve_linear(x, y, s, f, loss, iterations=8, *, start=None, tol=None):
 def _settle(x, y, s, f, w0, w, iterations, tol):
     """The robust weights after at most `iterations` passes, each series (leading
     index) passed again only while one of its weights still moves by more than
-    `tol` times its ``1/s²``. The series still moving are gathered anew only
-    when they have fallen to half of those passed (a gather costs a pass)."""
+    `tol` times its ``1/s²``. A series keeps the weights of the pass that found
+    them settled, whatever the others in its batch do, so the result of each
+    series is its own. The series still moving are gathered anew only when they
+    have fallen to half of those passed (a gather costs a pass)."""
     shape, n = y.shape, y.shape[-1]
     p = x.shape[-1]
     xs = np.broadcast_to(x, shape[:-1] + (n, p)).reshape(-1, n, p)
@@ -77,18 +79,21 @@ def _settle(x, y, s, f, w0, w, iterations, tol):
     ss = s if shared else np.broadcast_to(s, shape).reshape(-1, n)
     w0s = w0[(0,) * (w0.ndim - 1)] if shared else w0.reshape(-1, n)
     rows = np.arange(len(ys))  # the series passed, and their arrays
+    live = np.ones(len(ys), dtype=bool)  # the series whose weights still move
     xl, yl, sl, w0l, wl = xs, ys, ss, w0s, ws[rows]
     for _ in range(iterations):
         beta = _weighted_solve(xl, yl, wl)
         z = (yl - _predict(xl, beta)) / sl
         new = w0l / np.sqrt(1.0 + (z / f) ** 2)
         moving = np.max(np.abs(new - wl) / w0l, axis=-1) > tol
-        ws[rows] = new
-        if not moving.any():
+        fresh = live[rows]
+        ws[rows[fresh]] = new[fresh]
+        live[rows[fresh & ~moving]] = False
+        if not live.any():
             break
         wl = new
-        if 2 * moving.sum() <= len(rows):
-            rows = rows[moving]
+        if 2 * live.sum() <= len(rows):
+            rows = np.flatnonzero(live)
             xl, yl, wl = xs[rows], ys[rows], ws[rows]
             if not shared:
                 sl, w0l = ss[rows], w0s[rows]
