@@ -22,6 +22,7 @@ Examples
 
 from __future__ import annotations
 
+import dataclasses
 import math
 from dataclasses import dataclass
 
@@ -29,7 +30,7 @@ import numpy as np
 
 from ...errors import ExperimentError
 from ...fitting._bootstrap import bootstrap_blend, bootstrap_linear
-from ...fitting._core import Series, apparent_exponent
+from ...fitting._core import apparent_exponent
 from ...fitting._linear import LinearModel, linear_fit
 from ...fitting._local import local_from_series
 from ...fitting._two_laws import blend_fit
@@ -122,9 +123,7 @@ def _expected_exponent(shape, points, t0, f_scale):
     """
     if not shape.logarithmic:
         return float(shape.exponent)
-    exact = Series(
-        points.time, shape.log_shape(points.time - t0), points.s, points.weighted, points.rows
-    )
+    exact = dataclasses.replace(points, y=shape.log_shape(points.time - t0))
     fit = linear_fit(exact, LinearModel(None), t0, t0, loss="soft_l1", f_scale=f_scale)
     return fit.exponent if fit else apparent_exponent(shape, points.time - t0, 1.0 / points.s**2)
 
