@@ -24,6 +24,7 @@ import numpy as np
 
 from ..errors import FitError
 from ._robust import rho, solve_linear  # noqa: F401  (the fits import them from here)
+from ._weights import point_scales, rows_loss, running_median  # noqa: F401  (likewise)
 
 __all__ = ["MIN_POINTS", "MIN_DECADES", "ROBUST_SCALE", "LawShape", "span_problem"]
 
@@ -126,7 +127,8 @@ class Series:
     y : (N,) ndarray
         ``ln r``.
     s : (N,) ndarray
-        Uncertainty of ``ln r`` (``σ_r / r``; 1 where none was given).
+        Uncertainty of ``ln r`` (``σ_r / r̃``, r̃ the median radius of the point and
+        its neighbours, :func:`running_median`; 1 where none was given).
     weighted : bool
         Whether per-point uncertainties were given.
     rows : (N,) ndarray of int, optional
@@ -172,7 +174,8 @@ def as_array(name, value, n=None) -> np.ndarray:
 
 
 def make_series(time, radius, radius_err=None) -> Series:
-    """Finite, positive points sorted by time; σ of ``ln r`` from ``radius_err``."""
+    """Finite, positive points sorted by time; σ of ``ln r`` from ``radius_err`` over
+    the neighbours' median radius (:func:`running_median`)."""
     t = as_array("time", time)
     r = as_array("radius", radius, len(t))
     e = (
@@ -185,7 +188,7 @@ def make_series(time, radius, radius_err=None) -> Series:
     order = np.argsort(t, kind="stable")
     t, r, e = t[order], r[order], e[order]
     with np.errstate(divide="ignore", invalid="ignore", over="ignore"):
-        s = e / r
+        s = e / running_median(r)
     good = np.isfinite(s) & (s > 0)
     weighted = bool(good.any())
     s = np.where(good, s, np.median(s[good]) if weighted else 1.0)
@@ -283,29 +286,6 @@ def span_problem(tau) -> str:
 # ------------------------------------------------------------------ robust solver
 
 
-def point_scales(series: Series, f_scale):
-    """The robust scale of each point: `f_scale` for a row, ``f_scale √k`` for the
-    mean of k rows (:mod:`._groups`).
-
-    With it a point's loss ``ρ(z, f√k)`` is ``k ρ(z/√k, f)``: the loss its k rows
-    would add up to if each lay where their mean does. A stretch the law misses
-    on every row weighs what those rows would, not k times less.
-    """
-    return f_scale if series.rows is None else f_scale * np.sqrt(series.rows)
-
-
-def _rows_loss(rows):
-    """scipy's ``soft_l1`` of each point scaled to its `rows` (a callable loss):
-    ``ρ_k(z) = 2k(√(1 + z/k) - 1)`` of the squared scaled residual z."""
-
-    def loss(z):
-        a = 1.0 + z / rows
-        root = np.sqrt(a)
-        return np.vstack([2.0 * rows * (root - 1.0), 1.0 / root, -0.5 / (rows * a * root)])
-
-    return loss
-
-
 def solve_log_radius(log_radius, data: Series, x0, bounds, *, loss, f_scale, max_nfev=None):
     """scipy's least_squares on the normalised residuals of ``ln r``, for laws not
     linear at a given origin (the law with r0, blends).
@@ -322,7 +302,7 @@ def solve_log_radius(log_radius, data: Series, x0, bounds, *, loss, f_scale, max
         return np.where(np.isfinite(z), z, 1e6)
 
     if loss == "soft_l1" and data.rows is not None:
-        loss = _rows_loss(data.rows.astype(float))
+        loss = rows_loss(data.rows.astype(float))
     with np.errstate(over="ignore", invalid="ignore", divide="ignore"):
         return least_squares(
             residuals,

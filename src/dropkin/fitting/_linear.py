@@ -5,7 +5,8 @@ The fit works on ``ln r``: ``ln r = ln A + f(t - t0)`` with ``f = n ln τ``
 given origin t0 the problem is linear in ``ln A`` (and n), so it is solved
 in closed form; t0 is then found by a bounded one-dimensional search inside
 the contact bracket (a profile fit). Each point is weighted by its relative
-uncertainty ``σ_r / r`` (the uncertainty of ``ln r``), and the loss is
+uncertainty ``σ_r / r`` (the uncertainty of ``ln r``; r the median radius of the
+point and its neighbours, :func:`._core.running_median`), and the loss is
 robust: scipy's ``soft_l1`` (``ρ(z) = 2 f²(√(1 + (z/f)²) - 1)``), solved by
 iteratively reweighted least squares, with ``f = 3`` noise units and the
 noise unit estimated without a model from successive differences
