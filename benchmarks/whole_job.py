@@ -32,17 +32,17 @@ of one 60-frame 256 x 256 recording (each a recording of its own to batch).
 
     python benchmarks/whole_job.py [--keep DIR] [--repeat 2] [--only abcde]
 
-Last measured on this 2-core machine with nothing else running (load 0.95
-before, 1.42 after), 2026-12-05, after the long-series and bootstrap work of
-that day: (a) analyze 4.03 s / measure 1.49 s = 2.71 (missed; it was 4.14
+Last measured on this 2-core machine with nothing else running (load 0.58
+before, 1.37 after), 2026-12-05, after the long-series and bootstrap work of
+that day: (a) analyze 4.10 s / measure 1.55 s = 2.65 (missed; it was 4.14
 that morning: the fit, 1.5 s with its 200 resamples of five laws on two
 threads and its three blends through scipy, and the four figures, 0.9 s of
-matplotlib at 300 dpi, take the 2.5 s between them); (b) marginal 5,889
-frames/s against a read-and-hash floor of 3,529 (0.60 x the floor's time per
+matplotlib at 300 dpi, take the 2.5 s between them); (b) marginal 7,405
+frames/s against a read-and-hash floor of 3,497 (0.47 x the floor's time per
 frame: the neck search reads a band of each frame and the hash runs on
-another core) and 12.2 x the per-frame script (481 frames/s); (c) 74.8
-recordings/min at ``--jobs 1``, 136.0 at ``--jobs 2`` (1.82 x); (d) 66 ms /
-39 ms = 1.70; (e) 184 MB peak RSS in 3.1 s (chunks sized in bytes: 16
+another core) and 18.7 x the per-frame script (397 frames/s); (c) 74.2
+recordings/min at ``--jobs 1``, 137.8 at ``--jobs 2`` (1.86 x); (d) 67 ms /
+39 ms = 1.71; (e) 184 MB peak RSS in 3.0 s (chunks sized in bytes: 16
 frames of 1024 x 1024). Under other jobs' load the figures move a lot: at
 load 7-8 (c) fell to 0.92 x (no idle core for the second worker).
 """
