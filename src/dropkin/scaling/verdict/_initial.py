@@ -28,7 +28,7 @@ import math
 import numpy as np
 
 from ...fitting._bootstrap import bootstrap_linear
-from ...fitting._core import Series
+from ...fitting._core import Series, running_median
 from ...fitting._initial import bootstrap_initial_radius, fit_initial_radius
 from ...fitting._linear import LinearModel, linear_fit
 from ...fitting._records import LawFit
@@ -39,15 +39,17 @@ __all__ = ["shifted_series", "free_fit", "initial_radius_fields", "widened_for_i
 def shifted_series(series: Series, r0: float) -> Series:
     """The points of ``r - r0`` (σ unchanged in metres): ln of it and its relative σ.
 
-    Points with ``r ≤ r0`` are left out.
+    Points with ``r ≤ r0`` are left out. The relative σ is taken at the
+    neighbours' median ``r̃ - r0``, as the fits take it at ``r̃``
+    (:func:`dropkin.fitting._core.running_median`), not at a point's own value.
     """
     r = np.exp(series.y)
     keep = r > r0
     grow = r[keep] - r0
+    typical = running_median(r)[keep]
+    rel = series.s[keep] * typical / np.where(typical > r0, typical - r0, grow)
     rows = None if series.rows is None else series.rows[keep]
-    return Series(
-        series.time[keep], np.log(grow), series.s[keep] * r[keep] / grow, series.weighted, rows
-    )
+    return Series(series.time[keep], np.log(grow), rel, series.weighted, rows)
 
 
 def free_fit(pts, data, lo, hi, search, fit_kw, bootstrap, seed):
