@@ -35,6 +35,7 @@ __all__ = [
     "AFTER_GROWTH",
     "IN_CONTACT",
     "status_names",
+    "status_mask",
 ]
 
 #: Allowed per-frame statuses; the integer codes below index this tuple.
@@ -53,3 +54,19 @@ def status_names(codes) -> tuple[str, ...]:
     ('ok', 'at-edge')
     """
     return tuple(STATUSES[c] for c in codes)
+
+
+def status_mask(statuses, *names):
+    """Boolean array: which of `statuses` (a sequence of str) is one of `names`.
+
+    One pass in C over the statuses (no Python loop a frame), for series of
+    millions of frames; numpy is imported here, not with the vocabulary.
+
+    Examples
+    --------
+    >>> status_mask(["ok", "unresolved", "at-edge"], "ok", "at-edge").tolist()
+    [True, False, True]
+    """
+    import numpy as np
+
+    return np.fromiter(map(frozenset(names).__contains__, statuses), bool, len(statuses))

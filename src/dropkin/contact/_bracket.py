@@ -29,7 +29,7 @@ from __future__ import annotations
 
 import numpy as np
 
-from ..status import IN_CONTACT, STATUSES
+from ..status import IN_CONTACT, STATUSES, status_mask
 
 __all__ = ["frames_bracket", "default_bracket", "bracket_before_first_point"]
 
@@ -73,9 +73,9 @@ def frames_bracket(time, status, *, last_apart=None) -> tuple[float, float] | No
     """
     t = np.asarray(time, dtype=np.float64)
     st = list(map(str, status))
-    touching = np.fromiter(map(frozenset(IN_CONTACT).__contains__, st), bool, len(st))
-    apart = np.fromiter(map(_BEFORE.__eq__, st), bool, len(st)) & np.isfinite(t)
-    measured = np.flatnonzero(np.fromiter(map(IN_CONTACT[0].__eq__, st), bool, len(st)))
+    touching = status_mask(st, *IN_CONTACT)
+    apart = status_mask(st, _BEFORE) & np.isfinite(t)
+    measured = np.flatnonzero(status_mask(st, IN_CONTACT[0]))
     end = int(measured[0]) if len(measured) else len(st)
     before = np.nonzero(apart[:end])[0]
     if not len(before):

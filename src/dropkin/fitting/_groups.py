@@ -45,10 +45,20 @@ WIDEST_SPREAD = 0.02
 _HALVINGS = 30
 
 
+def _log_times(series: Series, origin: float) -> np.ndarray:
+    """``ln(t - origin)`` of the points, counted from the first point's."""
+    u = np.log(series.time - origin)
+    return u - u[0]
+
+
+def _stretch(u, spread) -> np.ndarray:
+    """The stretch of `spread` each value of `u` (from :func:`_log_times`) falls into."""
+    return np.floor(u / spread).astype(np.int64)
+
+
 def _count(u, spread) -> int:
-    """How many stretches of `spread` the sorted values `u` (from 0) fall into."""
-    label = np.floor(u / spread)
-    return 1 + int(np.count_nonzero(np.diff(label)))
+    """How many stretches of `spread` the sorted values `u` fall into."""
+    return 1 + int(np.count_nonzero(np.diff(_stretch(u, spread))))
 
 
 def spread_for(series: Series, origin: float, most: int | None = None) -> float:
@@ -68,8 +78,7 @@ def spread_for(series: Series, origin: float, most: int | None = None) -> float:
     most = MOST_POINTS if most is None else most
     if len(series) <= most:
         return 0.0
-    u = np.log(series.time - origin)
-    u = u - u[0]
+    u = _log_times(series, origin)
     if _count(u, WIDEST_SPREAD) > most:
         return WIDEST_SPREAD
     narrow, wide = 0.0, WIDEST_SPREAD  # too many points at `narrow`, few enough at `wide`
@@ -112,8 +121,7 @@ def group_close_points(series: Series, origin: float, reference: float, spread: 
     """
     if len(series) == 0 or spread <= 0:
         return series
-    u = np.log(series.time - origin)
-    label = np.floor((u - u[0]) / spread).astype(np.int64)
+    label = _stretch(_log_times(series, origin), spread)
     starts = np.flatnonzero(np.diff(label, prepend=label[0] - 1))
     if len(starts) == len(series):
         return series

@@ -23,6 +23,7 @@ import numpy as np
 from .._atomic import write_text_atomic
 from .._version import __version__
 from .._words import count
+from ..status import status_mask
 from ._dense import BINS, MAX_DRAWN
 from ._origin import origin_sentence, time_origin
 from ._plots import PLOT_NAMES, write_plots
@@ -128,7 +129,7 @@ def report_warnings(*, series, verdict) -> list[str]:
     t0 = _num(verdict.t0) if verdict else None
     if end is not None and t0 is not None:
         tau = np.asarray(series.time, dtype=np.float64) - t0
-        at_edge = np.fromiter(map("at-edge".__eq__, series.status), bool, len(tau))
+        at_edge = status_mask(series.status, "at-edge")
         after = np.flatnonzero(at_edge & np.isfinite(tau) & (tau >= end * (1 - 1e-9)))
         if len(after):
             out.append(

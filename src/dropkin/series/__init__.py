@@ -29,7 +29,7 @@ import numpy as np
 
 from .._atomic import write_text_atomic
 from ..errors import DropkinError
-from ..status import STATUSES
+from ..status import STATUSES, status_mask
 from ._csv import (
     ANGLE_COLUMNS,
     CSV_COLUMNS,
@@ -154,7 +154,7 @@ class RadiusSeries:
     @property
     def ok(self) -> np.ndarray:
         """Boolean mask of the frames with status ``ok``."""
-        return np.fromiter(map("ok".__eq__, self.status), bool, len(self.status))
+        return status_mask(self.status, "ok")
 
     @property
     def status_counts(self) -> dict[str, int]:

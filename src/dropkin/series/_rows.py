@@ -17,7 +17,7 @@ from pathlib import Path
 import numpy as np
 
 from ..errors import DropkinError
-from ..status import STATUSES
+from ..status import STATUSES, status_mask
 from ._cells import Table, parse_floats, parse_ints, split_table
 from ._csv import ANGLE_COLUMNS, CSV_COLUMNS, TRIGGER_COLUMN, header_levels, level_column
 
@@ -85,7 +85,7 @@ def _statuses(checks: _Checks, cells) -> tuple:
     if _KNOWN.issuperset(cells):
         return tuple(cells)
     status = tuple(map(str.strip, cells))
-    known = np.fromiter(map(_KNOWN.__contains__, status), bool, len(status))
+    known = status_mask(status, *_KNOWN)
     checks.add(
         ~known,
         lambda i, line: DropkinError(
@@ -123,7 +123,7 @@ def _row_checks(checks: _Checks, columns: dict) -> None:
             f"line {line}: time_s is empty", path=path, expected="a time in s"
         ),
     )
-    ok = np.fromiter(map("ok".__eq__, columns["status"]), bool, len(time))
+    ok = status_mask(columns["status"], "ok")
     checks.add(
         ok & ~(columns["radius_m"] > 0),
         lambda i, line: DropkinError(
