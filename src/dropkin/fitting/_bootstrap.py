@@ -13,11 +13,11 @@ names it in ``outside_ci`` instead of widening the interval to hide it.
 
 Fits that are linear at a given origin (power laws, the log law) are
 refitted in blocks of resamples, batched in numpy (:func:`._linear.profile_many`:
-a grid of origins across the bracket, then a golden-section search, for every
-resample of a block in step; a block holds at most :data:`_BLOCK_VALUES`
-values per array, so memory does not grow with the number of points times
-the resamples); blends are refitted one by one with scipy, t0 one of the
-parameters of the least-squares refit.
+a grid of origins across the bracket ranked at once, then Newton steps in the
+law's parameters and t0 together, for every resample of a block in step; a
+block holds at most :data:`_BLOCK_VALUES` values per array, so memory does
+not grow with the number of points times the resamples); blends are refitted
+one by one with scipy, t0 one of the parameters of the least-squares refit.
 """
 
 from __future__ import annotations

@@ -42,19 +42,15 @@ from ._core import (
     span_problem,
 )
 from ._records import LawFit
+from ._scan import scan_costs
 
 __all__ = ["LinearModel", "profile_fit", "profile_many", "linear_fit"]
 
 _T0_GRID = 17
-#: Robust passes at each origin of the bootstrap's grid, which only ranks them.
-_SCAN_PASSES = 1
-#: Width of the interval at which the batched search stops, in units of the bracket
-#: (the golden section it replaced stopped at about 1e-5 of the bracket).
+#: The bootstrap's refit stops once t0 moves by less than this share of the bracket.
 _T0_TOL = 1e-5
-_REFINE_STEPS = 60  # at most (golden steps alone would reach _T0_TOL in about 25)
-_GOLD = (3.0 - math.sqrt(5.0)) / 2.0  # 0.382: a golden-section step into the larger side
-#: The robust reweighting of the bootstrap's refits stops once no weight moves by
-#: more than this share of 1/σ² in a pass, after at most :data:`SETTLE_PASSES`
+#: The robust reweighting of the bootstrap's refits at a fixed t0 stops once no weight
+#: moves by more than this share of 1/σ² in a pass, after at most :data:`SETTLE_PASSES`
 #: passes (the fit's own takes 8 from plain least squares; a resample whose
 #: residuals lie far beyond the robust scale needs more to settle).
 SETTLED = 1e-7
@@ -127,13 +123,16 @@ def profile_many(time, y, s, model: LinearModel, lo, hi, f, loss, *, start=None,
     """Best origin in [lo, hi] for many series ``y`` (B, N) at the same times, all at once.
 
     The batched twin of :func:`profile_fit` (the bootstrap refits t0 in every
-    resample with it): the robust cost on a grid of origins across the
-    bracket for every series, then a safeguarded parabolic search between the
-    neighbours of each series' best grid point (:func:`_refine`), all series
-    in step. `start` (B, N): weights the robust reweighting starts from (the
-    bootstrap gives those of the residuals each resample drew); the passes
-    stop once the weights have settled (:data:`SETTLED`). `counter`, a list,
-    is given one entry per evaluation of the cost: how many series were
+    resample with it). A grid of origins across the bracket is ranked for
+    every series by the weighted sum of squares at the weights `start` (B, N;
+    the bootstrap gives those of the residuals each resample drew; default
+    ``1/s²``), a few matrix products (:func:`._scan.scan_costs`). From its
+    best grid origin each series then goes downhill in (β, t0) together, t0
+    anywhere in the bracket, by Newton steps on the robust cost until t0
+    moves by less than :data:`_T0_TOL` of the bracket and β has settled
+    (:func:`._gauss_newton.refine_jointly`). Each series' numbers are its
+    own: they do not depend on the others in the batch. `counter`, a list,
+    is given one entry per pass over the points: how many series were
     evaluated then (what the cost tests count).
 
     Returns
@@ -141,103 +140,23 @@ def profile_many(time, y, s, model: LinearModel, lo, hi, f, loss, *, start=None,
     t0 : (B,) ndarray
     beta : (B, p) ndarray
     """
+    from ._gauss_newton import refine_jointly
 
-    warm = None if start is None else np.array(start, dtype=float)
-
-    def cost(t0s, rows=slice(None), passes=SETTLE_PASSES):  # t0s (b, G) -> beta, cost (b, G)
-        if counter is not None:
-            counter.append(t0s.size)
-        tau = time[None, None, :] - t0s[..., None]
-        x, off = model.design(tau)
-        w = None if warm is None else warm[rows][:, None, :]
-        beta, z, w = solve_linear(
-            x, y[rows][:, None, :] - off, s, f, loss, passes, start=w, tol=SETTLED
-        )
-        if warm is not None and t0s.shape[1] == 1:
-            # one origin a series: its weights start the series' next, nearby one
-            warm[rows] = w[:, 0, :]
-        c = rho(z, f, loss).sum(axis=-1)
-        return beta, np.where(np.isfinite(c), c, np.inf)
-
-    n, every = y.shape[0], np.arange(y.shape[0])
+    if counter is not None:
+        counter.append(y.shape[0] * _T0_GRID)
     grid = np.linspace(lo, hi, _T0_GRID)
-    # The grid only ranks origins: one robust pass from the drawn weights there,
-    # then the best and its two neighbours with the fit's own 8 passes (the
-    # costs the search goes on from); the linear parameters at the origin
-    # found are settled (:data:`SETTLE_PASSES`).
-    _, c_scan = cost(np.broadcast_to(grid, (n, _T0_GRID)), passes=_SCAN_PASSES)
-    near = np.clip(np.argmin(c_scan, axis=1)[:, None] + np.arange(-1, 2), 0, _T0_GRID - 1)
-    _, c_near = cost(grid[near], passes=8)
-    j = np.argmin(c_near, axis=1)
-    i = near[every, j]
-    best, f_best = grid[i], c_near[every, j]
-    a, b = grid[np.maximum(i - 1, 0)], grid[np.minimum(i + 1, _T0_GRID - 1)]
-    t0 = _refine(lambda v, rows: cost(v[:, None], rows, 8)[1][:, 0], a, b, best, f_best, hi - lo)
-    beta, _ = cost(t0[:, None])
-    return t0, beta[:, 0, :]
-
-
-def _refine(cost, a, b, x, fx, width):
-    """Minimise each series' cost in [a, b] from its best point so far x (cost fx).
-
-    Brent's method, batched (Brent 1973, *Algorithms for Minimization without
-    Derivatives*, ch. 5, from memory): the vertex of the parabola through the
-    best three points, taken when it lies inside the interval and moves less
-    than half the step before last; else a golden-section step into the
-    larger side. A step never comes closer than the tolerance to the best
-    point. Series stop once their interval reaches no farther than 1.5
-    :data:`_T0_TOL` of the bracket `width` from the best point, and only the
-    others are evaluated. ``cost(v, rows)`` gives the cost at v (k,) for the series
-    ``rows`` (k,).
-    """
-    tol = max(_T0_TOL * width, 1e-300)
-    n = len(x)
-    # The triple's other two points start unknown (infinite cost): golden steps first.
-    v, fv = x.copy(), np.full(n, np.inf)
-    w, fw = x.copy(), np.full(n, np.inf)
-    a, b, x, fx = a.copy(), b.copy(), x.copy(), fx.copy()
-    last, before = np.zeros(n), np.zeros(n)  # the last two steps' lengths
-    for _ in range(_REFINE_STEPS):
-        live = np.flatnonzero(np.maximum(x - a, b - x) > 1.5 * tol)
-        if live.size == 0:
-            break
-        la, lb, lx = a[live], b[live], x[live]
-        u = _vertex(lx, fx[live], v[live], fv[live], w[live], fw[live])
-        side = np.where(lx - la > lb - lx, la - lx, lb - lx)  # towards the larger side
-        parabolic = np.isfinite(u) & (u > la) & (u < lb) & (np.abs(u - lx) < 0.5 * before[live])
-        u = np.where(parabolic, u, lx + _GOLD * side)
-        step = u - lx
-        u = np.where(np.abs(step) < tol, lx + np.copysign(tol, side), u)
-        before[live] = np.where(parabolic, last[live], np.abs(side))
-        last[live] = np.abs(u - lx)
-        fu = cost(u, live)
-        better = fu < fx[live]
-        left = u < lx
-        # The interval keeps the best point inside; the triple keeps the best three.
-        a[live] = np.where(better, np.where(left, la, lx), np.where(left, u, la))
-        b[live] = np.where(better, np.where(left, lx, lb), np.where(left, lb, u))
-        old_x, old_fx = lx, fx[live]
-        x[live] = np.where(better, u, lx)
-        fx[live] = np.where(better, fu, old_fx)
-        # the point leaving the best place (or u, when not better) pushes out the worst
-        nv, nfv = np.where(better, old_x, u), np.where(better, old_fx, fu)
-        second = nfv <= fv[live]
-        w[live] = np.where(second, v[live], np.where(nfv <= fw[live], nv, w[live]))
-        fw[live] = np.where(second, fv[live], np.where(nfv <= fw[live], nfv, fw[live]))
-        v[live] = np.where(second, nv, v[live])
-        fv[live] = np.where(second, nfv, fv[live])
-    return x
-
-
-def _vertex(x, fx, v, fv, w, fw):
-    """Abscissa of the vertex of the parabola through three points (NaN when it is
-    not a minimum: points not finite, coincident, or on a parabola opening down)."""
-    with np.errstate(all="ignore"):
-        d1 = (fv - fx) / (v - x)
-        d2 = (fw - fx) / (w - x)
-        curvature = (d2 - d1) / (w - v)
-        u = 0.5 * (x + v) - 0.5 * d1 / curvature
-    return np.where(np.isfinite(u) & (curvature > 0), u, np.nan)
+    c_scan, b_scan = scan_costs(time, y, s, model, grid, start)
+    i = np.argmin(c_scan, axis=1)
+    k = len(i)
+    tol = max(_T0_TOL * (hi - lo), 1e-300)
+    ends = np.full(k, float(lo)), np.full(k, float(hi))
+    beta = b_scan[np.arange(k), i]
+    t0, beta = refine_jointly(model, time, y, s, f, loss, grid[i], beta, *ends, tol, counter)
+    bad = ~np.isfinite(beta).all(axis=1)
+    if bad.any():  # a degenerate system: the fit's own solver, with its pseudo-inverse
+        x, off = model.design(time[None, :] - t0[bad, None])
+        beta[bad] = solve_linear(x, y[bad] - off, s, f, loss, SETTLE_PASSES, tol=SETTLED)[0]
+    return t0, beta
 
 
 def _correlation(c, va, vb) -> float:
