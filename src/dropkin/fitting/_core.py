@@ -308,11 +308,13 @@ def solve_log_radius(
         z = (data.y - log_radius(theta, data.time)) / data.s
         return np.where(np.isfinite(z), z, 1e6)
 
+    minus_inverse = (-1.0 / data.s)[:, None]
+
     def jacobian(theta):
         lr, grad = gradient(theta, data.time)
-        jac = -grad / data.s[:, None]
-        jac[~np.isfinite((data.y - lr) / data.s)] = 0.0
-        return np.where(np.isfinite(jac), jac, 0.0)
+        jac = grad * minus_inverse
+        jac[~np.isfinite(lr)] = 0.0  # where the residual counts as 1e6
+        return jac if np.isfinite(jac).all() else np.where(np.isfinite(jac), jac, 0.0)
 
     if loss == "soft_l1" and data.rows is not None:
         loss = rows_loss(data.rows.astype(float))

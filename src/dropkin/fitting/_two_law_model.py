@@ -62,26 +62,30 @@ class TwoLawModel:
         p.setdefault("t0", self.t0_fixed)
         return p
 
-    def _f(self, shape, n, tau):
-        return n * np.log(tau) if shape is None else shape.log_shape(tau)
+    def _f(self, shape, n, tau, ln_tau=None):
+        if shape is not None:
+            return shape.log_shape(tau)
+        return n * (np.log(tau) if ln_tau is None else ln_tau)
 
     def _k(self, shape, n, tau):
         """Local exponent ``df/d ln τ`` of one law."""
-        return np.full(np.shape(tau), float(n)) if shape is None else shape.slope(tau)
+        return float(n) if shape is None else shape.slope(tau)
 
     def _two_laws(self, p, time):
-        """τ, τc and ``L1``, ``L2`` at the points."""
+        """τ, ln τ, τc and ``L1``, ``L2`` at the points."""
         tau = time - p["t0"]
+        ln_tau = np.log(tau)
         tc = np.exp(p["lntc"])
         f1c = self._f(self.early, p.get("n1"), tc)
         f2c = self._f(self.late, p.get("n2"), tc)
-        lr1 = p["lnA1"] + self._f(self.early, p.get("n1"), tau)
-        lr2 = p["lnA1"] + f1c - f2c + self._f(self.late, p.get("n2"), tau)
-        return tau, tc, lr1, lr2
+        lr1 = p["lnA1"] + self._f(self.early, p.get("n1"), tau, ln_tau)
+        lr2 = p["lnA1"] + f1c - f2c + self._f(self.late, p.get("n2"), tau, ln_tau)
+        return tau, ln_tau, tc, lr1, lr2
 
     def log_radius(self, theta, time):
         p = self.unpack(theta)
-        return self._combine(p, *self._two_laws(p, time))
+        tau, _, tc, lr1, lr2 = self._two_laws(p, time)
+        return self._combine(p, tau, tc, lr1, lr2)
 
     def _combine(self, p, tau, tc, lr1, lr2):
         """``ln r`` from the two laws' ``L1``, ``L2``."""
@@ -116,39 +120,32 @@ class TwoLawModel:
     def log_radius_and_gradient(self, theta, time):
         """``ln r`` (N,) and its derivative (N, k) with respect to the free parameters."""
         p = self.unpack(theta)
-        tau, tc, lr1, lr2 = self._two_laws(p, time)
+        tau, ln_tau, tc, lr1, lr2 = self._two_laws(p, time)
         lr = self._combine(p, tau, tc, lr1, lr2)
-        g1, g2 = self._law_gradients(p, tau, tc)
         if self.kind == "broken":
-            before = (tau < tc)[:, None]
-            return lr, np.where(before, g1, g2)
-        d, s = self.direction, p["s"]
-        w1 = np.exp(d * s * (lr1 - lr))
-        w2 = np.exp(d * s * (lr2 - lr))
-        grad = w1[:, None] * g1 + w2[:, None] * g2
-        if "s" in self.names():
-            grad[:, self.names().index("s")] = (w1 * lr1 + w2 * lr2 - lr) / s
-        return lr, grad
-
-    def _law_gradients(self, p, tau, tc):
-        """Derivatives of ``L1`` and ``L2`` (N, k) with respect to the free parameters."""
+            w1 = (tau < tc).astype(float)
+            w2 = 1.0 - w1
+        else:
+            d, s = self.direction, p["s"]
+            w1 = np.exp(d * s * (lr1 - lr))
+            w2 = np.exp(d * s * (lr2 - lr))
         names = self.names()
-        g1 = np.zeros((len(tau), len(names)))
-        g2 = np.zeros_like(g1)
-        ln_tau, ln_tc = np.log(tau), p["lntc"]
-        g1[:, 0] = g2[:, 0] = 1.0
+        grad = np.empty((len(tau), len(names)))
+        grad[:, 0] = 1.0  # ln A1 shifts both laws
         if "n1" in names:
-            g1[:, names.index("n1")] = ln_tau
-            g2[:, names.index("n1")] = ln_tc
+            grad[:, names.index("n1")] = w1 * ln_tau + w2 * p["lntc"]
         if "n2" in names:
-            g2[:, names.index("n2")] = ln_tau - ln_tc
+            grad[:, names.index("n2")] = w2 * (ln_tau - p["lntc"])
         k1c = self._k(self.early, p.get("n1"), tc)
-        k2c = self._k(self.late, p.get("n2"), tc)
-        g2[:, names.index("lntc")] = k1c - k2c
+        grad[:, names.index("lntc")] = w2 * (k1c - self._k(self.late, p.get("n2"), tc))
+        if "s" in names:
+            grad[:, names.index("s")] = (w1 * lr1 + w2 * lr2 - lr) / p["s"]
         if "t0" in names:
-            g1[:, names.index("t0")] = -self._k(self.early, p.get("n1"), tau) / tau
-            g2[:, names.index("t0")] = -self._k(self.late, p.get("n2"), tau) / tau
-        return g1, g2
+            k1 = self._k(self.early, p.get("n1"), tau)
+            grad[:, names.index("t0")] = (
+                -(w1 * k1 + w2 * self._k(self.late, p.get("n2"), tau)) / tau
+            )
+        return lr, grad
 
 
 def exp_or_nan(x: float) -> float:
