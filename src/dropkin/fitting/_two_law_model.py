@@ -14,7 +14,8 @@ derivative with respect to every free parameter, in closed form, so that the
 least-squares solver needs one evaluation of the model per step instead of one
 per parameter and one more (finite differences). The blend's derivative with
 respect to ``L_i`` is the weight ``w_i = exp(d s (L_i - ln r))`` (the two add
-up to 1), and with respect to s it is ``(w1 L1 + w2 L2 - ln r)/s``.
+up to 1; for the broken power law w1 is 1 before τc and 0 after), and with
+respect to s it is ``(w1 L1 + w2 L2 - ln r)/s``.
 """
 
 from __future__ import annotations

@@ -1,10 +1,11 @@
-"""Two-regime models behind :func:`fit_blend`: the parameter layout, first guess and solver.
+"""Two-regime models behind :func:`fit_blend`: first guess and solver.
 
 The models and their parameterisation are described in :mod:`._blends`;
-here is the work: :class:`TwoLawModel` predicts ``ln r``, :func:`build_model`
-makes its first guess and bounds, :func:`blend_fit` runs scipy's
-``least_squares`` (robust ``soft_l1`` on the normalised residuals of
-``ln r``) and builds the :class:`BlendFit`.
+:class:`TwoLawModel` (:mod:`._two_law_model`) predicts ``ln r`` and its
+derivatives; here :func:`build_model` makes its first guess and bounds, and
+:func:`blend_fit` runs scipy's ``least_squares`` (robust ``soft_l1`` on the
+normalised residuals of ``ln r``, the model's exact Jacobian) and builds the
+:class:`BlendFit`.
 """
 
 from __future__ import annotations
