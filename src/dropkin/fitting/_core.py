@@ -286,7 +286,9 @@ def span_problem(tau) -> str:
 # ------------------------------------------------------------------ robust solver
 
 
-def solve_log_radius(log_radius, data: Series, x0, bounds, *, loss, f_scale, max_nfev=None):
+def solve_log_radius(
+    log_radius, data: Series, x0, bounds, *, loss, f_scale, max_nfev=None, gradient=None
+):
     """scipy's least_squares on the normalised residuals of ``ln r``, for laws not
     linear at a given origin (the law with r0, blends).
 
@@ -294,6 +296,11 @@ def solve_log_radius(log_radius, data: Series, x0, bounds, *, loss, f_scale, max
     count as 1e6. Times over hundreds of decades can overflow the Jacobian's
     scale, or put a trial origin on a point (log 0); the result is then not
     finite, and the callers return a falsy record.
+
+    ``gradient(theta, time)``, when given, returns ln r and its derivative
+    (N, k) with respect to the parameters: the solver's Jacobian is then
+    exact and costs one evaluation of the model (finite differences, without
+    it, cost k + 1); its rows at non-finite residuals are 0.
     """
     from scipy.optimize import least_squares  # here: keeps the command line quick
 
@@ -301,12 +308,21 @@ def solve_log_radius(log_radius, data: Series, x0, bounds, *, loss, f_scale, max
         z = (data.y - log_radius(theta, data.time)) / data.s
         return np.where(np.isfinite(z), z, 1e6)
 
+    minus_inverse = (-1.0 / data.s)[:, None]
+
+    def jacobian(theta):
+        lr, grad = gradient(theta, data.time)
+        jac = grad * minus_inverse
+        jac[~np.isfinite(lr)] = 0.0  # where the residual counts as 1e6
+        return jac if np.isfinite(jac).all() else np.where(np.isfinite(jac), jac, 0.0)
+
     if loss == "soft_l1" and data.rows is not None:
         loss = rows_loss(data.rows.astype(float))
     with np.errstate(over="ignore", invalid="ignore", divide="ignore"):
         return least_squares(
             residuals,
             x0,
+            jac="2-point" if gradient is None else jacobian,
             bounds=bounds,
             loss=loss,
             f_scale=f_scale,

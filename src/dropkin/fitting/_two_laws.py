@@ -1,22 +1,21 @@
-"""Two-regime models behind :func:`fit_blend`: the parameter layout, first guess and solver.
+"""Two-regime models behind :func:`fit_blend`: first guess and solver.
 
 The models and their parameterisation are described in :mod:`._blends`;
-here is the work: :class:`TwoLawModel` predicts ``ln r``, :func:`build_model`
-makes its first guess and bounds, :func:`blend_fit` runs scipy's
-``least_squares`` (robust ``soft_l1`` on the normalised residuals of
-``ln r``) and builds the :class:`BlendFit`.
+:class:`TwoLawModel` (:mod:`._two_law_model`) predicts ``ln r`` and its
+derivatives; here :func:`build_model` makes its first guess and bounds, and
+:func:`blend_fit` runs scipy's ``least_squares`` (robust ``soft_l1`` on the
+normalised residuals of ``ln r``, the model's exact Jacobian) and builds the
+:class:`BlendFit`.
 """
 
 from __future__ import annotations
 
 import math
 import warnings
-from dataclasses import dataclass
 
 import numpy as np
 
 from ._core import (
-    LawShape,
     Series,
     bracket_ci,
     data_problem,
@@ -26,6 +25,7 @@ from ._core import (
     solve_log_radius,
 )
 from ._records import BlendFit
+from ._two_law_model import TwoLawModel, exp_or_nan
 
 __all__ = ["MIN_BLEND_POINTS", "TwoLawModel", "build_model", "least_squares_fit", "blend_fit"]
 
@@ -33,86 +33,6 @@ __all__ = ["MIN_BLEND_POINTS", "TwoLawModel", "build_model", "least_squares_fit"
 MIN_BLEND_POINTS = 12
 _N_BOUNDS = (-0.5, 3.0)
 _S_BOUNDS = (0.25, 10.0)
-
-
-@dataclass(frozen=True)
-class TwoLawModel:
-    """The parameter layout and prediction of one two-regime model (private).
-
-    Parameters are ``[ln A1, n1?, n2?, ln τc, s?, t0?]``, present when free.
-    """
-
-    kind: str  # "blend" or "broken"
-    early: LawShape | None
-    late: LawShape | None
-    sharpness: float | None
-    direction: int  # -1: early law is the smaller at first; +1: the larger
-    t0_fixed: float | None
-
-    def names(self):
-        out = ["lnA1"]
-        if self.early is None:
-            out.append("n1")
-        if self.late is None:
-            out.append("n2")
-        out.append("lntc")
-        if self.kind == "blend" and self.sharpness is None:
-            out.append("s")
-        if self.t0_fixed is None:
-            out.append("t0")
-        return out
-
-    def unpack(self, theta):
-        p = dict(zip(self.names(), theta, strict=True))
-        p.setdefault("s", self.sharpness if self.sharpness is not None else math.nan)
-        p.setdefault("t0", self.t0_fixed)
-        return p
-
-    def _f(self, shape, n, tau):
-        return n * np.log(tau) if shape is None else shape.log_shape(tau)
-
-    def log_radius(self, theta, time):
-        p = self.unpack(theta)
-        tau = time - p["t0"]
-        tc = np.exp(p["lntc"])
-        f1 = self._f(self.early, p.get("n1"), tau)
-        f2 = self._f(self.late, p.get("n2"), tau)
-        f1c = self._f(self.early, p.get("n1"), tc)
-        f2c = self._f(self.late, p.get("n2"), tc)
-        lr1 = p["lnA1"] + f1
-        lr2 = p["lnA1"] + f1c - f2c + f2
-        if self.kind == "broken":
-            return np.where(tau < tc, lr1, lr2)
-        s = p["s"]
-        if self.direction < 0:
-            return -np.logaddexp(-s * lr1, -s * lr2) / s
-        return np.logaddexp(s * lr1, s * lr2) / s
-
-    def exponents(self, theta):
-        p = self.unpack(theta)
-        n1 = self.early.exponent if self.early is not None else p["n1"]
-        n2 = self.late.exponent if self.late is not None else p["n2"]
-        return float(n1), float(n2)
-
-    def prefactors(self, theta):
-        """(A1, A2) in reported units, and the common radius at τ_c."""
-        p = self.unpack(theta)
-        tc = math.exp(p["lntc"])
-        f1c = float(self._f(self.early, p.get("n1"), np.array(tc)))
-        f2c = float(self._f(self.late, p.get("n2"), np.array(tc)))
-        ln_a2 = p["lnA1"] + f1c - f2c
-        u1 = 1.0 if self.early is None else self.early.prefactor_unit_factor()
-        u2 = 1.0 if self.late is None else self.late.prefactor_unit_factor()
-        return (
-            u1 * _exp_or_nan(p["lnA1"]),
-            u2 * _exp_or_nan(ln_a2),
-            _exp_or_nan(p["lnA1"] + f1c),
-        )
-
-
-def _exp_or_nan(x: float) -> float:
-    """``exp(x)``, or NaN beyond the floating-point range (the fit then fails)."""
-    return math.exp(x) if abs(x) < 700.0 else math.nan
 
 
 def _polyfit(x, y, w):
@@ -203,11 +123,19 @@ def build_model(
 
 
 def least_squares_fit(model, data, x0, bounds, *, loss, f_scale, max_nfev=None):
-    """Run scipy's least_squares on the normalised residuals of ``ln r`` (blend_fit
-    returns a falsy record when the result is not finite)."""
+    """Run scipy's least_squares on the normalised residuals of ``ln r``, with the
+    model's exact Jacobian (blend_fit returns a falsy record when the result is
+    not finite)."""
     nfev = max_nfev or 100 * (len(x0) + 1)
     return solve_log_radius(
-        model.log_radius, data, x0, bounds, loss=loss, f_scale=f_scale, max_nfev=nfev
+        model.log_radius,
+        data,
+        x0,
+        bounds,
+        loss=loss,
+        f_scale=f_scale,
+        max_nfev=nfev,
+        gradient=model.log_radius_and_gradient,
     )
 
 
@@ -263,7 +191,7 @@ def _blend_record(name, kind, model, data, res, early, late, sharpness, lo, hi, 
     err = dict(zip(model.names(), np.sqrt(np.maximum(np.diag(cov), 0.0)), strict=True))
     n1, n2 = model.exponents(theta)
     a1, a2, rc = model.prefactors(theta)
-    tc = _exp_or_nan(p["lntc"])
+    tc = exp_or_nan(p["lntc"])
     lo_c, hi_c = normal_ci(p["lntc"], err["lntc"])
     n1_ci = (n1, n1) if early is not None else normal_ci(n1, err["n1"])
     n2_ci = (n2, n2) if late is not None else normal_ci(n2, err["n2"])
