@@ -38,7 +38,9 @@ def _residuals(model, time, y, s, t0, beta):
     """τ, the design X and the normalised residuals z at (t0, β) of each series."""
     tau = time[None, :] - t0[:, None]
     x, off = model.design(tau)
-    fitted = off + np.einsum("knp,kp->kn", np.broadcast_to(x, tau.shape + x.shape[-1:]), beta)
+    fitted = off + x[..., 0] * beta[:, :1]
+    for j in range(1, x.shape[-1]):
+        fitted = fitted + x[..., j] * beta[:, j : j + 1]
     return tau, x, (y - fitted) / s
 
 
@@ -57,13 +59,15 @@ def _direction(model, tau, x, z, s, beta, f, loss, held):
     else:
         slope = model.shape.slope(tau)
     with np.errstate(all="ignore"):
-        jac = np.concatenate(
-            [np.broadcast_to(x, tau.shape + x.shape[-1:]), (-slope / tau)[..., None]], axis=-1
-        )
-        a = np.einsum("knp,kn,knq->kpq", jac, w, jac)
-        g = np.einsum("knp,kn->kp", jac, gradient / s)
+        # The Jacobian transposed, (series, parameters, points): the sums below are
+        # matrix products, each series' its own.
+        jac = np.concatenate([np.swapaxes(x, 1, 2), (-slope / tau)[:, None, :]], axis=1)
+        a = (jac * w[:, None, :]) @ np.swapaxes(jac, 1, 2)
+        g = (jac @ (gradient / s)[..., None])[..., 0]
         step = np.zeros(g.shape)
         ok = np.isfinite(a).all(axis=(1, 2)) & np.isfinite(g).all(axis=1)
+        # A law flat in t0 at every point (the log law past its peak) cannot move it.
+        held = held | (a[:, -1, -1] <= 0.0)
         whole, fixed = ok & ~held, ok & held
         step[whole] = _solve(a[whole], g[whole])
         step[fixed, :-1] = _solve(a[fixed, :-1, :-1], g[fixed, :-1])
