@@ -3,8 +3,9 @@
 The fit works on ``ln r``: ``ln r = ln A + f(t - t0)`` with ``f = n ln τ``
 (n free or fixed) or the ELS form ``f = ln(uτ) + ln(-ln(uτ/R))``. For a
 given origin t0 the problem is linear in ``ln A`` (and n), so it is solved
-in closed form; t0 is then found by a bounded one-dimensional search inside
-the contact bracket (a profile fit). Each point is weighted by its relative
+in closed form. With t0 free, the best of a grid of origins across the contact
+bracket starts Newton steps in (β, t0) together, t0 inside the bracket, as the
+bootstrap refits every resample (:func:`profile_many`). Each point is weighted by its relative
 uncertainty ``σ_r / r`` (the uncertainty of ``ln r``; r the median radius of the
 point and its neighbours, :func:`._core.running_median`), and the loss is
 robust: scipy's ``soft_l1`` (``ρ(z) = 2 f²(√(1 + (z/f)²) - 1)``), solved by
@@ -101,22 +102,14 @@ def profile_fit(series: Series, model: LinearModel, lo, hi, f, loss):
     if hi <= lo:
         beta, z, w, _ = at([lo])
         return lo, beta[0], z[0], w[0]
-    from scipy.optimize import minimize_scalar
-
-    grid = np.linspace(lo, hi, _T0_GRID)
-    _, _, _, cost = at(grid)
-    cost = np.where(np.isfinite(cost), cost, np.inf)
-    i = int(np.argmin(cost))
-    a, b = grid[max(i - 1, 0)], grid[min(i + 1, _T0_GRID - 1)]
-    res = minimize_scalar(
-        lambda v: float(at([v])[3][0]),
-        bounds=(a, b),
-        method="bounded",
-        options={"xatol": max((hi - lo) * 1e-7, 1e-300)},
-    )
-    t0 = float(res.x) if np.isfinite(res.fun) and res.fun <= cost[i] else float(grid[i])
-    beta, z, w, _ = at([t0])
-    return t0, beta[0], z[0], w[0]
+    # The bootstrap's own search (:func:`profile_many`), so that the fit and its
+    # resamples reach their minima alike.
+    t0s, betas = profile_many(t, y[None, :], s, model, lo, hi, f, loss)
+    t0, beta = float(t0s[0]), betas[0]
+    x, off = model.design(t - t0)
+    z = (y - off - x @ beta) / s
+    w = 1.0 / s**2 if loss == "linear" else 1.0 / (s**2 * np.sqrt(1.0 + (z / f) ** 2))
+    return t0, beta, z, w
 
 
 def profile_many(time, y, s, model: LinearModel, lo, hi, f, loss, *, start=None, counter=None):
