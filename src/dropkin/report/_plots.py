@@ -17,6 +17,7 @@ from .._atomic import completed_files
 from ._angles import plot_contact_angles
 from ._curves import _candidate_curve, _dominant, _window, dominant_curve, fit_times
 from ._dense import draw_points
+from ._jobs import run_jobs
 from ._legend import place_legend
 from ._local import plot_local_exponent
 from ._origin import series_arrays, time_origin
@@ -31,6 +32,7 @@ from ._style import (
     PLOT_FORMATS,
     _exponent_text,
     _finite,
+    _import_matplotlib,
     _log_axis,
     _new_figure,
     _num,
@@ -193,6 +195,12 @@ def figure_makers(series, verdict, overlay_files=()) -> dict:
     return figures
 
 
+def _saver(draw, plots_dir: Path, stem: str, formats):
+    """A job that draws one figure and saves it in each of `formats`; it returns the files."""
+    level = _MONTAGE_PNG_LEVEL if stem == "overlays" else None
+    return lambda: _save(draw(), plots_dir, stem, formats, png_level=level)
+
+
 def write_plots(out_dir, *, series, verdict, overlays_dir=None, formats=("png",)) -> list[Path]:
     """Write the analysis figures into ``out_dir/plots/``, as PNG unless asked otherwise.
 
@@ -245,23 +253,23 @@ def write_plots(out_dir, *, series, verdict, overlays_dir=None, formats=("png",)
 
     Each file is written atomically.
     """
-    import matplotlib
-
+    matplotlib = _import_matplotlib(formats)
     out_dir = Path(out_dir)
     plots_dir = out_dir / "plots"
     plots_dir.mkdir(parents=True, exist_ok=True)
     files = completed_files(Path(overlays_dir or out_dir / "overlays"), "*.png")
     figures = figure_makers(series, verdict, files)
-    written: list[Path] = []
     with matplotlib.rc_context(_RC), warnings.catch_warnings(), np.errstate(all="ignore"):
         # data spanning hundreds of decades overflow matplotlib's transforms or
         # make it adjust a log axis itself, with a warning (attributed to the
         # caller); the figure is still drawn, and the numbers are in the files
         warnings.simplefilter("ignore", UserWarning)
         warnings.simplefilter("ignore", RuntimeWarning)
-        for stem, draw in figures.items():
-            level = _MONTAGE_PNG_LEVEL if stem == "overlays" else None
-            written += _save(draw(), plots_dir, stem, formats, png_level=level)
+        # the montage, the longest to draw, first (see run_jobs)
+        stems = sorted(figures, key=lambda stem: stem != "overlays")
+        saved = run_jobs([_saver(figures[stem], plots_dir, stem, formats) for stem in stems])
+        by_stem = dict(zip(stems, saved, strict=True))
+        written = [path for stem in figures for path in by_stem[stem]]
     for stem in set(PLOT_NAMES) - set(figures):
         for ext in PLOT_FORMATS:
             (plots_dir / f"{stem}.{ext}").unlink(missing_ok=True)

@@ -131,6 +131,23 @@ def _log_axis(axis):
     axis.set_minor_formatter(NullFormatter())
 
 
+#: The matplotlib module that writes each format (imported by savefig on first use).
+_BACKENDS = {"png": "backend_agg", "svg": "backend_svg", "pdf": "backend_pdf"}
+
+
+def _import_matplotlib(formats=("png",)):
+    """matplotlib, with what drawing and saving in `formats` needs imported now: once,
+    before :func:`~dropkin.report._jobs.run_jobs` forks, not in each process."""
+    import importlib
+
+    import matplotlib
+    import matplotlib.figure  # noqa: F401
+
+    for ext in formats:
+        importlib.import_module(f"matplotlib.backends.{_BACKENDS[ext]}")
+    return matplotlib
+
+
 def _new_figure(height):
     from matplotlib.figure import Figure
 
