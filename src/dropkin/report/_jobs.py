@@ -15,7 +15,10 @@ the serial path would (one line on the command line, no traceback from a
 child). A child that dies has its unfinished jobs run here. This process
 waits for the child in every case, an exception here included (the child
 finishes the job it holds, takes no other, and ends), so no process and no
-temporary file is left behind.
+temporary file is left behind. The garbage collector is frozen while the child
+is forked (its collections then leave the objects it was born with alone,
+which a collection would otherwise copy page by page) and off in the child,
+whose life ends with its jobs.
 
 Jobs run here one after the other (no child) unless every condition holds:
 Linux (``fork`` is safe there; macOS and Windows start processes by
@@ -28,6 +31,7 @@ process (a campaign's workers already keep every core busy).
 from __future__ import annotations
 
 import contextlib
+import gc
 import multiprocessing
 import os
 import signal
@@ -82,13 +86,7 @@ def _share(jobs, context, results: dict) -> None:
     finally:
         os.close(feed)  # the jobs end where the pipe is empty
     receiver, sender = context.Pipe(duplex=False)
-    child = context.Process(
-        target=_child, args=(jobs, tokens, sender), name="dropkin-figures", daemon=True
-    )
-    try:
-        child.start()
-    except OSError:  # no process to be had: every job is run here
-        child = None
+    child = _start(context, jobs, tokens, sender)
     sender.close()
     try:
         try:
@@ -106,6 +104,26 @@ def _share(jobs, context, results: dict) -> None:
         if child is not None and child.is_alive():  # interrupted while waiting
             child.terminate()
             child.join()
+
+
+def _start(context, jobs, tokens: int, sender):
+    """The child, started; None where no process can be had (every job is run here)."""
+    child = context.Process(
+        target=_child, args=(jobs, tokens, sender), name="dropkin-figures", daemon=True
+    )
+    # frozen, this process' objects are never walked (and so copied) by the child's
+    # collector; left as they are where the caller froze some itself
+    freeze = gc.get_freeze_count() == 0
+    if freeze:
+        gc.freeze()
+    try:
+        child.start()
+    except OSError:
+        return None
+    finally:
+        if freeze:
+            gc.unfreeze()
+    return child
 
 
 def _taken(tokens: int) -> Iterator[int]:
@@ -129,6 +147,7 @@ def _child(jobs, tokens: int, sender) -> None:
     """The child's part: take jobs until none is left or one fails."""
     signal.signal(signal.SIGINT, signal.SIG_IGN)  # Ctrl-C is the parent's to handle
     signal.signal(signal.SIGTERM, signal.SIG_DFL)  # not the parent's handler (fork)
+    gc.disable()  # a short life, ended by os._exit: its cycles need no collecting
     with contextlib.suppress(BaseException):
         for k in _taken(tokens):
             value = jobs[k]()  # an error: the parent runs this job again and raises it
