@@ -155,3 +155,28 @@ def test_a_figure_that_fails_in_parallel_gives_one_line(analysed, tmp_path, monk
     # the run is built aside and published whole: nothing of it is left
     assert not [p for p in folder.rglob(".*")] + [p for p in tmp_path.glob(".*")]
     assert not (folder / "plots").exists()
+
+
+def test_the_montage_read_as_stored_is_the_montage_read_as_floats(analysed, tmp_path, monkeypatch):
+    # the frames are read as 8-bit arrays, no longer through matplotlib's reader, which
+    # gives floats in [0, 1]: the montage must not change (one frame given an alpha channel)
+    import matplotlib.image as mpimg
+    from PIL import Image
+
+    records = {
+        "series": read_series(analysed / "radius.csv"),
+        "verdict": read_fit(analysed / "fit.json"),
+    }
+    monkeypatch.setattr(_jobs, "two_cores", lambda: False)
+    montages = []
+    for name in ("stored", "floats"):
+        folder = _copy(analysed, tmp_path / name)
+        first = sorted((folder / "overlays").glob("*.png"))[0]
+        with Image.open(first) as image:
+            image.convert("RGBA").save(first)
+        if name == "floats":
+            monkeypatch.setattr(_plots, "_read_frame", mpimg.imread)
+        write_plots(folder, **records)
+        montages.append(_pixels(folder / "plots" / "overlays.png"))
+    assert montages[0].shape[1] == 1020 and montages[0].std() > 0
+    assert np.array_equal(*montages)

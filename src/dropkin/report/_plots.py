@@ -163,12 +163,23 @@ def _plot_radius(series, verdict):
     return fig
 
 
-def _plot_overlays(files):
+def _read_frame(path):
+    """An overlay frame as an array: 8-bit RGB(A) as it is stored (matplotlib's own reader
+    turns a PNG into floats, which take longer to read and to draw, for the same pixels)."""
+    from PIL import Image
+
+    with Image.open(path) as image:
+        if image.mode in ("RGB", "RGBA"):
+            return np.asarray(image)
     import matplotlib.image as mpimg
 
+    return mpimg.imread(path)
+
+
+def _plot_overlays(files):
     cols = min(3, len(files))
     rows = math.ceil(len(files) / cols)
-    images = [mpimg.imread(path) for path in files]
+    images = [_read_frame(path) for path in files]
     aspect = images[0].shape[0] / max(images[0].shape[1], 1)
     fig = _new_figure(max(1.0, rows * (_WIDTH_IN / cols) * aspect + 0.2 * rows))
     for k, (path, image) in enumerate(zip(files, images, strict=True)):
