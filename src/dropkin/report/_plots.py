@@ -49,10 +49,6 @@ _STATUS_MARKERS = {
     "after-growth": "d",
 }
 
-#: zlib level of the montage's PNG: its photographs take 3× longer to pack at
-#: the default 6, for 8 % smaller files (the report does not inline it).
-_MONTAGE_PNG_LEVEL = 3
-
 #: Stems of the figures that `write_plots` can write (each in the formats asked for).
 PLOT_NAMES = ("radius", "local_exponent", "residuals", "contact_angle", "overlays")
 
@@ -208,8 +204,7 @@ def figure_makers(series, verdict, overlay_files=()) -> dict:
 
 def _saver(draw, plots_dir: Path, stem: str, formats):
     """A job that draws one figure and saves it in each of `formats`; it returns the files."""
-    level = _MONTAGE_PNG_LEVEL if stem == "overlays" else None
-    return lambda: _save(draw(), plots_dir, stem, formats, png_level=level)
+    return lambda: _save(draw(), plots_dir, stem, formats)
 
 
 def write_plots(out_dir, *, series, verdict, overlays_dir=None, formats=("png",)) -> list[Path]:

@@ -154,10 +154,31 @@ def _new_figure(height):
     return Figure(figsize=(_WIDTH_IN, height), dpi=_DPI, layout="constrained")
 
 
+#: zlib level of the PNG figures: 1 packs the figures' flat colours twice as fast as
+#: Pillow's default 6, into files 15 % larger (as large as before they lost their alpha).
+_PNG_LEVEL = 1
+
+
+def _save_png(fig, path: Path, level=None) -> None:
+    """Write `fig` as a PNG of :data:`_DPI`, RGB where every pixel is opaque (a quarter
+    less to pack than RGBA, for the same image), no text chunk."""
+    import io
+
+    import numpy as np
+    from PIL import Image
+
+    raw = io.BytesIO()
+    fig.savefig(raw, format="raw", dpi=_DPI)  # drawn as savefig draws a PNG: RGBA, 8 bits
+    width, height = (int(v) for v in fig.bbox.size)
+    rgba = np.frombuffer(raw.getbuffer(), np.uint8).reshape(height, width, 4)
+    image = Image.fromarray(rgba[..., :3] if (rgba[..., 3] == 255).all() else rgba)
+    image.save(path, format="png", dpi=(_DPI, _DPI), compress_level=level or _PNG_LEVEL)
+
+
 def _save(fig, plots_dir: Path, stem: str, formats=("png",), *, png_level=None) -> list[Path]:
     """Write `fig` as ``stem.<format>`` for each of `formats`; the files written.
 
-    `png_level` is the PNG's zlib level (None: Pillow's default, 6).
+    `png_level` is the PNG's zlib level (None: :data:`_PNG_LEVEL`).
 
     The figure is laid out once (its constrained layout, then frozen; the
     layout needs the texts' sizes only, not a drawing of every artist), so
@@ -173,10 +194,10 @@ def _save(fig, plots_dir: Path, stem: str, formats=("png",), *, png_level=None) 
     for ext in formats:
         path = plots_dir / f"{stem}.{ext}"
         with atomic_path(path) as tmp:
-            extra = (
-                {"pil_kwargs": {"compress_level": png_level}} if ext == "png" and png_level else {}
-            )
-            fig.savefig(tmp, format=ext, dpi=_DPI, metadata=_METADATA[ext], **extra)
+            if ext == "png":
+                _save_png(fig, tmp, png_level)
+            else:
+                fig.savefig(tmp, format=ext, dpi=_DPI, metadata=_METADATA[ext])
         written.append(path)
     for ext in set(PLOT_FORMATS) - set(formats):
         (plots_dir / f"{stem}.{ext}").unlink(missing_ok=True)

@@ -1,0 +1,55 @@
+"""Issue 18: the PNG figures packed as RGB at zlib level 1, for the pixels matplotlib draws.
+
+Each figure of an analysis is saved by ``_save`` and, from the same laid-out
+figure, by matplotlib's own PNG writer (RGBA, Pillow's default level); both
+files are decoded by Pillow, a reader independent of the code under test,
+and must hold the same pixels and the same 300 dpi.
+"""
+
+from __future__ import annotations
+
+import warnings
+from pathlib import Path
+
+import numpy as np
+import pytest
+from click.testing import CliRunner
+
+import dropkin.cli
+from dropkin.pipeline import read_fit
+from dropkin.report._plots import figure_makers
+from dropkin.report._style import _RC, _import_matplotlib, _save
+from dropkin.series import read_series
+
+SAMPLES = Path(__file__).resolve().parents[2] / "sample_frames"
+
+
+@pytest.fixture(scope="module")
+def analysed(tmp_path_factory):
+    out = tmp_path_factory.mktemp("png") / "out"
+    argv = ["analyze", str(SAMPLES / "spreading_drop"), "-o", str(out), "--bootstrap", "20"]
+    result = CliRunner().invoke(dropkin.cli.main, argv)
+    assert result.exit_code == 0, result.output
+    return out
+
+
+def test_png_figures_hold_the_pixels_matplotlib_draws(analysed, tmp_path):
+    from PIL import Image
+
+    matplotlib = _import_matplotlib()
+    series, verdict = read_series(analysed / "radius.csv"), read_fit(analysed / "fit.json")
+    overlays = sorted((analysed / "overlays").glob("*.png"))
+    makers = figure_makers(series, verdict, overlays)
+    assert {"radius", "contact_angle", "overlays"} <= set(makers)
+    with matplotlib.rc_context(_RC), warnings.catch_warnings():
+        warnings.simplefilter("ignore")
+        for stem, draw in makers.items():
+            fig = draw()
+            (ours,) = _save(fig, tmp_path, stem)
+            theirs = tmp_path / f"{stem}.matplotlib.png"
+            fig.savefig(theirs, format="png", dpi=300)  # laid out by _save: not again
+            with Image.open(ours) as a, Image.open(theirs) as b:
+                assert a.mode == "RGB" and b.mode == "RGBA", stem
+                assert a.size == b.size and a.size[0] == 1020, stem
+                assert a.info["dpi"] == pytest.approx((300, 300), abs=1e-3)
+                assert np.array_equal(np.asarray(a.convert("RGBA")), np.asarray(b)), stem
