@@ -1,8 +1,9 @@
 """The figures' style and the number helpers the figures and the page share.
 
 Every figure is one journal column wide (3.4 in), fonts of 8 pt, written as a
-300 dpi PNG (and, on request, as SVG or PDF). Colours come from the Okabe–Ito palette, which
-colour-blind readers can tell apart; each series also has its own line style
+300 dpi PNG (RGB, at zlib level 1; and, on request, as SVG or PDF). Colours
+come from the Okabe–Ito palette, which colour-blind readers can tell apart;
+each series also has its own line style
 or marker, so the figures survive a grey-scale print.
 
 matplotlib is imported inside the functions (the command line stays fast) and
@@ -172,7 +173,8 @@ def _import_modules(formats):
     import matplotlib.figure  # noqa: F401
 
     for ext in formats:
-        importlib.import_module(f"matplotlib.backends.{_BACKENDS[ext]}")
+        if ext in _BACKENDS:  # another format fails where it is saved, as it did
+            importlib.import_module(f"matplotlib.backends.{_BACKENDS[ext]}")
     return matplotlib
 
 
