@@ -209,3 +209,42 @@ def test_matplotlib_imported_ahead_is_waited_for_before_the_fork(analysed, tmp_p
     assert seen and not [names for names in seen if "dropkin-import-matplotlib" in names]
     assert "matplotlib.backends.backend_svg" in sys.modules
     assert (tmp_path / "out" / "plots" / "radius.svg").is_file()
+
+
+def _gone(pid: int) -> bool:
+    """Whether process `pid` has ended (a zombie no one has reaped yet counts)."""
+    try:
+        status = Path(f"/proc/{pid}/status").read_text()
+    except FileNotFoundError:
+        return True
+    return "\nState:\tZ" in status
+
+
+def test_a_parent_killed_outright_takes_the_child_with_it(tmp_path):
+    import signal
+    import subprocess
+
+    script = (
+        "import os, pathlib, sys, time\n"
+        "from dropkin.report._jobs import run_jobs\n"
+        "folder = pathlib.Path(sys.argv[1])\n"
+        "def job(k):\n"
+        "    (folder / f'{k}.pid').write_text(str(os.getpid()))\n"
+        "    time.sleep(60)\n"
+        "run_jobs([lambda: job(0), lambda: job(1)], parallel=True)\n"
+    )
+    parent = subprocess.Popen([sys.executable, "-c", script, str(tmp_path)])
+    try:
+        deadline = time.monotonic() + 30
+        while len(list(tmp_path.glob("*.pid"))) < 2 and time.monotonic() < deadline:
+            time.sleep(0.05)
+        pids = {int(p.read_text()) for p in tmp_path.glob("*.pid")}
+        assert parent.pid in pids and len(pids) == 2
+    finally:
+        parent.send_signal(signal.SIGKILL)
+        parent.wait()
+    (child,) = pids - {parent.pid}
+    deadline = time.monotonic() + 10
+    while not _gone(child) and time.monotonic() < deadline:
+        time.sleep(0.05)
+    assert _gone(child)

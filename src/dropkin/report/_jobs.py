@@ -15,7 +15,8 @@ the serial path would (one line on the command line, no traceback from a
 child). A child that dies has its unfinished jobs run here. This process
 waits for the child in every case, an exception here included (the child
 finishes the job it holds, takes no other, and ends), so no process and no
-temporary file is left behind. The garbage collector is frozen while the child
+temporary file is left behind; a parent killed outright takes the child with
+it (``prctl(PR_SET_PDEATHSIG)``). The garbage collector is frozen while the child
 is forked (its collections then leave the objects it was born with alone,
 which a collection would otherwise copy page by page) and off in the child,
 whose life ends with its jobs.
@@ -43,6 +44,7 @@ __all__ = ["run_jobs", "two_cores"]
 
 #: At most this many jobs (each is one byte in the pipe).
 _MAX_JOBS = 256
+_PR_SET_PDEATHSIG = 1  # <linux/prctl.h>
 
 
 def two_cores() -> bool:
@@ -109,7 +111,10 @@ def _share(jobs, context, results: dict) -> None:
 def _start(context, jobs, tokens: int, sender):
     """The child, started; None where no process can be had (every job is run here)."""
     child = context.Process(
-        target=_child, args=(jobs, tokens, sender), name="dropkin-figures", daemon=True
+        target=_child,
+        args=(jobs, tokens, sender, os.getpid()),
+        name="dropkin-figures",
+        daemon=True,
     )
     # frozen, this process' objects are never walked (and so copied) by the child's
     # collector; left as they are where the caller froze some itself
@@ -143,8 +148,20 @@ def _received(receiver) -> dict:
         got[k] = value
 
 
-def _child(jobs, tokens: int, sender) -> None:
+def _die_with(parent: int) -> None:
+    """End this process (SIGKILL) when `parent` ends, killed or not: a killed run's
+    hidden build folder is removed by the next run, which must find nobody writing in it."""
+    with contextlib.suppress(Exception):  # no libc by that name: the jobs are short
+        import ctypes
+
+        ctypes.CDLL(None, use_errno=True).prctl(_PR_SET_PDEATHSIG, int(signal.SIGKILL), 0, 0, 0)
+    if os.getppid() != parent:  # it ended before the line above
+        os._exit(1)
+
+
+def _child(jobs, tokens: int, sender, parent: int) -> None:
     """The child's part: take jobs until none is left or one fails."""
+    _die_with(parent)
     signal.signal(signal.SIGINT, signal.SIG_IGN)  # Ctrl-C is the parent's to handle
     signal.signal(signal.SIGTERM, signal.SIG_DFL)  # not the parent's handler (fork)
     gc.disable()  # a short life, ended by os._exit: its cycles need no collecting
