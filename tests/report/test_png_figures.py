@@ -53,3 +53,23 @@ def test_png_figures_hold_the_pixels_matplotlib_draws(analysed, tmp_path):
                 assert a.size == b.size and a.size[0] == 1020, stem
                 assert a.info["dpi"] == pytest.approx((300, 300), abs=1e-3)
                 assert np.array_equal(np.asarray(a.convert("RGBA")), np.asarray(b)), stem
+
+
+@pytest.mark.parametrize("height_in", [2.37, (711 - 1e-10) / 300, 2.6, 1.0 + 1.0 / 3.0])
+def test_a_figure_of_any_height_is_saved_whole(tmp_path, height_in):
+    # a height that is not a whole number of pixels (711 px less a rounding error
+    # came from a sessile drop's montage) must give the rows matplotlib draws
+    from PIL import Image
+
+    from dropkin.report._style import _new_figure
+
+    _import_matplotlib()
+    fig = _new_figure(height_in)
+    ax = fig.add_subplot()
+    ax.plot([1, 2, 3], [3, 1, 2])
+    ax.set_title(f"{height_in:.6f} in")
+    (ours,) = _save(fig, tmp_path, "figure")
+    fig.savefig(tmp_path / "theirs.png", format="png", dpi=300)
+    with Image.open(ours) as a, Image.open(tmp_path / "theirs.png") as b:
+        assert a.size == b.size
+        assert np.array_equal(np.asarray(a.convert("RGBA")), np.asarray(b))

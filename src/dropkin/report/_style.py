@@ -199,7 +199,7 @@ def _save_png(fig, path: Path, level=None) -> None:
 
     raw = io.BytesIO()
     fig.savefig(raw, format="raw", dpi=_DPI)  # drawn as savefig draws a PNG: RGBA, 8 bits
-    width, height = (int(v) for v in fig.bbox.size)
+    width, height = fig.canvas.get_width_height(physical=True)  # as the drawing's canvas
     rgba = np.frombuffer(raw.getbuffer(), np.uint8).reshape(height, width, 4)
     image = Image.fromarray(rgba[..., :3] if (rgba[..., 3] == 255).all() else rgba)
     image.save(path, format="png", dpi=(_DPI, _DPI), compress_level=level or _PNG_LEVEL)
