@@ -73,3 +73,21 @@ def test_a_figure_of_any_height_is_saved_whole(tmp_path, height_in):
     with Image.open(ours) as a, Image.open(tmp_path / "theirs.png") as b:
         assert a.size == b.size
         assert np.array_equal(np.asarray(a.convert("RGBA")), np.asarray(b))
+
+
+def test_a_drawing_of_an_unexpected_size_is_saved_by_matplotlib(tmp_path, monkeypatch):
+    # should the drawing and its canvas ever disagree on the size, matplotlib's own
+    # PNG writer saves the figure (RGBA), rather than an error or a cut image
+    from PIL import Image
+
+    from dropkin.report._style import _new_figure
+
+    _import_matplotlib()
+    fig = _new_figure(2.0)
+    fig.add_subplot().plot([1, 2], [2, 1])
+    fig.savefig(tmp_path / "theirs.png", format="png", dpi=300)
+    monkeypatch.setattr(fig.canvas, "get_width_height", lambda **kw: (10, 10))
+    (ours,) = _save(fig, tmp_path, "figure")
+    with Image.open(ours) as a, Image.open(tmp_path / "theirs.png") as b:
+        assert a.mode == "RGBA" and a.size == b.size == (1020, 600)
+        assert np.array_equal(np.asarray(a), np.asarray(b))

@@ -200,6 +200,10 @@ def _save_png(fig, path: Path, level=None) -> None:
     raw = io.BytesIO()
     fig.savefig(raw, format="raw", dpi=_DPI)  # drawn as savefig draws a PNG: RGBA, 8 bits
     width, height = fig.canvas.get_width_height(physical=True)  # as the drawing's canvas
+    if raw.getbuffer().nbytes != width * height * 4:  # a canvas of another size: as before
+        pil = {"compress_level": level or _PNG_LEVEL}
+        fig.savefig(path, format="png", dpi=_DPI, metadata=_METADATA["png"], pil_kwargs=pil)
+        return
     rgba = np.frombuffer(raw.getbuffer(), np.uint8).reshape(height, width, 4)
     image = Image.fromarray(rgba[..., :3] if (rgba[..., 3] == 255).all() else rgba)
     image.save(path, format="png", dpi=(_DPI, _DPI), compress_level=level or _PNG_LEVEL)
