@@ -21,7 +21,7 @@ from click.testing import CliRunner
 
 import dropkin.cli
 from dropkin.pipeline import read_fit
-from dropkin.report import _jobs, _plots, _style, write_plots
+from dropkin.report import _jobs, _plots, write_plots
 from dropkin.series import read_series
 
 SAMPLES = Path(__file__).resolve().parents[2] / "sample_frames"
@@ -180,35 +180,6 @@ def test_the_montage_read_as_stored_is_the_montage_read_as_floats(analysed, tmp_
         montages.append(_pixels(folder / "plots" / "overlays.png"))
     assert montages[0].shape[1] == 1020 and montages[0].std() > 0
     assert np.array_equal(*montages)
-
-
-def test_matplotlib_imported_ahead_is_waited_for_before_the_fork(analysed, tmp_path, monkeypatch):
-    # `analyze` imports matplotlib in a thread while it writes its other files; the
-    # figures wait for that thread, so that none is running when the child is forked
-    import threading
-
-    seen = []
-
-    def spy():
-        seen.append(sorted(t.name for t in threading.enumerate()))
-        return False
-
-    def slow(formats, imported=_style._import_modules):  # as a first import, in the thread
-        if threading.current_thread() is not threading.main_thread():
-            time.sleep(1.0)
-        return imported(formats)
-
-    monkeypatch.setattr(_jobs, "two_cores", spy)
-    monkeypatch.setattr(_style, "_import_modules", slow)
-    result = CliRunner().invoke(
-        dropkin.cli.main,
-        ["analyze", str(SAMPLES / "fast_pair.tif"), "-o", str(tmp_path / "out")]
-        + ["--bootstrap", "20", "--plot-formats", "png,svg"],
-    )
-    assert result.exit_code == 0, result.output
-    assert seen and not [names for names in seen if "dropkin-import-matplotlib" in names]
-    assert "matplotlib.backends.backend_svg" in sys.modules
-    assert (tmp_path / "out" / "plots" / "radius.svg").is_file()
 
 
 def _gone(pid: int) -> bool:

@@ -341,10 +341,6 @@ def write_result(
         of the files written.
     """
     out = Path(out)
-    if result.measurement is not None:  # figures will be drawn: import matplotlib meanwhile
-        from ..report._style import import_ahead
-
-        import_ahead(result.settings.plot_formats)
     copy = None
     if experiment_copy:
         copy = write_experiment_copy(out, result.read, result.source, published_dir)

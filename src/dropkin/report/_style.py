@@ -13,7 +13,6 @@ touched beyond a temporary `matplotlib.rc_context`.
 
 from __future__ import annotations
 
-import contextlib
 import math
 from pathlib import Path
 
@@ -137,36 +136,9 @@ def _log_axis(axis):
 _BACKENDS = {"png": "backend_agg", "svg": "backend_svg", "pdf": "backend_pdf"}
 
 
-#: The threads importing matplotlib ahead of the figures (:func:`import_ahead`).
-_AHEAD: list = []
-
-
-def import_ahead(formats=("png",)) -> None:
-    """Start importing what the figures need in a thread, while this one writes other files.
-
-    :func:`_import_matplotlib` waits for it (so no thread is left when the
-    figures' child is forked); an error is left for that call to meet again.
-    """
-    import threading
-
-    def quietly():
-        with contextlib.suppress(Exception):
-            _import_modules(formats)
-
-    thread = threading.Thread(target=quietly, name="dropkin-import-matplotlib")
-    thread.start()
-    _AHEAD.append(thread)
-
-
 def _import_matplotlib(formats=("png",)):
     """matplotlib, with what drawing and saving in `formats` needs imported now: once,
     before :func:`~dropkin.report._jobs.run_jobs` forks, not in each process."""
-    while _AHEAD:
-        _AHEAD.pop().join()
-    return _import_modules(formats)
-
-
-def _import_modules(formats):
     import importlib
 
     import matplotlib
