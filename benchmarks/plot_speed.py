@@ -16,7 +16,10 @@ Last measured on this 2-core machine shared with other work (load average
 4 to 8), 2026-12-05, first call: 2,000 rows 0.60–0.70 s (before the binning
 and the cheaper layout: 0.91–1.13 s); 10⁵ rows 0.68–0.70 s (before: 13.0–13.8
 s); 10⁶ rows 1.5 s (before: 144 s, timed by hand on the same series as
-``fit_speed.py`` writes it).
+``fit_speed.py`` writes it). With the figures shared between the process
+and a forked child (issue 18), measured 2026-12-05 at load 1.7–2.3 (other
+work on both cores), three runs each, interleaved: 2,000 rows 0.25–0.45 s,
+against 0.41–0.43 s one after the other.
 """
 
 from __future__ import annotations

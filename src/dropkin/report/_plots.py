@@ -17,6 +17,7 @@ from .._atomic import completed_files
 from ._angles import plot_contact_angles
 from ._curves import _candidate_curve, _dominant, _window, dominant_curve, fit_times
 from ._dense import draw_points
+from ._jobs import run_jobs
 from ._legend import place_legend
 from ._local import plot_local_exponent
 from ._origin import series_arrays, time_origin
@@ -31,6 +32,7 @@ from ._style import (
     PLOT_FORMATS,
     _exponent_text,
     _finite,
+    _import_matplotlib,
     _log_axis,
     _new_figure,
     _num,
@@ -46,10 +48,6 @@ _STATUS_MARKERS = {
     "before-contact": "^",
     "after-growth": "d",
 }
-
-#: zlib level of the montage's PNG: its photographs take 3× longer to pack at
-#: the default 6, for 8 % smaller files (the report does not inline it).
-_MONTAGE_PNG_LEVEL = 3
 
 #: Stems of the figures that `write_plots` can write (each in the formats asked for).
 PLOT_NAMES = ("radius", "local_exponent", "residuals", "contact_angle", "overlays")
@@ -161,12 +159,23 @@ def _plot_radius(series, verdict):
     return fig
 
 
-def _plot_overlays(files):
+def _read_frame(path):
+    """An overlay frame as an array: 8-bit RGB(A) as it is stored (matplotlib's own reader
+    turns a PNG into floats, which take longer to read and to draw, for the same pixels)."""
+    from PIL import Image
+
+    with Image.open(path) as image:
+        if image.mode in ("RGB", "RGBA"):
+            return np.asarray(image)
     import matplotlib.image as mpimg
 
+    return mpimg.imread(path)
+
+
+def _plot_overlays(files):
     cols = min(3, len(files))
     rows = math.ceil(len(files) / cols)
-    images = [mpimg.imread(path) for path in files]
+    images = [_read_frame(path) for path in files]
     aspect = images[0].shape[0] / max(images[0].shape[1], 1)
     fig = _new_figure(max(1.0, rows * (_WIDTH_IN / cols) * aspect + 0.2 * rows))
     for k, (path, image) in enumerate(zip(files, images, strict=True)):
@@ -191,6 +200,11 @@ def figure_makers(series, verdict, overlay_files=()) -> dict:
     if overlay_files:
         figures["overlays"] = lambda: _plot_overlays(overlay_files)
     return figures
+
+
+def _saver(draw, plots_dir: Path, stem: str, formats):
+    """A job that draws one figure and saves it in each of `formats`; it returns the files."""
+    return lambda: _save(draw(), plots_dir, stem, formats)
 
 
 def write_plots(out_dir, *, series, verdict, overlays_dir=None, formats=("png",)) -> list[Path]:
@@ -243,25 +257,28 @@ def write_plots(out_dir, *, series, verdict, overlays_dir=None, formats=("png",)
     legend. Each legend sits in the corner it covers least, or below the axes
     (:func:`~dropkin.report._legend.place_legend`).
 
-    Each file is written atomically.
+    Each file is written atomically. On Linux with two free cores the
+    figures are shared with a forked child process
+    (:func:`~dropkin.report._jobs.run_jobs`), with the same files as
+    when they are drawn one after the other.
     """
-    import matplotlib
-
+    matplotlib = _import_matplotlib(formats)
     out_dir = Path(out_dir)
     plots_dir = out_dir / "plots"
     plots_dir.mkdir(parents=True, exist_ok=True)
     files = completed_files(Path(overlays_dir or out_dir / "overlays"), "*.png")
     figures = figure_makers(series, verdict, files)
-    written: list[Path] = []
     with matplotlib.rc_context(_RC), warnings.catch_warnings(), np.errstate(all="ignore"):
         # data spanning hundreds of decades overflow matplotlib's transforms or
         # make it adjust a log axis itself, with a warning (attributed to the
         # caller); the figure is still drawn, and the numbers are in the files
         warnings.simplefilter("ignore", UserWarning)
         warnings.simplefilter("ignore", RuntimeWarning)
-        for stem, draw in figures.items():
-            level = _MONTAGE_PNG_LEVEL if stem == "overlays" else None
-            written += _save(draw(), plots_dir, stem, formats, png_level=level)
+        # the montage, the longest to draw, first (see run_jobs)
+        stems = sorted(figures, key=lambda stem: stem != "overlays")
+        saved = run_jobs([_saver(figures[stem], plots_dir, stem, formats) for stem in stems])
+        by_stem = dict(zip(stems, saved, strict=True))
+        written = [path for stem in figures for path in by_stem[stem]]
     for stem in set(PLOT_NAMES) - set(figures):
         for ext in PLOT_FORMATS:
             (plots_dir / f"{stem}.{ext}").unlink(missing_ok=True)
