@@ -342,6 +342,28 @@ def apparent_exponent(shape: LawShape, tau, w=None) -> float:
     return float(np.sum(w * (x - xm) * f) / np.sum(w * (x - xm) ** 2))
 
 
+def jacobian_covariance(jac, scale: float):
+    """``scale × (JᵀJ)⁻¹`` of a least-squares Jacobian, its columns brought to unit
+    length first.
+
+    A pseudo-inverse drops the directions whose singular values fall below a
+    fraction of the largest. The columns of one fit differ by orders of
+    magnitude (t0 in seconds against an exponent): unscaled, a parameter
+    the data determine poorly is dropped with the small numbers and given a
+    variance of zero, the narrowest interval for the least known value. With
+    unit columns only a true degeneracy is dropped (Björck, *Numerical
+    Methods for Least Squares Problems*, SIAM 1996, §2.2, column scaling,
+    from memory). A column that is zero (a parameter the points do not
+    touch) keeps variance 0 as before.
+    """
+    jac = np.asarray(jac, dtype=float)
+    with np.errstate(over="ignore", invalid="ignore"):
+        d = np.sqrt(np.sum(jac * jac, axis=0))
+        d = np.where(np.isfinite(d) & (d > 0), d, 1.0)
+        unit = jac / d
+        return np.linalg.pinv(unit.T @ unit) / np.outer(d, d) * scale
+
+
 def information(chi2: float, n: int, k: int) -> tuple[float, float]:
     """(AIC, BIC) of a least-squares fit with the noise scale estimated.
 

@@ -21,7 +21,15 @@ import math
 import numpy as np
 
 from ._bootstrap import outside, percentile_interval, resampled_residuals
-from ._core import Series, bracket_ci, information, normal_ci, safe_exp, solve_log_radius
+from ._core import (
+    Series,
+    bracket_ci,
+    information,
+    jacobian_covariance,
+    normal_ci,
+    safe_exp,
+    solve_log_radius,
+)
 from ._records import LawFit
 
 __all__ = [
@@ -97,7 +105,7 @@ def _record(data: Series, base: LawFit, res, t0_fixed, lo, hi) -> LawFit | None:
     chi2 = float(np.sum(z * z))
     k = len(theta)
     with np.errstate(over="ignore", invalid="ignore"):
-        cov = np.linalg.pinv(res.jac.T @ res.jac) * chi2 / max(len(z) - k, 1)
+        cov = jacobian_covariance(res.jac, chi2 / max(len(z) - k, 1))
     err = np.sqrt(np.maximum(np.diag(cov), 0.0))
     tau = data.time - t0
     w = 1.0 / data.s**2

@@ -20,6 +20,7 @@ from ._core import (
     bracket_ci,
     data_problem,
     information,
+    jacobian_covariance,
     normal_ci,
     safe_exp,
     solve_log_radius,
@@ -185,7 +186,7 @@ def _blend_record(name, kind, model, data, res, early, late, sharpness, lo, hi, 
     n, k = len(z), len(theta)
     try:
         with np.errstate(over="ignore", invalid="ignore"):  # not finite: a falsy fit below
-            cov = np.linalg.pinv(res.jac.T @ res.jac) * chi2 / max(n - k, 1)
+            cov = jacobian_covariance(res.jac, chi2 / max(n - k, 1))
     except (ValueError, np.linalg.LinAlgError):
         cov = np.full((k, k), np.nan)
     err = dict(zip(model.names(), np.sqrt(np.maximum(np.diag(cov), 0.0)), strict=True))
