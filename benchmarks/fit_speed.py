@@ -10,13 +10,15 @@ printed before and after.
 
     python benchmarks/fit_speed.py --measure OUT/measure.json [--rows 10000 100000]
 
-Last measured on this 2-core machine, 2026-12-05 (load 0.17 before, 0.45
-after), the whole ``dropkin fit`` with its 200 resamples, figures and report:
-2,000 rows 3.8 s, 10^4 rows 4.3 s, 10^5 rows 4.3 s, 10^6 rows 7.5 s (7.0 s
-and 904 MB peak RSS in a second run). Before the long-series work of the same
-day: 6.1 s, 19.9 s, about 150 s and over 300 s (1.8 GB): the fits see at most
-2,048 averaged points (docs/physics.md §4.8, "Long series"), radius.csv is
-read whole columns at a time and the figures bin long series.
+Last measured on this 2-core machine, 2026-12-05, evening (load 1.6 before,
+1.5 after), the whole ``dropkin fit`` with its 200 resamples, figures and
+report: 2,000 rows 1.9 s, 10^4 rows 2.1 s, 10^5 rows 2.6 s, 10^6 rows 6.2 s.
+That afternoon: 3.8, 4.3, 4.3 and 7.5 s (904 MB peak RSS at 10^6 rows, most
+of it reading the CSV); that morning, before the long-series work: 6.1 s,
+19.9 s, about 150 s and over 300 s (1.8 GB). The fits see at most 2,048
+averaged points (docs/physics.md §4.8, "Long series"), radius.csv is read
+whole columns at a time, the figures bin long series, the bootstrap refits
+by Newton steps and the figures are drawn on two processes.
 """
 
 from __future__ import annotations

@@ -32,19 +32,21 @@ of one 60-frame 256 x 256 recording (each a recording of its own to batch).
 
     python benchmarks/whole_job.py [--keep DIR] [--repeat 2] [--only abcde]
 
-Last measured on this 2-core machine with nothing else running (load 0.58
-before, 1.37 after), 2026-12-05, after the long-series and bootstrap work of
-that day: (a) analyze 4.10 s / measure 1.55 s = 2.65 (missed; it was 4.14
-that morning: the fit, 1.5 s with its 200 resamples of five laws on two
-threads and its three blends through scipy, and the four figures, 0.9 s of
-matplotlib at 300 dpi, take the 2.5 s between them); (b) marginal 7,405
-frames/s against a read-and-hash floor of 3,497 (0.47 x the floor's time per
-frame: the neck search reads a band of each frame and the hash runs on
-another core) and 18.7 x the per-frame script (397 frames/s); (c) 74.2
-recordings/min at ``--jobs 1``, 137.8 at ``--jobs 2`` (1.86 x); (d) 67 ms /
-39 ms = 1.71; (e) 184 MB peak RSS in 3.0 s (chunks sized in bytes: 16
-frames of 1024 x 1024). Under other jobs' load the figures move a lot: at
-load 7-8 (c) fell to 0.92 x (no idle core for the second worker).
+Last measured on this 2-core machine with nothing else running (load 0.59
+before, 1.42 after), 2026-12-05, evening, after the bootstrap's Newton refit,
+the two-regime fits' exact Jacobian and the figures on two processes: (a)
+analyze 2.78 s / measure 1.44 s = 1.94 (missed; 2.65 that afternoon, 4.14
+that morning: in one analyze the fit takes 0.50 s, its bootstrap about 0.2 s
+of it on two threads and a free-exponent blend that spends its 600
+evaluations 0.19 s, and the figures 0.70 s, of which importing matplotlib
+0.25 s); (b) marginal 6,502 frames/s against a read-and-hash floor of 3,482
+(0.54 x the floor's time per frame: the neck search reads a band of each
+frame and the hash runs on another core) and 13.4 x the per-frame script
+(485 frames/s); (c) 93.2 recordings/min at ``--jobs 1``, 161.4 at
+``--jobs 2`` (1.73 x); (d) 66 ms / 38 ms = 1.73; (e) 182 MB peak RSS in
+3.0 s (chunks sized in bytes: 16 frames of 1024 x 1024). Under other jobs'
+load the figures move a lot: at load 7-8 (c) fell to 0.92 x (no idle core
+for the second worker).
 """
 
 from __future__ import annotations
