@@ -93,10 +93,10 @@ def profile_fit(series: Series, model: LinearModel, lo, hi, f, loss):
     t, y, s = series.time, series.y, series.s
     f = point_scales(series, f)
 
-    def at(t0s):
+    def at(t0s):  # settled as the bootstrap's refits at a fixed t0 are
         tau = t[None, :] - np.asarray(t0s, dtype=float)[:, None]
         x, off = model.design(tau)
-        beta, z, w = solve_linear(x, y[None, :] - off, s, f, loss)
+        beta, z, w = solve_linear(x, y[None, :] - off, s, f, loss, SETTLE_PASSES, tol=SETTLED)
         return beta, z, w, rho(z, f, loss).sum(axis=-1)
 
     if hi <= lo:
