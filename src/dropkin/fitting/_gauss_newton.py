@@ -20,7 +20,7 @@ from __future__ import annotations
 
 import numpy as np
 
-from ._robust import rho
+from ._robust import _predict, rho
 
 __all__ = ["refine_jointly"]
 
@@ -38,15 +38,12 @@ def _residuals(model, time, y, s, t0, beta):
     """τ, the design X and the normalised residuals z at (t0, β) of each series."""
     tau = time[None, :] - t0[:, None]
     x, off = model.design(tau)
-    fitted = off + x[..., 0] * beta[:, :1]
-    for j in range(1, x.shape[-1]):
-        fitted = fitted + x[..., j] * beta[:, j : j + 1]
-    return tau, x, (y - fitted) / s
+    return tau, x, (y - (off + _predict(x, beta))) / s
 
 
-def _direction(model, tau, x, z, s, beta, f, loss, held):
-    """(Δβ, Δt0) of one Newton step in the residuals (NaN where singular); Δt0 = 0 for
-    the `held` series, whose t0 stays where it is this step."""
+def _normal_equations(model, tau, x, z, s, beta, f, loss):
+    """The Newton step's equations ``a Δ = g`` in (β, t0) of each series, and which
+    of them are finite."""
     # The loss's own curvature ρ''(z)/2 (1 for squares): with it the steps settle
     # in a few passes where reweighting by ψ(z)/z creeps to the same point at a
     # linear rate.
@@ -58,20 +55,24 @@ def _direction(model, tau, x, z, s, beta, f, loss, held):
         slope = np.broadcast_to(beta[:, 1:2], tau.shape)
     else:
         slope = model.shape.slope(tau)
-    with np.errstate(all="ignore"):
-        # The Jacobian transposed, (series, parameters, points): the sums below are
-        # matrix products, each series' its own.
-        jac = np.concatenate([np.swapaxes(x, 1, 2), (-slope / tau)[:, None, :]], axis=1)
-        a = (jac * w[:, None, :]) @ np.swapaxes(jac, 1, 2)
-        g = (jac @ (gradient / s)[..., None])[..., 0]
-        step = np.zeros(g.shape)
-        ok = np.isfinite(a).all(axis=(1, 2)) & np.isfinite(g).all(axis=1)
-        # A law flat in t0 at every point (the log law past its peak) cannot move it.
-        held = held | (a[:, -1, -1] <= 0.0)
-        whole, fixed = ok & ~held, ok & held
-        step[whole] = _solve(a[whole], g[whole])
-        step[fixed, :-1] = _solve(a[fixed, :-1, :-1], g[fixed, :-1])
-        step[~ok] = np.nan
+    # The Jacobian transposed, (series, parameters, points): the sums below are
+    # matrix products, each series' its own.
+    jac = np.concatenate([np.swapaxes(x, 1, 2), (-slope / tau)[:, None, :]], axis=1)
+    a = (jac * w[:, None, :]) @ np.swapaxes(jac, 1, 2)
+    g = (jac @ (gradient / s)[..., None])[..., 0]
+    return a, g, np.isfinite(a).all(axis=(1, 2)) & np.isfinite(g).all(axis=1)
+
+
+def _step(a, g, ok, held):
+    """(Δβ, Δt0) of each series (NaN where not `ok`); Δt0 = 0 for the `held` ones,
+    whose t0 stays where it is this step."""
+    # A law flat in t0 at every point (the log law past its peak) cannot move it.
+    held = held | (a[:, -1, -1] <= 0.0)
+    whole, fixed = ok & ~held, ok & held
+    step = np.zeros(g.shape)
+    step[whole] = _solve(a[whole], g[whole])
+    step[fixed, :-1] = _solve(a[fixed, :-1, :-1], g[fixed, :-1])
+    step[~ok] = np.nan
     return step
 
 
@@ -131,14 +132,12 @@ def _descend(model, time, y, s, f, loss, t0, beta, lo, hi, tol, counter, live):
         yl, tl, bl = y[live], t0[live], beta[live]
         tau, x, z = _residuals(model, time, yl, s, tl, bl)
         cost = rho(z, f, loss).sum(axis=-1)
-        step = _direction(model, tau, x, z, s, bl, f, loss, np.zeros(live.size, dtype=bool))
+        a, g, ok = _normal_equations(model, tau, x, z, s, bl, f, loss)
+        step = _step(a, g, ok, np.zeros(live.size, dtype=bool))
         # At an end of its interval and pushed beyond it, t0 stays there this step.
         out = ((tl <= lo[live]) & (step[:, -1] < 0)) | ((tl >= hi[live]) & (step[:, -1] > 0))
         if out.any():
-            held = np.ones(out.sum(), dtype=bool)
-            step[out] = _direction(
-                model, tau[out], x[out], z[out], s, bl[out], f, loss, held
-            )  # fmt: skip
+            step[out] = _step(a[out], g[out], ok[out], np.ones(out.sum(), dtype=bool))
         if counter is not None:
             counter.append(live.size)
         new_t0, new_beta, found = _downhill(

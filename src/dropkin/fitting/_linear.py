@@ -5,8 +5,8 @@ The fit works on ``ln r``: ``ln r = ln A + f(t - t0)`` with ``f = n ln τ``
 given origin t0 the problem is linear in ``ln A`` (and n), so it is solved
 in closed form. With t0 free, the best of a grid of origins across the contact
 bracket starts Newton steps in (β, t0) together, t0 inside the bracket, as the
-bootstrap refits every resample (:func:`profile_many`). Each point is weighted by its relative
-uncertainty ``σ_r / r`` (the uncertainty of ``ln r``; r the median radius of the
+bootstrap refits every resample (:func:`profile_many`). Each point is weighted
+by its relative uncertainty ``σ_r / r`` (the uncertainty of ``ln r``; r the median radius of the
 point and its neighbours, :func:`._core.running_median`), and the loss is
 robust: scipy's ``soft_l1`` (``ρ(z) = 2 f²(√(1 + (z/f)²) - 1)``), solved by
 iteratively reweighted least squares, with ``f = 3`` noise units and the
@@ -42,6 +42,7 @@ from ._core import (
     solve_linear,
     span_problem,
 )
+from ._gauss_newton import refine_jointly
 from ._records import LawFit
 from ._scan import scan_costs
 
@@ -133,8 +134,6 @@ def profile_many(time, y, s, model: LinearModel, lo, hi, f, loss, *, start=None,
     t0 : (B,) ndarray
     beta : (B, p) ndarray
     """
-    from ._gauss_newton import refine_jointly
-
     if counter is not None:
         counter.append(y.shape[0] * _T0_GRID)
     grid = np.linspace(lo, hi, _T0_GRID)

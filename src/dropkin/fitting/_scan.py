@@ -6,9 +6,8 @@ origin with the weights given (those of the residuals the resample drew).
 At fixed weights the normal equations' sums separate into a product of a
 resample's weights (and values) with an origin's regressors, so the whole
 (resamples × origins) table costs a few matrix products, not one pass over
-every point for every pair; the refits that follow
-(:func:`._linear.profile_many`) then settle the robust weights at the best
-origin and its neighbours only.
+every point for every pair; each series' best origin is where its Newton
+steps in (β, t0) then start (:func:`._linear.profile_many`).
 """
 
 from __future__ import annotations

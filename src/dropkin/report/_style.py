@@ -162,10 +162,10 @@ def _new_figure(height):
 _PNG_LEVEL = 1
 
 
-def _save(fig, plots_dir: Path, stem: str, formats=("png",), *, png_level=None) -> list[Path]:
+def _save(fig, plots_dir: Path, stem: str, formats=("png",)) -> list[Path]:
     """Write `fig` as ``stem.<format>`` for each of `formats`; the files written.
 
-    `png_level` is the PNG's zlib level (None: :data:`_PNG_LEVEL`).
+    A PNG is packed at zlib level :data:`_PNG_LEVEL`.
 
     The figure is laid out once (its constrained layout, then frozen; the
     layout needs the texts' sizes only, not a drawing of every artist), so
@@ -181,8 +181,7 @@ def _save(fig, plots_dir: Path, stem: str, formats=("png",), *, png_level=None) 
     for ext in formats:
         path = plots_dir / f"{stem}.{ext}"
         with atomic_path(path) as tmp:
-            level = {"compress_level": png_level or _PNG_LEVEL}
-            pil = {"pil_kwargs": level} if ext == "png" else {}
+            pil = {"pil_kwargs": {"compress_level": _PNG_LEVEL}} if ext == "png" else {}
             fig.savefig(tmp, format=ext, dpi=_DPI, metadata=_METADATA[ext], **pil)
         written.append(path)
     for ext in set(PLOT_FORMATS) - set(formats):
